@@ -1,0 +1,3 @@
+module lipoplan
+
+go 1.26

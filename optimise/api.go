@@ -1,0 +1,81 @@
+// Package optimise turns stocks and a product spec into a linear (or mixed
+// integer) programme, solves it with COIN-OR CLP/CBC through our own cgo
+// binding (gonum's simplex under the purego build tag), and reports the
+// cheapest blend with shadow prices, cost ranging and, for an impossible
+// spec, the smallest relaxation from an elastic LP.
+package optimise
+
+import (
+	"lipoplan/blend"
+	"lipoplan/catalogue"
+)
+
+// Status of a solve.
+type Status string
+
+// Statuses reported in text and JSON.
+const (
+	Optimal    Status = "optimal"
+	Infeasible Status = "infeasible"
+)
+
+// Options tune a solve. The zero value is ready to use.
+type Options struct {
+	Temps []float64 // SFC temperatures to report; nil means blend.Temps(spec temps...)
+}
+
+// Line is one stock in the optimal blend.
+type Line struct {
+	Stock  string
+	Name   string
+	Pct    float64 // % of batch
+	Tonnes float64
+}
+
+// LimitReport is one row of the model as the user wrote it.
+type LimitReport struct {
+	Name        string  // "iv.max", "sfc.20.min", "use.pko-r.max", "avail.pko-r", ...
+	Value       float64 // the blend's value of the limited quantity
+	Bound       float64 // the bound written in the spec
+	Binding     bool
+	ShadowPrice float64 // currency per tonne of product per unit of the limit (+ = raising the bound saves)
+	Explain     string  // plain trade words, e.g. "raising the IV maximum by 1 saves 3.10 EUR/t"
+}
+
+// Range is the price range over which the blend stays optimal for one stock.
+type Range struct {
+	Stock     string
+	InBlend   bool
+	Price     float64 // current price
+	PriceLow  float64 // -Inf when unbounded
+	PriceHigh float64 // +Inf when unbounded
+}
+
+// Relax is one limit to move to make an impossible spec feasible.
+type Relax struct {
+	Name string  // as LimitReport.Name
+	By   float64 // amount to move the bound, in the limit's own unit (positive)
+}
+
+// Result of a solve.
+type Result struct {
+	Status       Status
+	Engine       string // "clp", "cbc" or "gonum"
+	Currency     string
+	Spec         string
+	Batch        float64
+	CostPerTonne float64
+	BatchCost    float64
+	Blend        []Line
+	Properties   blend.Properties
+	Limits       []LimitReport
+	Ranging      []Range
+	Relaxation   []Relax // when Infeasible: smallest relaxation that would make the spec feasible
+}
+
+// Solve finds the cheapest blend of cat's stocks that meets spec.
+// Errors caused by the inputs are catalogue.BadInput (the CLI exits 2); an
+// impossible spec is not an error: Status is Infeasible and Relaxation is set.
+func Solve(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result, error) {
+	return solve(cat, spec, opt)
+}
