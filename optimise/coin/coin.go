@@ -1,0 +1,342 @@
+//go:build cgo && !purego
+
+// Package coin is a thin cgo binding over the C interfaces of COIN-OR CLP
+// (Clp_C_Interface.h, linear programmes) and CBC (Cbc_C_Interface.h, mixed
+// integer programmes), as shipped by Debian's coinor-libclp-dev and
+// coinor-libcbc-dev.
+//
+// Every model owns C memory and is freed deterministically by Close; there
+// are no finalizers. Models are created with log level 0 so solver messages
+// never reach stdout. A model is not safe for concurrent use; separate models
+// may be used from separate goroutines.
+//
+// Matrices are passed in compressed sparse column form (start, index, value),
+// exactly as Clp_loadProblem and Cbc_loadProblem take them; bounds of ±Inf
+// mean "no bound" and are passed to COIN-OR as ±COIN_DBL_MAX.
+package coin
+
+/*
+#cgo pkg-config: clp cbc
+#include <float.h>
+#include <stdio.h>
+#include <Clp_C_Interface.h>
+#include <Cbc_C_Interface.h>
+
+// The binding passes []int32 as CoinBigIndex*: Debian builds CoinUtils with a
+// 32-bit CoinBigIndex. Any other build fails here at compile time.
+typedef char coin_bigindex_is_32_bits[(sizeof(CoinBigIndex) == 4) ? 1 : -1];
+static void coin_flush_stdout(void) { fflush(stdout); }
+*/
+import "C"
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"unsafe"
+)
+
+// Status is the outcome of a solve.
+type Status int
+
+// Outcomes of a solve.
+const (
+	Optimal    Status = iota // proven optimal
+	Infeasible               // proven primal infeasible
+	Unbounded                // proven dual infeasible (objective unbounded)
+	Stopped                  // stopped on a limit or numerical trouble
+)
+
+func (s Status) String() string {
+	switch s {
+	case Optimal:
+		return "optimal"
+	case Infeasible:
+		return "infeasible"
+	case Unbounded:
+		return "unbounded"
+	default:
+		return "stopped"
+	}
+}
+
+// Basis status of a column or row, as Clp_getColumnStatus reports it.
+type Basis int8
+
+// CLP basis statuses (ClpSimplex::Status).
+const (
+	Free      Basis = 0
+	Basic     Basis = 1
+	AtUpper   Basis = 2
+	AtLower   Basis = 3
+	SuperBas  Basis = 4
+	FixedBase Basis = 5
+)
+
+// Version reports the CLP and CBC library versions.
+func Version() string {
+	return fmt.Sprintf("CLP %s, CBC %s", C.GoString(C.Clp_Version()), C.GoString(C.Cbc_getVersion()))
+}
+
+// FlushStdout flushes C's stdout buffer; tests use it to prove that the
+// solvers print nothing.
+func FlushStdout() { C.coin_flush_stdout() }
+
+// Problem is a model in compressed sparse column form: column j has its
+// nonzeros at Index[Start[j]:Start[j+1]] with values Value[...].
+type Problem struct {
+	Cols, Rows         int
+	Start              []int32 // len Cols+1
+	Index              []int32
+	Value              []float64
+	ColLower, ColUpper []float64 // len Cols
+	Obj                []float64 // len Cols, minimised
+	RowLower, RowUpper []float64 // len Rows
+	Integer            []int     // columns that must take integer values (MIP only)
+}
+
+func (p *Problem) check() error {
+	if p.Cols <= 0 {
+		return errors.New("coin: problem has no columns")
+	}
+	if len(p.Start) != p.Cols+1 || len(p.ColLower) != p.Cols || len(p.ColUpper) != p.Cols || len(p.Obj) != p.Cols {
+		return fmt.Errorf("coin: column arrays do not match %d columns", p.Cols)
+	}
+	if len(p.RowLower) != p.Rows || len(p.RowUpper) != p.Rows {
+		return fmt.Errorf("coin: row bounds do not match %d rows", p.Rows)
+	}
+	nz := int(p.Start[p.Cols])
+	if p.Start[0] != 0 || nz != len(p.Index) || nz != len(p.Value) {
+		return fmt.Errorf("coin: matrix has %d indices and %d values for %d nonzeros", len(p.Index), len(p.Value), nz)
+	}
+	for k, i := range p.Index {
+		if i < 0 || int(i) >= p.Rows {
+			return fmt.Errorf("coin: nonzero %d has row %d outside 0..%d", k, i, p.Rows-1)
+		}
+	}
+	for j := 0; j < p.Cols; j++ {
+		if p.Start[j] > p.Start[j+1] {
+			return fmt.Errorf("coin: column starts decrease at column %d", j)
+		}
+	}
+	for _, j := range p.Integer {
+		if j < 0 || j >= p.Cols {
+			return fmt.Errorf("coin: integer column %d outside 0..%d", j, p.Cols-1)
+		}
+	}
+	return nil
+}
+
+// finite maps ±Inf to ±COIN_DBL_MAX, COIN-OR's infinity, into dst.
+func finite(dst, src []float64) []float64 {
+	dst = dst[:0]
+	for _, v := range src {
+		switch {
+		case math.IsInf(v, 1):
+			v = math.MaxFloat64
+		case math.IsInf(v, -1):
+			v = -math.MaxFloat64
+		}
+		dst = append(dst, v)
+	}
+	return dst
+}
+
+// loadArgs holds the C views of a problem for one load call; the Go slices
+// behind them stay alive until the call returns.
+type loadArgs struct {
+	start, index        unsafe.Pointer
+	value               *C.double
+	cl, cu, obj, rl, ru *C.double
+}
+
+func ptr(s []float64) *C.double {
+	if len(s) == 0 {
+		return nil
+	}
+	return (*C.double)(unsafe.Pointer(&s[0]))
+}
+
+func (p *Problem) args() loadArgs {
+	var a loadArgs
+	a.start = unsafe.Pointer(&p.Start[0])
+	if len(p.Index) > 0 {
+		a.index = unsafe.Pointer(&p.Index[0])
+	}
+	a.value = ptr(p.Value)
+	a.cl = ptr(finite(make([]float64, 0, p.Cols), p.ColLower))
+	a.cu = ptr(finite(make([]float64, 0, p.Cols), p.ColUpper))
+	a.rl = ptr(finite(make([]float64, 0, p.Rows), p.RowLower))
+	a.ru = ptr(finite(make([]float64, 0, p.Rows), p.RowUpper))
+	a.obj = ptr(p.Obj)
+	return a
+}
+
+// LP is one CLP model.
+type LP struct {
+	m    unsafe.Pointer // Clp_Simplex*
+	cols int
+	rows int
+}
+
+// NewLP makes an empty CLP model with logging off. Call Close when done.
+func NewLP() *LP {
+	m := C.Clp_newModel()
+	C.Clp_setLogLevel(m, 0)
+	return &LP{m: m}
+}
+
+// Close frees the C model. It is safe to call more than once.
+func (lp *LP) Close() {
+	if lp.m != nil {
+		C.Clp_deleteModel(lp.m)
+		lp.m = nil
+	}
+}
+
+// Load copies the problem into the model (Clp_loadProblem).
+func (lp *LP) Load(p *Problem) error {
+	if lp.m == nil {
+		return errors.New("coin: LP used after Close")
+	}
+	if err := p.check(); err != nil {
+		return err
+	}
+	a := p.args()
+	C.Clp_loadProblem(lp.m, C.int(p.Cols), C.int(p.Rows),
+		(*C.CoinBigIndex)(a.start), (*C.int)(a.index), a.value,
+		a.cl, a.cu, a.obj, a.rl, a.ru)
+	lp.cols, lp.rows = p.Cols, p.Rows
+	return nil
+}
+
+// Solve runs CLP's dual simplex from the slack basis (Clp_dual without a
+// values pass); for the small dense blend models this is faster than
+// Clp_initialSolve's presolve and chooses the same optimum.
+func (lp *LP) Solve() Status {
+	C.Clp_dual(lp.m, 0)
+	switch {
+	case C.Clp_isProvenOptimal(lp.m) != 0:
+		return Optimal
+	case C.Clp_isProvenPrimalInfeasible(lp.m) != 0:
+		return Infeasible
+	case C.Clp_isProvenDualInfeasible(lp.m) != 0:
+		return Unbounded
+	default:
+		return Stopped
+	}
+}
+
+// Objective is the objective value of the last solve.
+func (lp *LP) Objective() float64 { return float64(C.Clp_getObjValue(lp.m)) }
+
+// Iterations is the simplex iteration count of the last solve.
+func (lp *LP) Iterations() int { return int(C.Clp_getIterationCount(lp.m)) }
+
+func copyOut(dst []float64, src *C.double, n int) []float64 {
+	if cap(dst) < n {
+		dst = make([]float64, n)
+	}
+	dst = dst[:n]
+	if n == 0 || src == nil {
+		clear(dst)
+		return dst
+	}
+	copy(dst, unsafe.Slice((*float64)(unsafe.Pointer(src)), n))
+	return dst
+}
+
+// ColSolution copies the column values into dst (grown as needed).
+func (lp *LP) ColSolution(dst []float64) []float64 {
+	return copyOut(dst, C.Clp_getColSolution(lp.m), lp.cols)
+}
+
+// RowActivity copies the row activities A x into dst.
+func (lp *LP) RowActivity(dst []float64) []float64 {
+	return copyOut(dst, C.Clp_getRowActivity(lp.m), lp.rows)
+}
+
+// RowPrice copies the row duals into dst: d(objective)/d(row bound) of the
+// bound a row sits at, so that reduced cost = obj - Aᵀ·price.
+func (lp *LP) RowPrice(dst []float64) []float64 {
+	return copyOut(dst, C.Clp_getRowPrice(lp.m), lp.rows)
+}
+
+// ReducedCost copies the column reduced costs into dst.
+func (lp *LP) ReducedCost(dst []float64) []float64 {
+	return copyOut(dst, C.Clp_getReducedCost(lp.m), lp.cols)
+}
+
+// ColStatus is the basis status of column j after a solve.
+func (lp *LP) ColStatus(j int) Basis { return Basis(C.Clp_getColumnStatus(lp.m, C.int(j))) }
+
+// RowStatus is the basis status of row i's logical after a solve.
+func (lp *LP) RowStatus(i int) Basis { return Basis(C.Clp_getRowStatus(lp.m, C.int(i))) }
+
+// MIP is one CBC model.
+type MIP struct {
+	m    unsafe.Pointer // Cbc_Model*
+	cols int
+	rows int
+}
+
+// NewMIP makes an empty CBC model with logging off. Call Close when done.
+func NewMIP() *MIP {
+	m := C.Cbc_newModel()
+	C.Cbc_setLogLevel(m, 0)
+	return &MIP{m: m}
+}
+
+// Close frees the C model. It is safe to call more than once.
+func (mp *MIP) Close() {
+	if mp.m != nil {
+		C.Cbc_deleteModel(mp.m)
+		mp.m = nil
+	}
+}
+
+// Load copies the problem into the model (Cbc_loadProblem) and marks the
+// integer columns (Cbc_setInteger).
+func (mp *MIP) Load(p *Problem) error {
+	if mp.m == nil {
+		return errors.New("coin: MIP used after Close")
+	}
+	if err := p.check(); err != nil {
+		return err
+	}
+	a := p.args()
+	C.Cbc_loadProblem(mp.m, C.int(p.Cols), C.int(p.Rows),
+		(*C.CoinBigIndex)(a.start), (*C.int)(a.index), a.value,
+		a.cl, a.cu, a.obj, a.rl, a.ru)
+	for _, j := range p.Integer {
+		C.Cbc_setInteger(mp.m, C.int(j))
+	}
+	mp.cols, mp.rows = p.Cols, p.Rows
+	return nil
+}
+
+// SetMaxSeconds bounds the branch-and-bound time.
+func (mp *MIP) SetMaxSeconds(s float64) { C.Cbc_setMaximumSeconds(mp.m, C.double(s)) }
+
+// Solve runs CBC's branch and bound (Cbc_solve).
+func (mp *MIP) Solve() Status {
+	C.Cbc_solve(mp.m)
+	switch {
+	case C.Cbc_isProvenOptimal(mp.m) != 0:
+		return Optimal
+	case C.Cbc_isProvenInfeasible(mp.m) != 0:
+		return Infeasible
+	case C.Cbc_isContinuousUnbounded(mp.m) != 0:
+		return Unbounded
+	default:
+		return Stopped
+	}
+}
+
+// Objective is the objective of the best integer solution.
+func (mp *MIP) Objective() float64 { return float64(C.Cbc_getObjValue(mp.m)) }
+
+// ColSolution copies the best solution's column values into dst.
+func (mp *MIP) ColSolution(dst []float64) []float64 {
+	return copyOut(dst, C.Cbc_getColSolution(mp.m), mp.cols)
+}

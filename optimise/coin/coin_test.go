@@ -1,0 +1,96 @@
+//go:build cgo && !purego
+
+package coin
+
+import (
+	"math"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+)
+
+// paperLP is worked by hand: minimise 2x + 3y subject to x + y >= 4 and
+// x + 3y >= 6, x, y >= 0. The feasible region's vertices are (0,4) cost 12,
+// (3,1) cost 9 and (6,0) cost 12, so the optimum is (3,1) at 9. Both rows are
+// tight; the duals solve u + v = 2, u + 3v = 3, so u = 1.5, v = 0.5.
+func paperLP() *Problem {
+	inf := math.Inf(1)
+	return &Problem{
+		Cols: 2, Rows: 2,
+		Start:    []int32{0, 2, 4},
+		Index:    []int32{0, 1, 0, 1},
+		Value:    []float64{1, 1, 1, 3},
+		ColLower: []float64{0, 0}, ColUpper: []float64{inf, inf},
+		Obj:      []float64{2, 3},
+		RowLower: []float64{4, 6}, RowUpper: []float64{inf, inf},
+	}
+}
+
+func TestLPPaperExample(t *testing.T) {
+	lp := NewLP()
+	defer lp.Close()
+	require.NoError(t, lp.Load(paperLP()))
+	require.Equal(t, Optimal, lp.Solve())
+	assert.InDelta(t, 9, lp.Objective(), 1e-9)
+	x := lp.ColSolution(nil)
+	assert.InDeltaSlice(t, []float64{3, 1}, x, 1e-9)
+	assert.InDeltaSlice(t, []float64{4, 6}, lp.RowActivity(nil), 1e-9)
+	assert.InDeltaSlice(t, []float64{1.5, 0.5}, lp.RowPrice(nil), 1e-9)
+	assert.InDeltaSlice(t, []float64{0, 0}, lp.ReducedCost(nil), 1e-9)
+	assert.Equal(t, Basic, lp.ColStatus(0))
+	assert.Equal(t, Basic, lp.ColStatus(1))
+	assert.NotEqual(t, Basic, lp.RowStatus(0))
+	lp.Close()
+	lp.Close() // idempotent
+}
+
+// Worked by hand: x + y >= 4 and x + y <= 3 cannot both hold.
+func TestLPInfeasible(t *testing.T) {
+	inf := math.Inf(1)
+	lp := NewLP()
+	defer lp.Close()
+	require.NoError(t, lp.Load(&Problem{
+		Cols: 2, Rows: 2, Start: []int32{0, 2, 4}, Index: []int32{0, 1, 0, 1},
+		Value: []float64{1, 1, 1, 1}, ColLower: []float64{0, 0}, ColUpper: []float64{inf, inf},
+		Obj: []float64{1, 1}, RowLower: []float64{4, math.Inf(-1)}, RowUpper: []float64{inf, 3},
+	}))
+	assert.Equal(t, Infeasible, lp.Solve())
+}
+
+// Worked by hand: maximise x + y with 2x + 2y <= 3 and x, y integer in
+// [0, 5]: the LP relaxation reaches 1.5, the best integer point sums to 1.
+func TestMIPPaperExample(t *testing.T) {
+	mp := NewMIP()
+	defer mp.Close()
+	require.NoError(t, mp.Load(&Problem{
+		Cols: 2, Rows: 1, Start: []int32{0, 1, 2}, Index: []int32{0, 0}, Value: []float64{2, 2},
+		ColLower: []float64{0, 0}, ColUpper: []float64{5, 5}, Obj: []float64{-1, -1},
+		RowLower: []float64{math.Inf(-1)}, RowUpper: []float64{3}, Integer: []int{0, 1},
+	}))
+	require.Equal(t, Optimal, mp.Solve())
+	assert.InDelta(t, -1, mp.Objective(), 1e-9)
+	x := mp.ColSolution(nil)
+	assert.InDelta(t, 1, x[0]+x[1], 1e-9)
+	for _, v := range x {
+		assert.InDelta(t, math.Round(v), v, 1e-9)
+	}
+}
+
+func TestLoadRejectsMalformed(t *testing.T) {
+	p := paperLP()
+	p.Index[1] = 7
+	lp := NewLP()
+	defer lp.Close()
+	assert.ErrorContains(t, lp.Load(p), "row 7")
+	p = paperLP()
+	p.Start = p.Start[:2]
+	assert.Error(t, lp.Load(p))
+	lp.Close()
+	assert.ErrorContains(t, lp.Load(paperLP()), "after Close")
+}
+
+func TestVersion(t *testing.T) {
+	assert.Contains(t, Version(), "CLP 1.")
+	assert.Contains(t, Version(), "CBC 2.")
+}
