@@ -131,21 +131,28 @@ func (d *Distribution) FattyAcids() map[string]float64 {
 // n_i = w_i / M(FAME_i), x_i = n_i / sum n. Acids with zero share are left out;
 // the acids come back in reference-table order.
 func MolFractions(fa map[string]float64) (acids []catalogue.FattyAcid, x []float64, err error) {
-	keys := catalogue.SortedKeys(fa)
-	var total float64
-	for _, k := range keys {
-		w := fa[k]
-		f, ok := catalogue.Lookup(k)
-		if !ok {
+	// one rank look-up per key, then a walk in table order (no sorting)
+	ranked := make([]float64, len(catalogue.Keys()))
+	present := make([]bool, len(ranked))
+	for k, w := range fa {
+		r := catalogue.Rank(k)
+		if r < 0 {
 			return nil, nil, catalogue.Badf("fatty acid %q is not in the reference table; use one of %s", k, strings.Join(catalogue.Keys(), " "))
 		}
 		if w < 0 || math.IsNaN(w) || math.IsInf(w, 0) {
 			return nil, nil, catalogue.Badf("fatty acid %q: %v wt%% is not a finite number >= 0", k, w)
 		}
-		if w == 0 {
+		if w > 0 {
+			ranked[r] += w
+			present[r] = true
+		}
+	}
+	var total float64
+	for r, f := range catalogue.FattyAcids() {
+		if !present[r] {
 			continue
 		}
-		n := w / f.EsterMolarMass()
+		n := ranked[r] / f.EsterMolarMass()
 		acids = append(acids, f)
 		x = append(x, n)
 		total += n

@@ -315,8 +315,14 @@ func TestDistributeBadInput(t *testing.T) {
 		"degree>1":   func() error { _, err := randomise.Distribute(ok, randomise.Chemical, 1.5); return err },
 		"degree NaN": func() error { _, err := randomise.Distribute(ok, randomise.Chemical, math.NaN()); return err },
 		"no parts":   func() error { _, err := randomise.Distribute(nil, randomise.Native, 0); return err },
-		"zero":       func() error { _, err := randomise.Distribute([]blend.Part{{Stock: &palm}}, randomise.Native, 0); return err },
-		"negative":   func() error { _, err := randomise.Distribute([]blend.Part{{Stock: &palm, Pct: -1}}, randomise.Native, 0); return err },
+		"zero": func() error {
+			_, err := randomise.Distribute([]blend.Part{{Stock: &palm}}, randomise.Native, 0)
+			return err
+		},
+		"negative": func() error {
+			_, err := randomise.Distribute([]blend.Part{{Stock: &palm, Pct: -1}}, randomise.Native, 0)
+			return err
+		},
 		"fa key": func() error {
 			s := catalogue.Stock{ID: "x", FattyAcids: map[string]float64{"C18:7": 100}}
 			_, err := randomise.Distribute([]blend.Part{{Stock: &s, Pct: 1}}, randomise.Native, 0)
