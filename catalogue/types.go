@@ -159,6 +159,7 @@ type Process struct {
 // Spec is a product specification.
 type Spec struct {
 	File    string
+	ID      string // short id: the file's base name without extension ("laminating")
 	Name    string
 	Batch   float64 // tonnes
 	Limits  []Limit    // sorted by name
