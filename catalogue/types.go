@@ -161,7 +161,7 @@ type Spec struct {
 	File    string
 	ID      string // short id: the file's base name without extension ("laminating")
 	Name    string
-	Batch   float64 // tonnes
+	Batch   float64    // tonnes
 	Limits  []Limit    // sorted by name
 	SFC     []SFCLimit // sorted by temperature
 	Use     []Use      // sorted by stock id
