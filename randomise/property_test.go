@@ -304,3 +304,31 @@ func compareWithReference(t *testing.T, d *randomise.Distribution, s randomise.S
 		assert.InDelta(t, ecn[g.Key], g.MolPct, 1e-9, "ECN %d", g.Key)
 	}
 }
+
+// FuzzDistribute feeds arbitrary profiles, TAG codes, shares and degrees:
+// Distribute must either fail with an error or return a distribution whose
+// classes sum to 100; it never panics.
+func FuzzDistribute(f *testing.F) {
+	f.Add("C16:0", 44.0, "C18:1", 40.0, "POP", 50.0, 1.0, 0.5, uint8(1))
+	f.Add("C18:9", -1.0, "", 0.0, "PQP", 10.0, 0.0, 2.0, uint8(2))
+	f.Add("C12:0", 1e308, "C18:1t", 1e-300, "LnLnLn", 1e308, 5.0, 1.0, uint8(0))
+	f.Fuzz(func(t *testing.T, k1 string, v1 float64, k2 string, v2 float64, code string, tv, pct, deg float64, m uint8) {
+		s := catalogue.Stock{ID: "f", FattyAcids: map[string]float64{k1: v1, k2: v2}}
+		switch m % 3 {
+		case 1:
+			s.SN2 = map[string]float64{k2: v2, k1: v1 / 2}
+		case 2:
+			s.TAGs = map[string]float64{code: tv}
+		}
+		method := []randomise.Method{randomise.Native, randomise.Chemical, randomise.Enzymatic}[m%3]
+		d, err := randomise.Distribute([]blend.Part{{Stock: &s, Pct: pct}}, method, deg)
+		if err != nil {
+			return
+		}
+		c := d.Classes().Mol
+		if sum := c.S3 + c.S2U + c.SU2 + c.U3; !(sum > 100-1e-6 && sum < 100+1e-6) {
+			t.Fatalf("classes sum to %v", sum)
+		}
+		_, _ = randomise.Harden(s)
+	})
+}
