@@ -5,7 +5,9 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"regexp"
 	"strings"
+	"unicode/utf8"
 
 	"github.com/BurntSushi/toml"
 )
@@ -133,6 +135,21 @@ func (c *collector) failed() bool { return len(c.ps.Errors()) > 0 }
 // decode runs the TOML decoder and turns a syntax or structure error into a
 // problem with the line number.
 func (c *collector) decode(data []byte, v any) (toml.MetaData, bool) {
+	if !utf8.Valid(data) {
+		line := 1
+		for i := 0; i < len(data); {
+			r, n := utf8.DecodeRune(data[i:])
+			if r == utf8.RuneError && n <= 1 {
+				break
+			}
+			if r == '\n' {
+				line++
+			}
+			i += n
+		}
+		c.errf(fmt.Sprintf("line %d", line), "the file is not valid UTF-8 text; save it as UTF-8 (TOML requires it)")
+		return toml.MetaData{}, false
+	}
 	md, err := toml.Decode(string(data), v)
 	if err == nil {
 		return md, true
@@ -147,10 +164,33 @@ func (c *collector) decode(data []byte, v any) (toml.MetaData, bool) {
 		c.errf(where, "TOML syntax error: %s; fix this line (strings need double quotes, keys with ':' or '.' must be quoted, e.g. \"C18:1\" = 20.0)", msg)
 		return md, false
 	}
-	msg := strings.TrimPrefix(err.Error(), "toml: ")
-	c.errf("", "wrong kind of value: %s; compare with the layout in `lipoplan demo` files (tables in [brackets], stocks as [[stock]])", msg)
+	c.structureError(err)
 	return md, false
 }
+
+// structureError reports a value of the wrong shape that the decoder could
+// not place (e.g. stock = 5, or rules = 5), naming the key and its line.
+func (c *collector) structureError(err error) {
+	msg := strings.TrimPrefix(err.Error(), "toml: ")
+	where, key := "", ""
+	if m := lastKeyPattern.FindStringSubmatch(msg); m != nil {
+		if m[1] != "" {
+			where = "line " + m[1]
+		}
+		key = m[2]
+	}
+	switch key {
+	case "stock", "order":
+		c.errf(where, "%q must be written as [[%s]] tables (double brackets), one per %s", key, key, key)
+	case "rules", "process", "limits", "use", "purchase":
+		c.errf(where, "%q must be a table: write [%s] on its own line and its keys below it", key, key)
+	default:
+		c.errf(where, "wrong kind of value (%s); compare with the layout of the demo files", msg)
+	}
+}
+
+// lastKeyPattern picks line and key out of the decoder's type errors.
+var lastKeyPattern = regexp.MustCompile(`^(?:line (\d+) )?\(last key "([^"]*)"\)`)
 
 // keyLabel writes a key path for messages.
 func keyLabel(k toml.Key) string { return strings.Join(k, ".") }

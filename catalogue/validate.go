@@ -472,6 +472,12 @@ func (c *collector) spec(md toml.MetaData, raw rawSpec, cat *Catalogue) *Spec {
 		}
 		s.Batch = b
 	}
+	for _, key := range []string{"limits", "use"} {
+		if t := md.Type(key); t != "" && t != "Hash" {
+			c.errf(fmt.Sprintf("key %q", key), "%s must be a table; write [%s] and then one line per entry, e.g. %s", key, key,
+				map[string]string{"limits": "iv = { min = 38, max = 48 }", "use": `"pko" = { max = 25 }`}[key])
+		}
+	}
 	for _, name := range sortedPrims(raw.Limits) {
 		p := raw.Limits[name]
 		if name == "sfc" {
@@ -520,7 +526,7 @@ func (c *collector) spec(md toml.MetaData, raw rawSpec, cat *Catalogue) *Spec {
 
 func (c *collector) sfcLimits(md toml.MetaData, s *Spec, p toml.Primitive) {
 	var temps map[string]toml.Primitive
-	if err := md.PrimitiveDecode(p, &temps); err != nil {
+	if err := md.PrimitiveDecode(p, &temps); err != nil || (md.Type("limits", "sfc") != "" && md.Type("limits", "sfc") != "Hash") {
 		c.errf(`limit "sfc"`, `limits.sfc must be a table of temperatures; write [limits.sfc] and then lines such as "20" = { min = 38, max = 48 }`)
 		return
 	}
