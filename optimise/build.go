@@ -1,0 +1,325 @@
+package optimise
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strings"
+
+	"lipoplan/blend"
+	"lipoplan/catalogue"
+)
+
+// rowKind tells what a model row stands for.
+type rowKind int
+
+const (
+	rowSum    rowKind = iota // the shares add up to 100 %
+	rowLimit                 // a [limits] entry: property or fatty acid
+	rowSFC                   // a [limits.sfc] entry
+	rowLink                  // integer rule: x_j <= U_j·used_j
+	rowMinUse                // integer rule: x_j >= min_if_used·used_j
+	rowCount                 // integer rule: Σ used_j <= max_stocks
+)
+
+// rowInfo describes one model row for reports and relaxation.
+type rowInfo struct {
+	kind  rowKind
+	key   string  // model row name: "sum", "iv", "C18:2", "sfc.20", ...
+	label string  // trade words: "IV", "SFC at 20 °C", ...
+	unit  string  // unit of the limited quantity, "" for IV
+	temp  float64 // rowSFC only
+	stock int     // rowLink, rowMinUse: the stock column
+	bound catalogue.Bound
+	// scale is the typical magnitude of the limited quantity among the
+	// stocks on offer (see elastic.go); deficits are divided by it.
+	scale float64
+}
+
+// colInfo describes one stock column.
+type colInfo struct {
+	stock    *catalogue.Stock
+	use      catalogue.Bound // [use] bound in % of batch; Free() when absent
+	availPct float64         // availability as % of batch; +Inf when unlimited
+	// frozen: excluded by use max = 0 while lacking SFC data the spec
+	// needs, so it may never enter, not even in a relaxation.
+	frozen bool
+}
+
+// layout maps the user's stocks and spec onto the model.
+type layout struct {
+	cat   *catalogue.Catalogue
+	spec  *catalogue.Spec
+	cols  []colInfo // stock columns 0..n-1
+	rows  []rowInfo // one per base-model row
+	rules catalogue.Rules
+	// filled by withRules:
+	used     []int // binary column of each stock, -1 when none
+	milpRows []rowInfo
+}
+
+func (l *layout) n() int { return len(l.cols) }
+
+// propertyLabel is the trade name of a limit's quantity and its unit.
+func propertyLabel(name string) (label, unit string) {
+	switch name {
+	case "iv":
+		return "IV", ""
+	case "sv":
+		return "SV", " mg KOH/g"
+	case "safa":
+		return "SAFA", " %"
+	case "mufa":
+		return "MUFA", " %"
+	case "pufa":
+		return "PUFA", " %"
+	case "trans":
+		return "trans fat", " %"
+	case "cox":
+		return "Cox value", ""
+	case "omega3":
+		return "omega-3", " %"
+	}
+	return name, " %"
+}
+
+// sfcKey is the model row name of an SFC limit, e.g. "sfc.20".
+func sfcKey(t float64) string { return "sfc." + catalogue.TempKey(t) }
+
+// where names the spec for messages.
+func specWhere(spec *catalogue.Spec) string {
+	switch {
+	case spec.File != "":
+		return fmt.Sprintf("spec %q", spec.File)
+	case spec.Name != "":
+		return fmt.Sprintf("spec %q", spec.Name)
+	}
+	return "spec"
+}
+
+func finiteNum(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
+
+// build turns stocks and a spec into the base LP: one column per stock (% of
+// batch, cost price/100 so the objective is currency per tonne of product),
+// the sum row, one row per [limits] entry and per [limits.sfc] temperature,
+// and [use] bounds and availability (pct <= 100·available/batch) as column
+// bounds. Integer rules are added by withRules. Input faults are
+// catalogue.BadInput.
+func build(cat *catalogue.Catalogue, spec *catalogue.Spec) (*model, *layout, error) {
+	if cat == nil || len(cat.Stocks) == 0 {
+		return nil, nil, catalogue.Badf("the stock catalogue has no stocks; add [[stock]] entries")
+	}
+	if spec == nil {
+		return nil, nil, catalogue.Badf("no spec given")
+	}
+	where := specWhere(spec)
+	if !finiteNum(spec.Batch) || spec.Batch <= 0 {
+		return nil, nil, catalogue.Badf("%s: batch = %v t; give the batch size in tonnes, above zero", where, spec.Batch)
+	}
+	n := len(cat.Stocks)
+	lay := &layout{cat: cat, spec: spec, cols: make([]colInfo, n), rules: spec.Rules}
+	index := make(map[string]int, n)
+	for j := range cat.Stocks {
+		s := &cat.Stocks[j]
+		if _, dup := index[s.ID]; dup {
+			return nil, nil, catalogue.Badf("stock %q appears twice in the catalogue; give each stock its own id", s.ID)
+		}
+		if !finiteNum(s.Price) || s.Price < 0 {
+			return nil, nil, catalogue.Badf("stock %q: price %v is not a number >= 0", s.ID, s.Price)
+		}
+		if math.IsNaN(s.Available) || s.Available < 0 {
+			return nil, nil, catalogue.Badf("stock %q: available %v t is not a number >= 0", s.ID, s.Available)
+		}
+		index[s.ID] = j
+		lay.cols[j] = colInfo{stock: s, use: catalogue.Free(), availPct: math.Inf(1)}
+		if s.Limited() {
+			lay.cols[j].availPct = 100 * s.Available / spec.Batch
+		}
+	}
+	for _, u := range spec.Use {
+		j, ok := index[u.Stock]
+		if !ok {
+			return nil, nil, catalogue.Badf("%s: [use] names stock %q, which is not in the catalogue; check the id", where, u.Stock)
+		}
+		if u.Min > u.Max || math.IsNaN(u.Min) || math.IsNaN(u.Max) || u.Min < 0 && u.HasMin() {
+			return nil, nil, catalogue.Badf("%s: [use] %q = { min = %v, max = %v } is not a range within 0..100 %%", where, u.Stock, u.Min, u.Max)
+		}
+		lay.cols[j].use = u.Bound
+	}
+
+	m := newModel(n)
+	for j, c := range lay.cols {
+		m.colName[j] = c.stock.ID
+		m.obj[j] = c.stock.Price / 100
+		if c.use.HasMin() {
+			m.colLo[j] = c.use.Min
+		}
+		if c.use.HasMax() {
+			m.colUp[j] = c.use.Max
+		}
+		m.colUp[j] = math.Min(m.colUp[j], c.availPct)
+	}
+
+	coef := make([]float64, n)
+	for j := range coef {
+		coef[j] = 1
+	}
+	m.addRow("sum", coef, 100, 100)
+	lay.rows = append(lay.rows, rowInfo{kind: rowSum, key: "sum", label: "sum of shares", unit: " %", bound: catalogue.Bound{Min: 100, Max: 100}, scale: 1})
+
+	// Profiles are computed once per stock, and only when a property limit
+	// needs one; fatty-acid limits read the profile directly.
+	var props []blend.Properties
+	for _, l := range spec.Limits {
+		if !l.HasMin() && !l.HasMax() {
+			continue // an empty limit constrains nothing
+		}
+		if math.IsNaN(l.Min) || math.IsNaN(l.Max) || l.Min > l.Max {
+			return nil, nil, catalogue.Badf("%s: limit %q = { min = %v, max = %v }: min must not exceed max", where, l.Name, l.Min, l.Max)
+		}
+		_, isFA := catalogue.Lookup(l.Name)
+		if !isFA && !catalogue.IsProperty(l.Name) {
+			return nil, nil, catalogue.Badf("%s: limit %q is neither a property (%s) nor a fatty-acid key such as \"C18:2\"", where, l.Name, strings.Join(catalogue.Properties, ", "))
+		}
+		for j, c := range lay.cols {
+			if isFA {
+				coef[j] = c.stock.FattyAcids[l.Name]
+				continue
+			}
+			if props == nil {
+				props = make([]blend.Properties, n)
+				for k, ck := range lay.cols {
+					props[k] = blend.Profile(ck.stock.FattyAcids)
+				}
+			}
+			// As blend.Coefficient: every property is linear in mass share.
+			coef[j], _ = props[j].Value(l.Name)
+		}
+		label, unit := propertyLabel(l.Name)
+		lay.rows = append(lay.rows, rowInfo{kind: rowLimit, key: l.Name, label: label, unit: unit, bound: l.Bound, scale: spread(coef, l.Bound)})
+		m.addRow(l.Name, perPct(coef), l.Min, l.Max)
+	}
+
+	for _, l := range spec.SFC {
+		if !l.HasMin() && !l.HasMax() {
+			continue
+		}
+		if math.IsNaN(l.Min) || math.IsNaN(l.Max) || l.Min > l.Max {
+			return nil, nil, catalogue.Badf("%s: limit sfc %q = { min = %v, max = %v }: min must not exceed max", where, catalogue.TempKey(l.Temp), l.Min, l.Max)
+		}
+		var lacking []string
+		for j, c := range lay.cols {
+			v, ok := c.stock.SFC.At(l.Temp)
+			if !ok {
+				if m.colUp[j] > 0 {
+					lacking = append(lacking, fmt.Sprintf("%q", c.stock.ID))
+				}
+				lay.cols[j].frozen = true
+				v = 0
+			}
+			coef[j] = v
+		}
+		if len(lacking) > 0 {
+			sort.Strings(lacking)
+			t := catalogue.TempKey(l.Temp)
+			return nil, nil, catalogue.Badf("%s: limit sfc %q: stock %s has no measured SFC at %s °C; add \"%s\" under [stock.sfc] (within its measured range) or exclude it with [use] %s = { max = 0 }",
+				where, t, strings.Join(lacking, ", "), t, t, lacking[0])
+		}
+		lay.rows = append(lay.rows, rowInfo{kind: rowSFC, key: sfcKey(l.Temp), label: "SFC at " + catalogue.TempKey(l.Temp) + " °C", unit: " % solid", temp: l.Temp, bound: l.Bound, scale: spread(coef, l.Bound)})
+		m.addRow(sfcKey(l.Temp), perPct(coef), l.Min, l.Max)
+	}
+	if r := spec.Rules; r.MaxStocks < 0 || math.IsNaN(r.MinIfUsed) || r.MinIfUsed < 0 || r.MinIfUsed > 100 {
+		return nil, nil, catalogue.Badf("%s: [rules] max_stocks = %d, min_if_used = %v: give max_stocks >= 1 and min_if_used within 0..100 %%", where, r.MaxStocks, r.MinIfUsed)
+	}
+	return m, lay, nil
+}
+
+// perPct turns per-stock values into row coefficients of shares in %: the
+// blend's value is Σ (x_j/100)·v_j. It rewrites coef in place.
+func perPct(coef []float64) []float64 {
+	for j := range coef {
+		coef[j] /= 100
+	}
+	return coef
+}
+
+// spread is the typical magnitude of a limited quantity: the range its
+// per-stock values span (max - min), so that one deficit unit means "the
+// whole spread the stocks on offer can cover". When every stock has the same
+// value it falls back to the size of the bound, and to 1.
+func spread(coef []float64, b catalogue.Bound) float64 {
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for _, v := range coef {
+		lo, hi = math.Min(lo, v), math.Max(hi, v)
+	}
+	if s := hi - lo; s > 1e-9 {
+		return s
+	}
+	s := 0.0
+	if b.HasMin() {
+		s = math.Max(s, math.Abs(b.Min))
+	}
+	if b.HasMax() {
+		s = math.Max(s, math.Abs(b.Max))
+	}
+	return math.Max(s, 1)
+}
+
+// withRules returns m extended by the integer rules of the spec (a copy;
+// m is kept as the base LP): a binary used_j per stock that may enter, rows
+// link_j: x_j - U_j·used_j <= 0 (U_j its upper bound, at most 100), with
+// min_if_used m: minuse_j: x_j - m·used_j >= 0, with max_stocks N:
+// count: Σ used_j <= N. linkCap replaces U_j (the elastic model uses 100).
+func (l *layout) withRules(m *model, linkCap func(j int) float64) *model {
+	r := l.rules
+	n := l.n()
+	var cand []int
+	for j := 0; j < n; j++ {
+		if linkCap(j) > 0 {
+			cand = append(cand, j)
+		}
+	}
+	out := newModel(m.nCols + len(cand))
+	copy(out.colName, m.colName)
+	copy(out.obj, m.obj)
+	copy(out.colLo, m.colLo)
+	copy(out.colUp, m.colUp)
+	l.used = make([]int, n)
+	for j := range l.used {
+		l.used[j] = -1
+	}
+	for k, j := range cand {
+		c := m.nCols + k
+		l.used[j] = c
+		out.colName[c] = "used." + m.colName[j]
+		out.colLo[c], out.colUp[c] = 0, 1
+		out.integer = append(out.integer, c)
+	}
+	coef := make([]float64, out.nCols)
+	for i := 0; i < m.nRows; i++ {
+		copy(coef, m.row(i))
+		out.addRow(m.rowName[i], coef, m.rowLo[i], m.rowUp[i])
+	}
+	l.milpRows = l.milpRows[:0]
+	inf := math.Inf(1)
+	for _, j := range cand {
+		clear(coef)
+		coef[j], coef[l.used[j]] = 1, -linkCap(j)
+		out.addRow("link."+m.colName[j], coef, math.Inf(-1), 0)
+		l.milpRows = append(l.milpRows, rowInfo{kind: rowLink, key: "link." + m.colName[j], stock: j})
+		if r.MinIfUsed > 0 {
+			coef[l.used[j]] = -r.MinIfUsed
+			out.addRow("minuse."+m.colName[j], coef, 0, inf)
+			l.milpRows = append(l.milpRows, rowInfo{kind: rowMinUse, key: "minuse." + m.colName[j], stock: j})
+		}
+	}
+	if r.MaxStocks > 0 {
+		clear(coef)
+		for _, j := range cand {
+			coef[l.used[j]] = 1
+		}
+		out.addRow("count", coef, math.Inf(-1), float64(r.MaxStocks))
+		l.milpRows = append(l.milpRows, rowInfo{kind: rowCount, key: "count"})
+	}
+	return out
+}

@@ -1,0 +1,84 @@
+//go:build cgo && !purego
+
+package optimise
+
+import (
+	"fmt"
+
+	"lipoplan/optimise/coin"
+)
+
+// defaultEngine is COIN-OR CLP for LPs and CBC for MILPs.
+func defaultEngine() engine { return coinEngine{} }
+
+// coinEngine solves through the optimise/coin binding. Every C model is
+// created, used and closed inside one call.
+type coinEngine struct{}
+
+func (coinEngine) name() string     { return "clp" }
+func (coinEngine) milpName() string { return "cbc" }
+
+func (m *model) coinProblem() *coin.Problem {
+	c := m.csc()
+	return &coin.Problem{
+		Cols: m.nCols, Rows: m.nRows,
+		Start: c.start, Index: c.index, Value: c.value,
+		ColLower: m.colLo, ColUpper: m.colUp, Obj: m.obj,
+		RowLower: m.rowLo, RowUpper: m.rowUp,
+		Integer: m.integer,
+	}
+}
+
+func (coinEngine) solveLP(m *model) (*solution, error) {
+	lp := coin.NewLP()
+	defer lp.Close()
+	if err := lp.Load(m.coinProblem()); err != nil {
+		return nil, fmt.Errorf("clp: %w", err)
+	}
+	st := lp.Solve()
+	switch st {
+	case coin.Infeasible:
+		return &solution{status: solInfeasible}, nil
+	case coin.Unbounded:
+		return &solution{status: solUnbounded}, nil
+	case coin.Optimal:
+	default:
+		return nil, fmt.Errorf("clp: solve %s after %d iterations", st, lp.Iterations())
+	}
+	s := &solution{
+		status: solOptimal,
+		obj:    lp.Objective(),
+		x:      lp.ColSolution(nil),
+		act:    lp.RowActivity(nil),
+		y:      lp.RowPrice(nil),
+		d:      lp.ReducedCost(nil),
+		basis:  make([]varState, m.nCols+m.nRows),
+	}
+	for j := 0; j < m.nCols; j++ {
+		s.basis[j] = classify(lp.ColStatus(j) == coin.Basic, s.x[j], m.colLo[j], m.colUp[j])
+	}
+	for i := 0; i < m.nRows; i++ {
+		s.basis[m.nCols+i] = classify(lp.RowStatus(i) == coin.Basic, s.act[i], m.rowLo[i], m.rowUp[i])
+	}
+	return s, nil
+}
+
+func (coinEngine) solveMILP(m *model) (*solution, error) {
+	mp := coin.NewMIP()
+	defer mp.Close()
+	if err := mp.Load(m.coinProblem()); err != nil {
+		return nil, fmt.Errorf("cbc: %w", err)
+	}
+	mp.SetMaxSeconds(60)
+	switch st := mp.Solve(); st {
+	case coin.Infeasible:
+		return &solution{status: solInfeasible}, nil
+	case coin.Unbounded:
+		return &solution{status: solUnbounded}, nil
+	case coin.Optimal:
+	default:
+		return nil, fmt.Errorf("cbc: branch and bound %s (time limit 60 s)", st)
+	}
+	x := mp.ColSolution(nil)
+	return &solution{status: solOptimal, obj: mp.Objective(), x: x, act: m.activity(x, nil)}, nil
+}

@@ -1,0 +1,6 @@
+//go:build !cgo || purego
+
+package optimise
+
+// defaultEngine is gonum's simplex: the build has no cgo or asked for purego.
+func defaultEngine() engine { return gonumEngine{} }

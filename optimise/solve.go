@@ -1,0 +1,281 @@
+package optimise
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"sort"
+
+	"lipoplan/blend"
+	"lipoplan/catalogue"
+)
+
+func solve(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result, error) {
+	return solveWith(defaultEngine(), cat, spec, opt)
+}
+
+// solveWith is Solve on a chosen engine.
+//
+// Without integer rules the base LP is solved once; its duals, reduced
+// costs and basis give shadow prices and cost ranging. With integer rules
+// the MILP (CBC) picks which stocks enter; the LP with those choices fixed
+// (excluded stocks at 0, included ones at >= min_if_used) is then solved for
+// duals and ranging, the usual way to price a MILP answer. max_stocks is
+// priced by solving again with one stock more.
+func solveWith(eng engine, cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result, error) {
+	base, lay, err := build(cat, spec)
+	if err != nil {
+		return nil, err
+	}
+	res := &Result{Engine: eng.name(), Currency: cat.Currency, Spec: spec.Name, Batch: spec.Batch}
+	lpm := base
+	var choice []bool
+	if lay.rules.Active() {
+		res.Engine = eng.milpName() + "+" + eng.name()
+		s, err := solveRules(eng, base, lay, lay.rules)
+		if err != nil {
+			return nil, err
+		}
+		if s.status != solOptimal {
+			return infeasible(eng, res, base, lay)
+		}
+		choice = lay.choices(s.x)
+		lpm = lay.fixChoices(base, choice)
+	}
+	sol, err := eng.solveLP(lpm)
+	if err != nil {
+		return nil, fmt.Errorf("optimise %s: %w", specWhere(spec), err)
+	}
+	switch sol.status {
+	case solInfeasible:
+		return infeasible(eng, res, base, lay)
+	case solUnbounded:
+		return nil, fmt.Errorf("optimise %s: the programme is unbounded, which a blend with shares adding to 100 %% cannot be", specWhere(spec))
+	}
+	res.Status = Optimal
+	if err := lay.report(res, lpm, sol, choice, opt); err != nil {
+		return nil, err
+	}
+	if lay.rules.MaxStocks > 0 {
+		if err := lay.priceMaxStocks(eng, base, res); err != nil {
+			return nil, err
+		}
+	}
+	return res, nil
+}
+
+// solveRules solves the MILP of base with the given rules.
+func solveRules(eng engine, base *model, lay *layout, rules catalogue.Rules) (*solution, error) {
+	saved := lay.rules
+	lay.rules = rules
+	defer func() { lay.rules = saved }()
+	mm := lay.withRules(base, func(j int) float64 { return math.Min(base.colUp[j], 100) })
+	s, err := eng.solveMILP(mm)
+	if errors.Is(err, errNoMILP) {
+		return nil, &catalogue.BadInput{Err: fmt.Errorf("%s: [rules]: %w", specWhere(lay.spec), err)}
+	}
+	if err != nil {
+		return nil, fmt.Errorf("optimise %s: %w", specWhere(lay.spec), err)
+	}
+	return s, nil
+}
+
+func infeasible(eng engine, res *Result, base *model, lay *layout) (*Result, error) {
+	res.Status = Infeasible
+	r, err := lay.relaxation(eng, base)
+	if err != nil {
+		return nil, err
+	}
+	res.Relaxation = r
+	return res, nil
+}
+
+// choices reads which stocks the MILP put in the blend.
+func (l *layout) choices(x []float64) []bool {
+	out := make([]bool, l.n())
+	for j, c := range l.used {
+		out[j] = c >= 0 && x[c] > 0.5
+	}
+	return out
+}
+
+// fixChoices is base with the integer choices fixed: a stock left out is
+// bounded to 0, a stock in use to at least min_if_used.
+func (l *layout) fixChoices(base *model, choice []bool) *model {
+	m := base.clone()
+	for j, in := range choice {
+		if !in {
+			m.colLo[j], m.colUp[j] = 0, 0
+		} else if l.rules.MinIfUsed > m.colLo[j] {
+			m.colLo[j] = math.Min(l.rules.MinIfUsed, m.colUp[j])
+		}
+	}
+	return m
+}
+
+// tolerances for reading an answer.
+const (
+	usedTol = 1e-7 // a share above this % is in the blend
+)
+
+func near(v, b float64) bool { return math.Abs(v-b) <= 1e-6*(1+math.Abs(b)) }
+
+// report fills res from an optimal LP solution of m.
+func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt Options) error {
+	n := l.n()
+	batch := l.spec.Batch
+	var parts []blend.Part
+	var cost float64
+	for j := 0; j < n; j++ {
+		x := math.Max(sol.x[j], 0)
+		s := l.cols[j].stock
+		cost += s.Price * x / 100
+		if x > usedTol {
+			res.Blend = append(res.Blend, Line{Stock: s.ID, Name: s.Name, Pct: x, Tonnes: x * batch / 100})
+			parts = append(parts, blend.Part{Stock: s, Pct: x})
+		}
+	}
+	sort.SliceStable(res.Blend, func(a, b int) bool { return res.Blend[a].Pct > res.Blend[b].Pct })
+	res.CostPerTonne = cost
+	res.BatchCost = cost * batch
+	temps := opt.Temps
+	if temps == nil {
+		extra := make([]float64, len(l.spec.SFC))
+		for i, s := range l.spec.SFC {
+			extra[i] = s.Temp
+		}
+		temps = blend.Temps(extra...)
+	}
+	props, err := blend.Mix(parts, temps)
+	if err != nil {
+		return fmt.Errorf("optimise %s: properties of the blend: %w", specWhere(l.spec), err)
+	}
+	res.Properties = props
+
+	w := words{cur: l.cat.Currency, tiny: 1e-7 * math.Max(1, cost)}
+	for i := 1; i < m.nRows; i++ { // row 0 is the sum
+		ri := l.rows[i]
+		v, y := sol.act[i], sol.y[i]
+		if ri.bound.HasMin() {
+			lr := LimitReport{Name: ri.key + ".min", Value: v, Bound: ri.bound.Min, Binding: near(v, ri.bound.Min)}
+			if y > 0 {
+				lr.ShadowPrice = -y
+			}
+			lr.Explain = w.limit(lr, ri.label, ri.unit, false)
+			res.Limits = append(res.Limits, lr)
+		}
+		if ri.bound.HasMax() {
+			lr := LimitReport{Name: ri.key + ".max", Value: v, Bound: ri.bound.Max, Binding: near(v, ri.bound.Max)}
+			if y < 0 {
+				lr.ShadowPrice = -y
+			}
+			lr.Explain = w.limit(lr, ri.label, ri.unit, true)
+			res.Limits = append(res.Limits, lr)
+		}
+	}
+
+	var minDose float64 // Σ d_j of stocks held at min_if_used
+	minUsed := math.Inf(1)
+	for j := 0; j < n; j++ {
+		c := l.cols[j]
+		x, d := math.Max(sol.x[j], 0), sol.d[j]
+		id := c.stock.ID
+		atLo := sol.basis[j] == stLower || sol.basis[j] == stFixed && d > 0
+		atUp := sol.basis[j] == stUpper || sol.basis[j] == stFixed && d < 0
+		ruleLo := choice != nil && choice[j] && l.rules.MinIfUsed > 0 && m.colLo[j] == math.Min(l.rules.MinIfUsed, m.colUp[j]) &&
+			(!c.use.HasMin() || l.rules.MinIfUsed > c.use.Min)
+		if choice != nil && choice[j] {
+			minUsed = math.Min(minUsed, x)
+			if ruleLo && atLo {
+				minDose += d
+			}
+		}
+		if c.use.HasMin() {
+			lr := LimitReport{Name: "use." + id + ".min", Value: x, Bound: c.use.Min, Binding: near(x, c.use.Min)}
+			if atLo && !ruleLo && m.colLo[j] == c.use.Min {
+				lr.ShadowPrice = -d
+			}
+			lr.Explain = w.useLimit(lr, id, false)
+			res.Limits = append(res.Limits, lr)
+		}
+		useTight := c.use.HasMax() && c.use.Max <= c.availPct
+		if c.use.HasMax() {
+			lr := LimitReport{Name: "use." + id + ".max", Value: x, Bound: c.use.Max, Binding: near(x, c.use.Max)}
+			if atUp && useTight && m.colUp[j] == c.use.Max {
+				lr.ShadowPrice = -d
+			}
+			lr.Explain = w.useLimit(lr, id, true)
+			res.Limits = append(res.Limits, lr)
+		}
+		if c.stock.Limited() {
+			lr := LimitReport{Name: "avail." + id, Value: x * batch / 100, Bound: c.stock.Available, Binding: near(x, c.availPct)}
+			if atUp && !useTight && m.colUp[j] == c.availPct {
+				lr.ShadowPrice = -d * 100 / batch
+			}
+			lr.Explain = w.avail(lr, id, batch)
+			res.Limits = append(res.Limits, lr)
+		}
+	}
+	if choice != nil && l.rules.MinIfUsed > 0 {
+		if math.IsInf(minUsed, 1) {
+			minUsed = 0
+		}
+		lr := LimitReport{Name: "min_if_used", Value: minUsed, Bound: l.rules.MinIfUsed, Binding: near(minUsed, l.rules.MinIfUsed), ShadowPrice: -minDose}
+		lr.Explain = w.minIfUsed(lr)
+		res.Limits = append(res.Limits, lr)
+	}
+
+	// Cost ranging: objective coefficients are price/100, so a change δ
+	// of the coefficient is a price change of 100·δ.
+	f, ferr := newBasisFactor(m, sol.basis)
+	for j := 0; j < n; j++ {
+		s := l.cols[j].stock
+		r := Range{Stock: s.ID, InBlend: sol.x[j] > usedTol, Price: s.Price, PriceLow: math.Inf(-1), PriceHigh: math.Inf(1)}
+		switch {
+		case choice != nil && !choice[j]:
+			// Left out by the integer choice: the price at which it would
+			// pay to take it in at the margin, rules permitting.
+			if d := sol.d[j]; d > 0 {
+				r.PriceLow = s.Price - 100*d
+			}
+		case ferr == nil:
+			lo, hi, err := f.costRange(j, sol.basis, sol.d, sol.y)
+			if err != nil {
+				return fmt.Errorf("optimise %s: ranging %q: %w", specWhere(l.spec), s.ID, err)
+			}
+			r.PriceLow, r.PriceHigh = s.Price+100*lo, s.Price+100*hi
+		default:
+			return fmt.Errorf("optimise %s: ranging: %w", specWhere(l.spec), ferr)
+		}
+		res.Ranging = append(res.Ranging, r)
+	}
+	return nil
+}
+
+// priceMaxStocks sets the shadow price of max_stocks: the saving per tonne
+// from allowing one stock more (a finite difference, as the rule is an
+// integer), by solving the MILP again with max_stocks + 1.
+func (l *layout) priceMaxStocks(eng engine, base *model, res *Result) error {
+	r := l.rules
+	used := len(res.Blend)
+	lr := LimitReport{Name: "max_stocks", Value: float64(used), Bound: float64(r.MaxStocks), Binding: used >= r.MaxStocks}
+	if lr.Binding && r.MaxStocks < l.n() {
+		more := r
+		more.MaxStocks++
+		s, err := solveRules(eng, base, l, more)
+		if err != nil {
+			return err
+		}
+		if s.status == solOptimal {
+			var c float64
+			for j := 0; j < l.n(); j++ {
+				c += l.cols[j].stock.Price * math.Max(s.x[j], 0) / 100
+			}
+			lr.ShadowPrice = math.Max(res.CostPerTonne-c, 0)
+		}
+	}
+	w := words{cur: l.cat.Currency, tiny: 1e-7 * math.Max(1, res.CostPerTonne)}
+	lr.Explain = w.maxStocks(lr)
+	res.Limits = append(res.Limits, lr)
+	return nil
+}
