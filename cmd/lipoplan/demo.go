@@ -1,0 +1,118 @@
+package main
+
+import (
+	"fmt"
+	"os"
+	"path/filepath"
+	"sort"
+
+	"lipoplan/blend"
+	"lipoplan/catalogue"
+	"lipoplan/optimise"
+)
+
+func (a *app) demo(args []string) error {
+	fs := a.newFlags("demo", "[--write DIR] [--stocks-table]",
+		"Solve the embedded demo scenario (an invented plant and its stocks) and print the report.\n"+
+			"--write saves the demo stock catalogue and specs as TOML files to start your own.")
+	write := fs.String("write", "", "save the demo files into this folder instead of solving")
+	table := fs.Bool("stocks-table", true, "print the property table of the demo stocks first")
+	if err := a.parse(fs, args); err != nil {
+		return err
+	}
+	if *write != "" {
+		return a.writeDemo(*write)
+	}
+	cat := catalogue.DemoStocks()
+	if *table {
+		fmt.Fprintln(a.stdout, "Demo stocks (invented plant; typical compositions, invented prices)")
+		fmt.Fprintln(a.stdout)
+		a.stockTable(cat)
+		fmt.Fprintln(a.stdout)
+	}
+	return a.demoSolve(cat)
+}
+
+// stockTable prints one line per stock: price, stock on hand and the main
+// calculated properties.
+func (a *app) stockTable(cat *catalogue.Catalogue) {
+	w := a.stdout
+	fmt.Fprintf(w, "  %-12s %-30s %8s %8s %6s %5s %5s %5s %6s %6s\n",
+		"id", "name", cat.Currency+"/t", "on hand", "IV", "SAFA", "trans", "Cox", "SFC20", "SFC35")
+	for i := range cat.Stocks {
+		s := &cat.Stocks[i]
+		p := blend.Profile(s.FattyAcids)
+		avail := "any"
+		if s.Limited() {
+			avail = fmt.Sprintf("%.0f t", s.Available)
+		}
+		fmt.Fprintf(w, "  %-12s %-30s %8.0f %8s %6.1f %5.1f %5.1f %5.2f %6s %6s\n",
+			s.ID, clip(s.Name, 30), s.Price, avail, p.IV, p.SAFA, p.Trans, p.Cox, sfcCell(s, 20), sfcCell(s, 35))
+	}
+}
+
+func sfcCell(s *catalogue.Stock, t float64) string {
+	v, ok := s.SFC.At(t)
+	if !ok {
+		return "n/a"
+	}
+	return fmt.Sprintf("%.1f", v)
+}
+
+func clip(s string, n int) string {
+	r := []rune(s)
+	if len(r) <= n {
+		return s
+	}
+	return string(r[:n-1]) + "…"
+}
+
+// writeDemo saves the embedded demo files into dir, atomically, never
+// overwriting a file that is already there.
+func (a *app) writeDemo(dir string) error {
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return catalogue.Badf("--write %s: cannot create the folder: %v", dir, err)
+	}
+	files := catalogue.DemoFiles()
+	names := make([]string, 0, len(files))
+	for n := range files {
+		names = append(names, n)
+	}
+	sort.Strings(names)
+	for _, n := range names {
+		path := filepath.Join(dir, n)
+		if _, err := os.Stat(path); err == nil {
+			return catalogue.Badf("--write: %s already exists; choose an empty folder or remove the file", path)
+		}
+	}
+	for _, n := range names {
+		path := filepath.Join(dir, n)
+		if err := catalogue.WriteFileAtomic(path, files[n], 0o644); err != nil {
+			return fmt.Errorf("writing %s: %w", path, err)
+		}
+		fmt.Fprintf(a.stdout, "wrote %s\n", path)
+	}
+	return nil
+}
+
+// demoSolve solves every embedded demo spec and prints its report.
+func (a *app) demoSolve(cat *catalogue.Catalogue) error {
+	infeasible := false
+	for _, spec := range catalogue.DemoSpecs() {
+		res, err := optimise.Solve(cat, spec, optimise.Options{})
+		if err != nil {
+			return fmt.Errorf("demo spec %q: %w", spec.Name, err)
+		}
+		fmt.Fprintf(a.stdout, "== %s (%.0f t batch): %s\n", spec.Name, spec.Batch, res.Status)
+		for _, l := range res.Blend {
+			fmt.Fprintf(a.stdout, "  %-10s %6.2f %%  %7.2f t\n", l.Stock, l.Pct, l.Tonnes)
+		}
+		fmt.Fprintf(a.stdout, "  cost %.2f %s/t\n\n", res.CostPerTonne, res.Currency)
+		infeasible = infeasible || res.Status != optimise.Optimal
+	}
+	fmt.Fprintln(a.stdout, cautionLine)
+	if infeasible {
+		return errInfeasible
+	}
+	return nil
+}

@@ -1,0 +1,136 @@
+package main
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strconv"
+	"strings"
+
+	"lipoplan/blend"
+	"lipoplan/catalogue"
+)
+
+// stocks loads the catalogue at path ("" = the embedded demo stocks). Warnings
+// go to stderr; errors come back as catalogue.Problems (exit 2).
+func (a *app) stocks(path string) (*catalogue.Catalogue, error) {
+	if path == "" {
+		return catalogue.DemoStocks(), nil
+	}
+	cat, ps := catalogue.LoadStocks(path)
+	a.warn(ps)
+	if len(ps.Errors()) > 0 {
+		return nil, ps.Errors()
+	}
+	return cat, nil
+}
+
+// spec loads the spec at path ("" = the first embedded demo spec).
+func (a *app) spec(path string, cat *catalogue.Catalogue) (*catalogue.Spec, error) {
+	if path == "" {
+		specs := catalogue.DemoSpecs()
+		if len(specs) == 0 {
+			return nil, fmt.Errorf("the embedded demo has no spec")
+		}
+		return specs[0], nil
+	}
+	s, ps := catalogue.LoadSpec(path, cat)
+	a.warn(ps)
+	if len(ps.Errors()) > 0 {
+		return nil, ps.Errors()
+	}
+	return s, nil
+}
+
+func (a *app) warn(ps catalogue.Problems) {
+	for _, p := range ps.Warnings() {
+		fmt.Fprintln(a.stderr, "lipoplan: "+p.String())
+	}
+}
+
+// parseUse reads --use "id=40,id2=60" (% by mass) against the catalogue.
+func parseUse(s string, cat *catalogue.Catalogue) ([]blend.Part, error) {
+	if strings.TrimSpace(s) == "" {
+		return nil, catalogue.Badf("--use is required: give stock shares as \"id=40,id2=60\" (%% by mass); stock ids: %s", stockIDs(cat))
+	}
+	var parts []blend.Part
+	seen := map[string]bool{}
+	for _, item := range strings.Split(s, ",") {
+		item = strings.TrimSpace(item)
+		if item == "" {
+			continue
+		}
+		id, val, ok := strings.Cut(item, "=")
+		id = strings.TrimSpace(id)
+		if !ok {
+			return nil, catalogue.Badf("--use: %q has no share; write it as %s=40", item, id)
+		}
+		st, found := cat.Find(id)
+		if !found {
+			return nil, catalogue.Badf("--use: no stock %q in %s; stock ids: %s", id, catName(cat), stockIDs(cat))
+		}
+		if seen[id] {
+			return nil, catalogue.Badf("--use: stock %q is named twice; give each stock once", id)
+		}
+		seen[id] = true
+		pct, err := strconv.ParseFloat(strings.TrimSpace(val), 64)
+		if err != nil || pct < 0 || math.IsNaN(pct) || math.IsInf(pct, 0) {
+			return nil, catalogue.Badf("--use: share of %q is %q; give a number >= 0 (%% by mass)", id, val)
+		}
+		parts = append(parts, blend.Part{Stock: st, Pct: pct})
+	}
+	var total float64
+	for _, p := range parts {
+		total += p.Pct
+	}
+	if total <= 0 {
+		return nil, catalogue.Badf("--use: the shares add up to 0; give at least one stock a share above 0")
+	}
+	return parts, nil
+}
+
+func catName(cat *catalogue.Catalogue) string {
+	if cat.File == "" {
+		return "the demo stocks"
+	}
+	return cat.File
+}
+
+func stockIDs(cat *catalogue.Catalogue) string {
+	ids := make([]string, len(cat.Stocks))
+	for i, s := range cat.Stocks {
+		ids[i] = s.ID
+	}
+	return strings.Join(ids, ", ")
+}
+
+// parseTemps reads --temps "5,10,37"; "" gives nil (defaults apply).
+func parseTemps(s string) ([]float64, error) {
+	if strings.TrimSpace(s) == "" {
+		return nil, nil
+	}
+	var out []float64
+	for _, f := range strings.Split(s, ",") {
+		f = strings.TrimSpace(f)
+		if f == "" {
+			continue
+		}
+		t, err := strconv.ParseFloat(f, 64)
+		if err != nil || math.IsNaN(t) || t < -40 || t > 100 {
+			return nil, catalogue.Badf("--temps: %q is not a temperature in deg C between -40 and 100; write e.g. --temps \"5,10,37\"", f)
+		}
+		out = append(out, t)
+	}
+	sort.Float64s(out)
+	return dedupe(out), nil
+}
+
+func dedupe(ts []float64) []float64 {
+	var out []float64
+	for i, t := range ts {
+		if i == 0 || t != ts[i-1] {
+			out = append(out, t)
+		}
+	}
+	return out
+}

@@ -1,0 +1,149 @@
+// Command lipoplan finds the cheapest blend of edible-fat stocks that meets a
+// product specification, shows what interesterification does to it, and
+// serves a terminal what-if workspace. See README.md.
+package main
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"sort"
+	"strings"
+
+	"lipoplan/catalogue"
+)
+
+// Exit codes of the CLI contract (DESIGN section 4).
+const (
+	exitOK         = 0
+	exitInternal   = 1
+	exitBadInput   = 2
+	exitInfeasible = 3
+)
+
+// errInfeasible is returned by a command whose spec cannot be met after it
+// has printed the diagnosis; main turns it into exit code 3.
+var errInfeasible = errors.New("the spec cannot be met")
+
+// app carries the output streams and settings of one run; commands write
+// only through it so tests can capture them.
+type app struct {
+	stdout io.Writer
+	stderr io.Writer
+	color  bool // ANSI colour allowed (a terminal and NO_COLOR unset)
+}
+
+// command is one subcommand.
+type command struct {
+	name    string
+	summary string
+	run     func(a *app, args []string) error
+}
+
+func commands() []command {
+	cs := []command{
+		{"demo", "solve the embedded demo scenario and print the report", (*app).demo},
+		{"check", "validate a stock catalogue and a spec; print every problem", (*app).check},
+		{"mix", "properties of a given mix of stocks", (*app).mix},
+		{"tags", "TAG distribution of a mix, native or after interesterification", (*app).tags},
+		// further commands add their line here
+	}
+	sort.SliceStable(cs, func(i, j int) bool { return order(cs[i].name) < order(cs[j].name) })
+	return cs
+}
+
+var commandOrder = []string{"demo", "check", "mix", "tags", "solve", "plan", "sweep", "explore", "serve"}
+
+func order(name string) int {
+	for i, n := range commandOrder {
+		if n == name {
+			return i
+		}
+	}
+	return len(commandOrder)
+}
+
+func main() {
+	a := &app{stdout: os.Stdout, stderr: os.Stderr, color: colorAllowed(os.Stdout)}
+	os.Exit(a.main(os.Args[1:]))
+}
+
+// main runs one command line and returns the exit code. It never lets a panic
+// escape as a Go trace: a fault becomes exit 1 with a one-line message.
+func (a *app) main(args []string) (code int) {
+	defer func() {
+		if r := recover(); r != nil {
+			fmt.Fprintf(a.stderr, "lipoplan: internal fault: %v (please report it with the command line and input files)\n", r)
+			code = exitInternal
+		}
+	}()
+	if len(args) == 0 || args[0] == "-h" || args[0] == "--help" || args[0] == "help" {
+		if len(args) > 1 && args[0] == "help" {
+			return a.main([]string{args[1], "--help"})
+		}
+		a.usage(a.stdout)
+		if len(args) == 0 {
+			return exitBadInput
+		}
+		return exitOK
+	}
+	for _, c := range commands() {
+		if c.name == args[0] {
+			return a.exit(c.run(a, args[1:]))
+		}
+	}
+	fmt.Fprintf(a.stderr, "lipoplan: unknown command %q; run 'lipoplan --help' for the list\n", args[0])
+	return exitBadInput
+}
+
+func (a *app) exit(err error) int {
+	switch {
+	case err == nil:
+		return exitOK
+	case errors.Is(err, errHelp):
+		return exitOK
+	case errors.Is(err, errInfeasible):
+		return exitInfeasible
+	case errors.Is(err, errUsage):
+		return exitBadInput
+	case catalogue.IsBadInput(err):
+		fmt.Fprintln(a.stderr, prefixLines(err.Error()))
+		return exitBadInput
+	default:
+		fmt.Fprintf(a.stderr, "lipoplan: internal fault: %v\n", err)
+		return exitInternal
+	}
+}
+
+func prefixLines(s string) string {
+	lines := strings.Split(strings.TrimRight(s, "\n"), "\n")
+	for i, l := range lines {
+		lines[i] = "lipoplan: " + l
+	}
+	return strings.Join(lines, "\n")
+}
+
+func (a *app) usage(w io.Writer) {
+	fmt.Fprintln(w, "lipoplan — cheapest edible-fat blends that meet a spec")
+	fmt.Fprintln(w)
+	fmt.Fprintln(w, "Usage: lipoplan <command> [flags]   (every command takes --help)")
+	fmt.Fprintln(w)
+	for _, c := range commands() {
+		fmt.Fprintf(w, "  %-8s %s\n", c.name, c.summary)
+	}
+	fmt.Fprintln(w)
+	fmt.Fprintln(w, "--stocks and --spec default to the embedded demo data. Exit codes: 0 done, 2 bad input,")
+	fmt.Fprintln(w, "3 spec cannot be met (diagnosis printed), 1 internal fault.")
+}
+
+func colorAllowed(f *os.File) bool {
+	if _, ok := os.LookupEnv("NO_COLOR"); ok {
+		return false
+	}
+	st, err := f.Stat()
+	if err != nil {
+		return false
+	}
+	return st.Mode()&os.ModeCharDevice != 0
+}

@@ -1,0 +1,136 @@
+package main
+
+import (
+	"bytes"
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"lipoplan/blend"
+	"lipoplan/catalogue"
+)
+
+// run executes one command line in-process and returns the exit code and
+// what it printed.
+func run(t *testing.T, args ...string) (int, string, string) {
+	t.Helper()
+	var out, errb bytes.Buffer
+	code := (&app{stdout: &out, stderr: &errb}).main(args)
+	return code, out.String(), errb.String()
+}
+
+func TestHelpForEveryCommand(t *testing.T) {
+	for _, c := range commands() {
+		code, out, _ := run(t, c.name, "--help")
+		assert.Equal(t, 0, code, c.name)
+		assert.Contains(t, out, "Usage: lipoplan "+c.name, c.name)
+	}
+	code, out, _ := run(t, "--help")
+	assert.Equal(t, 0, code)
+	assert.Contains(t, out, "mix")
+}
+
+func TestUnknownCommandAndFlag(t *testing.T) {
+	code, _, errs := run(t, "blendify")
+	assert.Equal(t, 2, code)
+	assert.Contains(t, errs, `unknown command "blendify"`)
+	code, _, errs = run(t, "mix", "--colour")
+	assert.Equal(t, 2, code)
+	assert.Contains(t, errs, "colour")
+	assert.NotContains(t, errs, "goroutine", "never a Go trace")
+}
+
+func TestCheckDemoIsClean(t *testing.T) {
+	code, out, _ := run(t, "check")
+	assert.Equal(t, 0, code, out)
+	assert.Contains(t, out, "ok:")
+}
+
+// Every file of the bad corpus is answered with exit 2 and a message naming
+// the problem, never a trace.
+func TestCheckBadCorpus(t *testing.T) {
+	files, err := filepath.Glob("../../testdata/bad/*.toml")
+	require.NoError(t, err)
+	require.NotEmpty(t, files)
+	for _, f := range files {
+		raw, err := os.ReadFile(f)
+		require.NoError(t, err)
+		head := string(raw)
+		flag := "--stocks"
+		if strings.Contains(head, "# kind: spec") {
+			flag = "--spec"
+		}
+		code, out, errs := run(t, "check", flag, f)
+		assert.Equal(t, 2, code, "%s\n%s%s", f, out, errs)
+		assert.Contains(t, out, filepath.Base(f), "%s: the message names the file", f)
+		assert.NotContains(t, out+errs, "goroutine", f)
+		assert.NotContains(t, out+errs, "panic", f)
+	}
+}
+
+func TestMixJSONMatchesBlend(t *testing.T) {
+	cat := catalogue.DemoStocks()
+	require.GreaterOrEqual(t, len(cat.Stocks), 2)
+	a, b := cat.Stocks[0], cat.Stocks[1]
+	code, out, errs := run(t, "mix", "--use", a.ID+"=30,"+b.ID+"=70", "--format", "json")
+	require.Equal(t, 0, code, errs)
+	var got map[string]any
+	require.NoError(t, json.Unmarshal([]byte(out), &got))
+	for _, k := range []string{"fatty_acids", "iv", "sv", "safa", "mufa", "pufa", "trans", "cox", "sfc"} {
+		assert.Contains(t, got, k)
+	}
+	want, err := blend.Mix([]blend.Part{{Stock: &a, Pct: 30}, {Stock: &b, Pct: 70}}, blend.Temps())
+	require.NoError(t, err)
+	assert.InDelta(t, want.IV, got["iv"].(float64), 1e-3)
+	sfc := got["sfc"].(map[string]any)
+	if v, ok := want.SFC[20]; ok {
+		assert.InDelta(t, v, sfc["20"].(float64), 1e-3, `whole degrees are written as "20"`)
+	}
+}
+
+func TestMixText(t *testing.T) {
+	cat := catalogue.DemoStocks()
+	code, out, _ := run(t, "mix", "--use", cat.Stocks[0].ID+"=100")
+	require.Equal(t, 0, code)
+	assert.Contains(t, out, "AOCS Cd 1c-85")
+	assert.Contains(t, out, "Caution")
+}
+
+func TestMixBadInput(t *testing.T) {
+	for _, tc := range []struct{ use, want string }{
+		{"", "--use is required"},
+		{"nosuch=10", `no stock "nosuch"`},
+		{"x", "has no share"},
+		{catalogue.DemoStocks().Stocks[0].ID + "=abc", "give a number"},
+		{catalogue.DemoStocks().Stocks[0].ID + "=0", "add up to 0"},
+	} {
+		code, _, errs := run(t, "mix", "--use", tc.use)
+		assert.Equal(t, 2, code, tc.use)
+		assert.Contains(t, errs, tc.want, tc.use)
+	}
+	code, _, errs := run(t, "mix", "--use", catalogue.DemoStocks().Stocks[0].ID+"=1", "--temps", "hot")
+	assert.Equal(t, 2, code)
+	assert.Contains(t, errs, "--temps")
+	code, _, errs = run(t, "mix", "--stocks", "/nonexistent/stocks.toml", "--use", "a=1")
+	assert.Equal(t, 2, code)
+	assert.Contains(t, errs, "/nonexistent/stocks.toml")
+}
+
+func TestDemoWrite(t *testing.T) {
+	dir := t.TempDir()
+	code, out, errs := run(t, "demo", "--write", dir)
+	require.Equal(t, 0, code, errs)
+	assert.Contains(t, out, "wrote")
+	// what it wrote passes check
+	code, out, _ = run(t, "check", "--stocks", filepath.Join(dir, "stocks.toml"))
+	assert.Equal(t, 0, code, out)
+	// never overwrites
+	code, _, errs = run(t, "demo", "--write", dir)
+	assert.Equal(t, 2, code)
+	assert.Contains(t, errs, "already exists")
+}

@@ -1,0 +1,175 @@
+package main
+
+import (
+	"encoding/json"
+	"fmt"
+	"io"
+	"math"
+	"sort"
+	"strings"
+
+	"lipoplan/blend"
+	"lipoplan/catalogue"
+)
+
+func (a *app) mix(args []string) error {
+	fs := a.newFlags("mix", `--use "id=40,id2=60" [--stocks F] [--temps "10,20,35"] [--format text|json]`,
+		"Properties of a physical mix (% by mass): fatty-acid profile, calculated IV (AOCS Cd 1c-85),\n"+
+			"SV, SAFA/MUFA/PUFA, trans, omega-3, Cox value and SFC weighted from the stocks' measured curves.")
+	stocksPath := fs.String("stocks", "", "stock catalogue TOML (default: embedded demo stocks)")
+	use := fs.String("use", "", `shares by stock id, % by mass, e.g. "pko-r=40,ps-h=60"`)
+	temps := fs.String("temps", "", `SFC temperatures in deg C (default 10,15,...,45)`)
+	format := fs.String("format", "text", "text or json")
+	if err := a.parse(fs, args); err != nil {
+		return err
+	}
+	if err := checkFormat(*format, "text", "json"); err != nil {
+		return err
+	}
+	cat, err := a.stocks(*stocksPath)
+	if err != nil {
+		return err
+	}
+	parts, err := parseUse(*use, cat)
+	if err != nil {
+		return err
+	}
+	ts, err := parseTemps(*temps)
+	if err != nil {
+		return err
+	}
+	if ts == nil {
+		ts = blend.Temps()
+	}
+	p, err := blend.Mix(parts, ts)
+	if err != nil {
+		return catalogue.Badf("--use: %w", err)
+	}
+	if *format == "json" {
+		return writeJSON(a.stdout, propertiesJSON(p))
+	}
+	fmt.Fprintf(a.stdout, "Mix of %s\n\n", describeParts(parts))
+	writeProperties(a.stdout, p, ts)
+	fmt.Fprintln(a.stdout)
+	fmt.Fprintln(a.stdout, cautionLine)
+	return nil
+}
+
+// cautionLine is printed under every report that could reach production
+// (DESIGN section 10).
+const cautionLine = "Caution: calculated values are estimates; confirm by lab analysis (GC FAME, pulsed-NMR SFC) before use.\n" +
+	"Trans-fat, labelling and contaminant limits (e.g. 3-MCPD and glycidyl esters in refined palm products)\n" +
+	"are set by local food law; follow it and your licensed practice."
+
+func checkFormat(f string, allowed ...string) error {
+	for _, a := range allowed {
+		if f == a {
+			return nil
+		}
+	}
+	return catalogue.Badf("--format %q is not known; use one of %s", f, strings.Join(allowed, ", "))
+}
+
+func describeParts(parts []blend.Part) string {
+	var total float64
+	for _, p := range parts {
+		total += p.Pct
+	}
+	var items []string
+	for _, p := range parts {
+		items = append(items, fmt.Sprintf("%s %.1f %%", p.Stock.ID, 100*p.Pct/total))
+	}
+	return strings.Join(items, ", ")
+}
+
+// round keeps JSON numbers readable without losing meaningful precision.
+func round(v float64, digits int) float64 {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return v
+	}
+	s := math.Pow(10, float64(digits))
+	return math.Round(v*s) / s
+}
+
+// propertiesJSON is the stable JSON shape of mix properties (DESIGN section 4).
+func propertiesJSON(p blend.Properties) map[string]any {
+	fa := map[string]float64{}
+	for k, v := range p.FattyAcids {
+		fa[k] = round(v, 4)
+	}
+	sfc := map[string]float64{}
+	for t, v := range p.SFC {
+		sfc[catalogue.TempKey(t)] = round(v, 3)
+	}
+	out := map[string]any{
+		"fatty_acids":     fa,
+		"iv":              round(p.IV, 3),
+		"sv":              round(p.SV, 3),
+		"mean_molar_mass": round(p.MeanMolarMass, 2),
+		"safa":            round(p.SAFA, 4),
+		"mufa":            round(p.MUFA, 4),
+		"pufa":            round(p.PUFA, 4),
+		"trans":           round(p.Trans, 4),
+		"omega3":          round(p.Omega3, 4),
+		"cox":             round(p.Cox, 4),
+		"sfc":             sfc,
+	}
+	if len(p.SFCMissing) > 0 {
+		miss := map[string][]string{}
+		for t, ids := range p.SFCMissing {
+			miss[catalogue.TempKey(t)] = ids
+		}
+		out["sfc_missing"] = miss
+	}
+	return out
+}
+
+func writeJSON(w io.Writer, v any) error {
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	if err := enc.Encode(v); err != nil {
+		return fmt.Errorf("writing JSON: %w", err)
+	}
+	return nil
+}
+
+// writeProperties prints the property block shared by mix, demo and solve.
+func writeProperties(w io.Writer, p blend.Properties, temps []float64) {
+	fmt.Fprintf(w, "  IV (calc., AOCS Cd 1c-85) %7.1f      SV %6.1f mg KOH/g\n", p.IV, p.SV)
+	fmt.Fprintf(w, "  SAFA %5.1f %%   MUFA %5.1f %%   PUFA %5.1f %%   trans %4.1f %%   omega-3 %4.1f %%   Cox %5.2f\n",
+		p.SAFA, p.MUFA, p.PUFA, p.Trans, p.Omega3, p.Cox)
+	fmt.Fprintln(w)
+	fmt.Fprint(w, "  Fatty acids (wt% FAME):")
+	keys := catalogue.SortedKeys(p.FattyAcids)
+	for i, k := range keys {
+		if i%6 == 0 {
+			fmt.Fprint(w, "\n   ")
+		}
+		fmt.Fprintf(w, " %-7s%5.1f", k, p.FattyAcids[k])
+	}
+	fmt.Fprintln(w)
+	fmt.Fprintln(w)
+	fmt.Fprint(w, "  SFC (% solid, linear in measured curves)\n   ")
+	for _, t := range temps {
+		fmt.Fprintf(w, " %5s C", catalogue.TempKey(t))
+	}
+	fmt.Fprint(w, "\n   ")
+	for _, t := range temps {
+		if v, ok := p.SFC[t]; ok {
+			fmt.Fprintf(w, " %7.1f", v)
+		} else {
+			fmt.Fprintf(w, " %7s", "n/a")
+		}
+	}
+	fmt.Fprintln(w)
+	if len(p.SFCMissing) > 0 {
+		var ts []float64
+		for t := range p.SFCMissing {
+			ts = append(ts, t)
+		}
+		sort.Float64s(ts)
+		for _, t := range ts {
+			fmt.Fprintf(w, "    n/a at %s C: no measured SFC for %s\n", catalogue.TempKey(t), strings.Join(p.SFCMissing[t], ", "))
+		}
+	}
+}
