@@ -75,6 +75,15 @@ func TestClassesAddUp(t *testing.T) {
 	assert.InDelta(t, 0.5, p.Omega3, 1e-12)
 }
 
+// curve builds an SFC curve from temperature, solid pairs.
+func curve(pairs ...float64) catalogue.Curve {
+	var c catalogue.Curve
+	for i := 0; i+1 < len(pairs); i += 2 {
+		c = append(c, catalogue.Point{Temp: pairs[i], Solid: pairs[i+1]})
+	}
+	return c
+}
+
 func stock(id string, fa map[string]float64, sfc catalogue.Curve) *catalogue.Stock {
 	return &catalogue.Stock{ID: id, FattyAcids: fa, SFC: sfc, Available: math.Inf(1)}
 }
@@ -83,9 +92,9 @@ func stock(id string, fa map[string]float64, sfc catalogue.Curve) *catalogue.Sto
 // 0.7 x B for every linear property (common practice: mass balance).
 func TestMixIsLinear(t *testing.T) {
 	a := stock("a", map[string]float64{"C16:0": 45, "C18:0": 5, "C18:1": 40, "C18:2": 10},
-		catalogue.Curve{{10, 50}, {20, 26}, {30, 9}, {40, 2}})
+		curve(10, 50, 20, 26, 30, 9, 40, 2))
 	b := stock("b", map[string]float64{"C16:0": 4, "C18:0": 2, "C18:1": 62, "C18:2": 20, "C18:3": 10, "C20:1": 2},
-		catalogue.Curve{{10, 0}, {20, 0}, {30, 0}, {40, 0}})
+		curve(10, 0, 20, 0, 30, 0, 40, 0))
 	p, err := Mix([]Part{{a, 30}, {b, 70}}, []float64{10, 25, 40, 45})
 	require.NoError(t, err)
 	pa, pb := Profile(a.FattyAcids), Profile(b.FattyAcids)
