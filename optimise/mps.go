@@ -70,8 +70,17 @@ func writeAtomic(path string, b []byte) error {
 
 func num(v float64) string { return strconv.FormatFloat(v, 'g', 17, 64) }
 
-// mps renders the model in free MPS.
+// mps renders the model in free MPS. Names must be unique there; a repeated
+// row name (a spec listing the same limit twice) gets a "#2", "#3" suffix.
 func (m *model) mps(name string) []byte {
+	m = m.clone()
+	seen := map[string]int{"cost": 1}
+	for i, r := range m.rowName {
+		seen[r]++
+		if k := seen[r]; k > 1 {
+			m.rowName[i] = fmt.Sprintf("%s#%d", r, k)
+		}
+	}
 	var b bytes.Buffer
 	fmt.Fprintf(&b, "NAME %s\nROWS\n N cost\n", name)
 	for i := 0; i < m.nRows; i++ {
