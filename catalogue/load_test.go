@@ -260,3 +260,11 @@ pko = 1450
 	assert.Equal(t, 300.5, o.Orders[1].Tonnes)
 	assert.Equal(t, map[string]float64{"shea-st": 3100, "pko": 1450}, o.Purchase)
 }
+
+// The infeasible example spec in testdata (for relaxation demos) is itself
+// valid input against the demo catalogue: its problem is the numbers, not the file.
+func TestImpossibleSpecIsValidInput(t *testing.T) {
+	s, ps := LoadSpec(filepath.Join("..", "testdata", "impossible-laminating.toml"), DemoStocks())
+	require.Empty(t, ps, "%v", ps)
+	assert.Equal(t, "impossible-laminating", s.ID)
+}
