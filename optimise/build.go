@@ -323,3 +323,13 @@ func (l *layout) withRules(m *model, linkCap func(j int) float64) *model {
 	}
 	return out
 }
+
+// index is the column of stock id, or -1.
+func (l *layout) index(id string) int {
+	for j, c := range l.cols {
+		if c.stock.ID == id {
+			return j
+		}
+	}
+	return -1
+}
