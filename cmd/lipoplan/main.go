@@ -47,6 +47,8 @@ func commands() []command {
 		{"check", "validate a stock catalogue and a spec; print every problem", (*app).check},
 		{"mix", "properties of a given mix of stocks", (*app).mix},
 		{"tags", "TAG distribution of a mix, native or after interesterification", (*app).tags},
+		{"explore", "terminal what-if workspace", (*app).explore},
+		{"serve", "serve the workspace to a team over SSH", (*app).serve},
 		// further commands add their line here
 	}
 	sort.SliceStable(cs, func(i, j int) bool { return order(cs[i].name) < order(cs[j].name) })

@@ -1,0 +1,307 @@
+package tui
+
+import (
+	"fmt"
+	"math"
+	"strings"
+
+	"lipoplan/catalogue"
+)
+
+// cell kinds of the SFC chart canvas.
+type cellKind uint8
+
+const (
+	cellEmpty cellKind = iota
+	cellGrid
+	cellBand
+	cellCurve
+	cellIn  // curve point at a spec temperature, inside the band
+	cellOut // curve point at a spec temperature, outside the band
+)
+
+// sfcChart is the canvas of the SFC panel: the spec band as shaded columns
+// at the spec temperatures and the blend's curve across the range.
+type sfcChart struct {
+	w, h   int
+	lo, hi float64 // temperature range, °C
+	top    float64 // % solid at the top row
+	cells  []cellKind
+}
+
+func (c *sfcChart) col(t float64) int {
+	if c.hi <= c.lo {
+		return 0
+	}
+	return int(math.Round((t - c.lo) / (c.hi - c.lo) * float64(c.w-1)))
+}
+
+func (c *sfcChart) row(v float64) int {
+	r := int(math.Round((1 - v/c.top) * float64(c.h-1)))
+	return min(max(r, 0), c.h-1)
+}
+
+func (c *sfcChart) set(x, y int, k cellKind) {
+	if x < 0 || x >= c.w || y < 0 || y >= c.h {
+		return
+	}
+	if i := y*c.w + x; k > c.cells[i] {
+		c.cells[i] = k
+	}
+}
+
+// interp reads the curve at t (linear between grid points).
+func interp(pts []catalogue.Point, t float64) (float64, bool) {
+	return catalogue.Curve(pts).At(t)
+}
+
+// inBand reports whether v meets the spec limit l.
+func inBand(l catalogue.SFCLimit, v float64) bool {
+	const tol = 1e-6
+	return (!l.HasMin() || v >= l.Min-tol) && (!l.HasMax() || v <= l.Max+tol)
+}
+
+func (m *Model) sfcPanel(w, h int) []string {
+	st := m.styles
+	spec := m.sc.Spec
+	lo, hi := chartTemps(spec)
+	var pts []catalogue.Point
+	var gaps map[float64][]string
+	if m.snap.Feasible() {
+		pts, gaps = m.snap.Curve, m.snap.CurveGaps
+	}
+	top := 10.0
+	for _, l := range spec.SFC {
+		if l.HasMax() {
+			top = math.Max(top, l.Max)
+		} else if l.HasMin() {
+			top = math.Max(top, l.Min)
+		}
+	}
+	for _, p := range pts {
+		top = math.Max(top, p.Solid)
+	}
+	top = math.Min(100, math.Ceil(top/10)*10)
+	c := &sfcChart{w: max(10, w-8), h: max(3, h-5), lo: lo, hi: hi, top: top}
+	c.cells = make([]cellKind, c.w*c.h)
+	// faint grid at every 10 % solid
+	for v := 10.0; v < top; v += 10 {
+		y := c.row(v)
+		for x := 0; x < c.w; x += 2 {
+			c.set(x, y, cellGrid)
+		}
+	}
+	// spec band: three columns wide at each spec temperature
+	for _, l := range spec.SFC {
+		lo, hi := 0.0, top
+		if l.HasMin() {
+			lo = l.Min
+		}
+		if l.HasMax() {
+			hi = math.Min(l.Max, top)
+		}
+		x := c.col(l.Temp)
+		for y := c.row(hi); y <= c.row(lo); y++ {
+			for dx := -1; dx <= 1; dx++ {
+				c.set(x+dx, y, cellBand)
+			}
+		}
+	}
+	// blend curve, joined with vertical strokes where it falls steeply
+	prev := -1
+	for x := 0; x < c.w; x++ {
+		t := lo + float64(x)/float64(max(1, c.w-1))*(hi-lo)
+		v, ok := interp(pts, t)
+		if !ok {
+			prev = -1
+			continue
+		}
+		y := c.row(v)
+		c.set(x, y, cellCurve)
+		if prev >= 0 {
+			for yy := min(prev, y) + 1; yy < max(prev, y); yy++ {
+				c.set(x, yy, cellCurve)
+			}
+		}
+		prev = y
+	}
+	for _, l := range spec.SFC {
+		if v, ok := interp(pts, l.Temp); ok {
+			k := cellOut
+			if inBand(l, v) {
+				k = cellIn
+			}
+			c.set(c.col(l.Temp), c.row(v), k)
+		}
+	}
+
+	out := []string{" " + st.head.Render("SFC, % solid, against °C") + st.muted.Render(" · blend (linear in measured curves) and spec band")}
+	labels := map[int]string{}
+	step := 10.0
+	if float64(c.h-1)/(top/10) < 2 {
+		step = 20
+	}
+	for v := 0.0; v <= top+1e-9; v += step {
+		labels[c.row(v)] = fmt.Sprintf("%4.0f ", v)
+	}
+	for y := 0; y < c.h; y++ {
+		label, ok := labels[y]
+		if !ok {
+			label = "     "
+		}
+		out = append(out, st.muted.Render(label+"┤")+m.chartRow(c, y))
+	}
+	out = append(out, st.muted.Render("     └"+strings.Repeat("─", c.w)))
+	axis := []rune(strings.Repeat(" ", c.w+8))
+	for t := math.Ceil(lo/5) * 5; t <= hi; t += 5 {
+		s := catalogue.TempKey(t)
+		x := 6 + c.col(t) - len(s)/2
+		for i, r := range s {
+			if x+i >= 0 && x+i < len(axis) {
+				axis[x+i] = r
+			}
+		}
+	}
+	out = append(out, st.muted.Render(strings.TrimRight(string(axis), " ")))
+	out = append(out, " "+st.curve.Render("•")+" blend   "+st.band.Render("▒")+" spec band   "+
+		st.ok.Render("●")+" meets   "+st.bad.Render("✗")+" misses")
+	out = append(out, m.sfcSummary(pts, gaps))
+	return out
+}
+
+func (m *Model) chartRow(c *sfcChart, y int) string {
+	st := m.styles
+	var b strings.Builder
+	for x := 0; x < c.w; x++ {
+		switch c.cells[y*c.w+x] {
+		case cellEmpty:
+			b.WriteByte(' ')
+		case cellGrid:
+			b.WriteString(st.muted.Render("·"))
+		case cellBand:
+			b.WriteString(st.band.Render("▒"))
+		case cellCurve:
+			b.WriteString(st.curve.Render("•"))
+		case cellIn:
+			b.WriteString(st.ok.Render("●"))
+		case cellOut:
+			b.WriteString(st.bad.Render("✗"))
+		}
+	}
+	return b.String()
+}
+
+// sfcSummary is one line: the blend's SFC at each spec temperature.
+func (m *Model) sfcSummary(pts []catalogue.Point, gaps map[float64][]string) string {
+	st := m.styles
+	s := m.snap
+	switch {
+	case s == nil:
+		return st.muted.Render(" solving…")
+	case !s.Feasible():
+		return st.muted.Render(" No blend curve: the spec cannot be met (see 1 Blend).")
+	case len(pts) == 0:
+		return st.muted.Render(" No blend curve: a stock in the blend has no measured SFC.")
+	}
+	var b strings.Builder
+	b.WriteString(" ")
+	for _, l := range m.sc.Spec.SFC {
+		v, ok := interp(pts, l.Temp)
+		if !ok {
+			fmt.Fprintf(&b, "%s° no data  ", catalogue.TempKey(l.Temp))
+			continue
+		}
+		mark := st.ok.Render("✓")
+		if !inBand(l, v) {
+			mark = st.bad.Render("✗")
+		}
+		fmt.Fprintf(&b, "%s° %.1f%s  ", catalogue.TempKey(l.Temp), v, mark)
+	}
+	if len(gaps) > 0 {
+		b.WriteString(st.muted.Render(fmt.Sprintf("(%d °C points lack stock data)", len(gaps))))
+	}
+	return b.String()
+}
+
+// ---- 5 TAG classes ----
+
+func (m *Model) tagPanel(w, h int) []string {
+	st := m.styles
+	s := m.snap
+	switch {
+	case s == nil:
+		return []string{"", st.warn.Render(" Solving…")}
+	case !s.Feasible():
+		return []string{"", st.muted.Render(" No blend to analyse: the spec cannot be met (see 1 Blend).")}
+	}
+	cols := s.TAG.Columns
+	colW := 14
+	titles := map[string]string{"native": "as blended", "chemical": "chemical IE", "enzymatic": "enzymatic IE"}
+	head := " " + fit("class, mol %", 14)
+	for _, c := range cols {
+		head += rfit(titles[string(c.Method)], colW)
+	}
+	out := []string{" " + st.head.Render("TAG classes of the blend") +
+		st.muted.Render(" · S saturated, U unsaturated acid · IE interesterified"), st.muted.Render(head)}
+	type row struct {
+		name string
+		get  func(c TAGColumn) float64
+	}
+	rows := []row{
+		{"S3", func(c TAGColumn) float64 { return c.Classes.S3 }},
+		{"S2U", func(c TAGColumn) float64 { return c.Classes.S2U }},
+		{"  SUS", func(c TAGColumn) float64 { return c.Classes.SUS }},
+		{"  SSU", func(c TAGColumn) float64 { return c.Classes.SSU }},
+		{"SU2", func(c TAGColumn) float64 { return c.Classes.SU2 }},
+		{"U3", func(c TAGColumn) float64 { return c.Classes.U3 }},
+	}
+	for _, r := range rows {
+		line := " " + fit(r.name, 14)
+		for _, c := range cols {
+			if c.Err != nil {
+				line += rfit("—", colW)
+				continue
+			}
+			line += rfit(fmt.Sprintf("%.1f", r.get(c)), colW)
+		}
+		if barW := w - 16 - colW*len(cols) - 4; barW > 6 && len(cols) > 0 && cols[0].Err == nil {
+			line += "  " + st.band.Render(strings.Repeat("█", int(math.Round(r.get(cols[0])/100*float64(barW)))))
+		}
+		out = append(out, line)
+	}
+	out = append(out, "", " "+st.head.Render("Main TAGs")+st.muted.Render(" (mirror images merged, sn-2 kept; mol %)"))
+	for i := 0; i < topSpecies && len(out) < h-2; i++ {
+		line := " " + fit("", 14)
+		for _, c := range cols {
+			cell := ""
+			if c.Err == nil && i < len(c.Top) {
+				cell = fmt.Sprintf("%-6s%5.1f", c.Top[i].Tag, c.Top[i].MolPct)
+			}
+			line += rfit(cell, colW)
+		}
+		out = append(out, line)
+	}
+	var notes []string
+	for _, c := range cols {
+		if c.Err != nil {
+			notes = append(notes, c.Err.Error())
+		}
+		notes = append(notes, c.Notes...)
+	}
+	if len(notes) > 0 && len(out) < h {
+		out = append(out, st.muted.Render(fit(" Note: "+dedupe(notes)[0], w)))
+	}
+	return out
+}
+
+func dedupe(xs []string) []string {
+	seen := map[string]bool{}
+	var out []string
+	for _, x := range xs {
+		if !seen[x] {
+			seen[x] = true
+			out = append(out, x)
+		}
+	}
+	return out
+}

@@ -1,0 +1,147 @@
+package tui
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"time"
+
+	"lipoplan/blend"
+	"lipoplan/catalogue"
+	"lipoplan/optimise"
+)
+
+// Snapshot is everything the panels show about one evaluated Scenario. Views
+// read snapshots only; they never solve. A later stage (predicted SFC, a
+// reactor step) adds its own fields here and its own step in Evaluate.
+type Snapshot struct {
+	Rev      int       // edit revision this snapshot belongs to
+	Scenario *Scenario // what was evaluated (never changed afterwards)
+	Result   *optimise.Result
+	Err      error // the solve failed (bad input or an internal fault); Result is nil
+
+	// Curve is the blend's SFC on a 1 °C grid, linear in the stocks'
+	// measured curves; temperatures where a used stock has no measured value
+	// are left out and named in CurveGaps.
+	Curve     []catalogue.Point
+	CurveGaps map[float64][]string
+
+	TAG TAGView // TAG classes as blended and after interesterification
+
+	Took time.Duration // wall time of Evaluate
+}
+
+// Feasible reports whether the snapshot holds an optimal blend.
+func (s *Snapshot) Feasible() bool {
+	return s != nil && s.Err == nil && s.Result != nil && s.Result.Status == optimise.Optimal
+}
+
+// Limit finds the optimiser's report for a limit name such as "iv.max".
+func (s *Snapshot) Limit(name string) (optimise.LimitReport, bool) {
+	if s == nil || s.Result == nil {
+		return optimise.LimitReport{}, false
+	}
+	for _, l := range s.Result.Limits {
+		if l.Name == name {
+			return l, true
+		}
+	}
+	return optimise.LimitReport{}, false
+}
+
+// Line finds the blend line of stock id.
+func (s *Snapshot) Line(id string) (optimise.Line, bool) {
+	if s == nil || s.Result == nil {
+		return optimise.Line{}, false
+	}
+	for _, l := range s.Result.Blend {
+		if l.Stock == id {
+			return l, true
+		}
+	}
+	return optimise.Line{}, false
+}
+
+// Range finds the price ranging of stock id.
+func (s *Snapshot) Range(id string) (optimise.Range, bool) {
+	if s == nil || s.Result == nil {
+		return optimise.Range{}, false
+	}
+	for _, r := range s.Result.Ranging {
+		if r.Stock == id {
+			return r, true
+		}
+	}
+	return optimise.Range{}, false
+}
+
+// Evaluate solves sc and derives every panel's data. It never panics: a
+// fault inside a stage is returned in Snapshot.Err so the workspace keeps
+// drawing.
+func Evaluate(sc *Scenario, rev int) (snap *Snapshot) {
+	start := time.Now()
+	snap = &Snapshot{Rev: rev, Scenario: sc}
+	defer func() {
+		if r := recover(); r != nil {
+			snap.Result = nil
+			snap.Err = fmt.Errorf("internal fault while solving: %v", r)
+		}
+		snap.Took = time.Since(start)
+	}()
+	cat, spec := sc.Effective()
+	res, err := optimise.Solve(cat, spec, optimise.Options{})
+	if err != nil {
+		snap.Err = err
+		return snap
+	}
+	snap.Result = res
+	if res.Status != optimise.Optimal {
+		return snap
+	}
+	parts := blendParts(cat, res)
+	lo, hi := chartTemps(spec)
+	snap.Curve, snap.CurveGaps = curve(parts, lo, hi)
+	snap.TAG = tagView(parts)
+	return snap
+}
+
+// blendParts turns the optimal blend into blend.Parts of the catalogue.
+func blendParts(cat *catalogue.Catalogue, res *optimise.Result) []blend.Part {
+	var parts []blend.Part
+	for _, l := range res.Blend {
+		if l.Pct <= 0 {
+			continue
+		}
+		if st, ok := cat.Find(l.Stock); ok {
+			parts = append(parts, blend.Part{Stock: st, Pct: l.Pct})
+		}
+	}
+	return parts
+}
+
+// chartTemps spans the default SFC temperatures and the spec's, whole degrees.
+func chartTemps(spec *catalogue.Spec) (lo, hi float64) {
+	lo, hi = catalogue.DefaultTemps[0], catalogue.DefaultTemps[len(catalogue.DefaultTemps)-1]
+	for _, l := range spec.SFC {
+		lo = math.Min(lo, math.Floor(l.Temp))
+		hi = math.Max(hi, math.Ceil(l.Temp))
+	}
+	return lo, hi
+}
+
+func curve(parts []blend.Part, lo, hi float64) ([]catalogue.Point, map[float64][]string) {
+	if len(parts) == 0 {
+		return nil, nil
+	}
+	var temps []float64
+	for t := lo; t <= hi+1e-9; t++ {
+		temps = append(temps, t)
+	}
+	vals, gaps := blend.SFC(parts, temps)
+	out := make([]catalogue.Point, 0, len(vals))
+	for t, v := range vals {
+		out = append(out, catalogue.Point{Temp: t, Solid: v})
+	}
+	sort.Slice(out, func(i, j int) bool { return out[i].Temp < out[j].Temp })
+	return out, gaps
+}

@@ -1,0 +1,65 @@
+package tui
+
+import (
+	"errors"
+	"fmt"
+	"path/filepath"
+	"regexp"
+	"strings"
+)
+
+// Files is where a workspace may read and write. A local workspace may use any
+// path the user types; a served one is confined to Dir, takes plain file
+// names only, and writes nothing unless the server was started writable.
+type Files struct {
+	// Dir confines scenario names to this directory when Confined is set;
+	// otherwise relative paths are taken from the process's working directory.
+	Dir      string
+	Confined bool
+	// ReadOnly refuses every write: saving scenarios and writing back.
+	ReadOnly bool
+	// StocksPath and SpecPath are the files the scenario came from; empty for
+	// the embedded demo data. Writing back replaces them.
+	StocksPath string
+	SpecPath   string
+}
+
+// ErrReadOnly is returned for a write on a read-only workspace.
+var ErrReadOnly = errors.New("this workspace is read-only: the server was started without --writable, so nothing can be saved on it")
+
+var plainName = regexp.MustCompile(`^[A-Za-z0-9][A-Za-z0-9._-]{0,63}$`)
+
+// ScenarioPath resolves what the user typed into the file to read or write.
+// A confined workspace accepts plain names only ("laminating-2", with or
+// without ".toml") and never leaves Dir.
+func (f Files) ScenarioPath(name string) (string, error) {
+	name = strings.TrimSpace(name)
+	if name == "" {
+		return "", fmt.Errorf("type a file name for the scenario")
+	}
+	if !f.Confined {
+		if f.Dir != "" && !filepath.IsAbs(name) {
+			name = filepath.Join(f.Dir, name)
+		}
+		return name, nil
+	}
+	if !plainName.MatchString(name) || strings.Contains(name, "..") {
+		return "", fmt.Errorf("scenario name %q: use letters, digits, '.', '-' or '_' only (no folders); files live in the server's scenario folder", name)
+	}
+	if !strings.HasSuffix(name, ".toml") {
+		name += ".toml"
+	}
+	return filepath.Join(f.Dir, name), nil
+}
+
+// CanWriteBack reports whether the stocks and spec can be written to the
+// files they came from.
+func (f Files) CanWriteBack() error {
+	switch {
+	case f.ReadOnly:
+		return ErrReadOnly
+	case f.StocksPath == "" && f.SpecPath == "":
+		return fmt.Errorf("this workspace did not start from --stocks/--spec files, so there is nothing to write back (save a scenario with s instead)")
+	}
+	return nil
+}

@@ -1,0 +1,745 @@
+package tui
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+
+	"charm.land/bubbles/v2/help"
+	"charm.land/bubbles/v2/key"
+	tea "charm.land/bubbletea/v2"
+
+	"lipoplan/catalogue"
+)
+
+// panel is one screen of the workspace.
+type panel int
+
+const (
+	panelBlend panel = iota
+	panelStocks
+	panelLimits
+	panelSFC
+	panelTAG
+	numPanels
+)
+
+func (p panel) title() string {
+	return [...]string{"Blend", "Stocks", "Limits", "SFC curve", "TAG classes"}[p]
+}
+
+// Default size before the terminal reports its own.
+const (
+	defaultWidth  = 80
+	defaultHeight = 24
+	undoDepth     = 200
+)
+
+// promptKind says what the input line is asking for.
+type promptKind int
+
+const (
+	promptNone promptKind = iota
+	promptStock
+	promptBound
+	promptNewLimit
+	promptSave
+	promptOpen
+)
+
+type prompt struct {
+	kind  promptKind
+	stock string
+	field StockField
+	row   Row
+	side  Side
+}
+
+// snapshotMsg carries a finished evaluation back to Update.
+type snapshotMsg struct{ snap *Snapshot }
+
+// Model is the workspace: one Scenario with its undo history, the latest
+// Snapshot and what the user is looking at. Keys that do not edit never
+// solve; an edit starts one evaluation in the background (a tea.Cmd) and the
+// panels keep drawing the previous snapshot until it arrives.
+type Model struct {
+	files  Files
+	source string // where the scenario came from, for the header
+
+	sc         *Scenario
+	undo, redo []*Scenario
+	rev        int // revision of sc; bumped by every edit
+	snap       *Snapshot
+	dirty      bool // edits since the last save or load
+
+	width, height int
+	panel         panel
+	cursor        [numPanels]int
+	offset        [numPanels]int
+	col           int // stocks: price|available; limits: min|max
+
+	prompt   prompt
+	input    lineEdit
+	message  string
+	msgError bool
+	lastPath string
+	quitArm  bool // q pressed once with unsaved edits
+	editNote bool // the message describes an edit still to be costed
+	showKeys bool // the full key list is open
+
+	keys   keyMap
+	help   help.Model
+	styles styles
+}
+
+// New makes a workspace on copies of cat and spec. source names where they
+// came from (shown in the header); files says where it may read and write.
+func New(cat *catalogue.Catalogue, spec *catalogue.Spec, source string, files Files) *Model {
+	return NewWithScenario(NewScenario(cat, spec), source, files)
+}
+
+// NewWithScenario makes a workspace on sc (which it then owns).
+func NewWithScenario(sc *Scenario, source string, files Files) *Model {
+	h := help.New()
+	h.ShortSeparator = "  "
+	m := &Model{
+		files:  files,
+		source: source,
+		sc:     sc,
+		width:  defaultWidth,
+		height: defaultHeight,
+		keys:   newKeyMap(),
+		help:   h,
+		styles: newStyles(),
+	}
+	m.input = lineEdit{limit: 200, cursor: m.styles.cell, label: m.styles.key}
+	m.help.Styles.ShortKey = m.styles.key
+	m.help.Styles.ShortDesc = m.styles.muted
+	m.help.Styles.Ellipsis = m.styles.muted
+	return m
+}
+
+// Scenario returns the current scenario (do not modify it).
+func (m *Model) Scenario() *Scenario { return m.sc }
+
+// Snapshot returns the latest evaluation, or nil before the first arrives.
+func (m *Model) Snapshot() *Snapshot { return m.snap }
+
+// Pending reports whether an edit is still being evaluated.
+func (m *Model) Pending() bool { return m.snap == nil || m.snap.Rev < m.rev }
+
+// Message returns the status line text.
+func (m *Model) Message() string { return m.message }
+
+// Init starts the first evaluation.
+func (m *Model) Init() tea.Cmd { return m.evaluate() }
+
+// evaluate starts evaluating the current scenario in the background.
+func (m *Model) evaluate() tea.Cmd {
+	sc, rev := m.sc, m.rev
+	return func() tea.Msg { return snapshotMsg{Evaluate(sc, rev)} }
+}
+
+// apply makes next the current scenario, keeps the old one for undo and
+// starts its evaluation.
+func (m *Model) apply(next *Scenario, note string) tea.Cmd {
+	m.undo = append(m.undo, m.sc)
+	if len(m.undo) > undoDepth {
+		m.undo = m.undo[len(m.undo)-undoDepth:]
+	}
+	m.redo = nil
+	m.sc = next
+	m.rev++
+	m.dirty = true
+	m.info(note)
+	m.editNote = true
+	return m.evaluate()
+}
+
+// noteOutcome finishes the status line of an edit once its snapshot is in:
+// the change in cost, or (for an impossible spec or a failed solve) the
+// standing explanation of the status line instead.
+func (m *Model) noteOutcome(prev *Snapshot) {
+	if !m.editNote || m.Pending() {
+		return
+	}
+	m.editNote = false
+	switch {
+	case !m.snap.Feasible():
+		m.message = ""
+	case prev.Feasible():
+		d := m.snap.Result.CostPerTonne - prev.Result.CostPerTonne
+		m.message = strings.TrimSpace(fmt.Sprintf("%s Cost %.2f → %.2f %s/t (%+.2f).", m.message,
+			prev.Result.CostPerTonne, m.snap.Result.CostPerTonne, m.currency(), d))
+	}
+}
+
+func (m *Model) info(s string)            { m.message, m.msgError, m.editNote = s, false, false }
+func (m *Model) fail(err error)           { m.message, m.msgError, m.editNote = err.Error(), true, false }
+func (m *Model) failf(f string, a ...any) { m.fail(fmt.Errorf(f, a...)) }
+
+// Update handles one message.
+func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
+	switch msg := msg.(type) {
+	case tea.WindowSizeMsg:
+		if msg.Width <= 0 || msg.Height <= 0 {
+			return m, nil // size unknown (e.g. no terminal on the client): keep 80x24
+		}
+		m.width, m.height = msg.Width, msg.Height
+		m.help.SetWidth(m.width - 1)
+		return m, nil
+	case snapshotMsg:
+		if m.snap == nil || msg.snap.Rev > m.snap.Rev {
+			prev := m.snap
+			m.snap = msg.snap
+			m.noteOutcome(prev)
+		}
+		return m, nil
+	case tea.PasteMsg:
+		if m.prompt.kind != promptNone {
+			m.input.insert(msg.Content)
+		}
+		return m, nil
+	case tea.KeyPressMsg:
+		if m.prompt.kind != promptNone {
+			return m, m.promptKey(msg)
+		}
+		return m, m.key(msg)
+	}
+	return m, nil
+}
+
+func (m *Model) key(k tea.KeyPressMsg) tea.Cmd {
+	ks := m.keys
+	quitArm := m.quitArm
+	m.quitArm = false
+	if m.showKeys {
+		m.showKeys = false // any key closes the key list
+		return nil
+	}
+	switch {
+	case key.Matches(k, ks.Keys):
+		m.showKeys = true
+	case key.Matches(k, ks.Quit):
+		if m.dirty && !quitArm && k.String() != "ctrl+c" {
+			m.quitArm = true
+			m.info("Unsaved edits: press q again to quit, or s to save the scenario first.")
+			return nil
+		}
+		return tea.Quit
+	case key.Matches(k, ks.Next):
+		m.panel = (m.panel + 1) % numPanels
+		m.col = 0
+	case key.Matches(k, ks.Prev):
+		m.panel = (m.panel + numPanels - 1) % numPanels
+		m.col = 0
+	case key.Matches(k, ks.Up):
+		m.move(-1)
+	case key.Matches(k, ks.Down):
+		m.move(1)
+	case key.Matches(k, ks.PageUp):
+		m.move(-10)
+	case key.Matches(k, ks.PageDown):
+		m.move(10)
+	case key.Matches(k, ks.Top):
+		m.move(-1 << 20)
+	case key.Matches(k, ks.Bottom):
+		m.move(1 << 20)
+	case key.Matches(k, ks.Left):
+		m.col = 0
+	case key.Matches(k, ks.Right):
+		m.col = 1
+	case key.Matches(k, ks.Edit):
+		return m.startEdit()
+	case key.Matches(k, ks.Raise):
+		return m.nudge(1)
+	case key.Matches(k, ks.Lower):
+		return m.nudge(-1)
+	case key.Matches(k, ks.Allow):
+		return m.toggleAllowed()
+	case key.Matches(k, ks.NewLimit):
+		if m.panel != panelLimits {
+			m.panel = panelLimits
+		}
+		return m.ask(prompt{kind: promptNewLimit}, "new limit (iv, trans, C18:2, sfc 30, use <stock>): ", "")
+	case key.Matches(k, ks.DropLimit):
+		return m.dropRow()
+	case key.Matches(k, ks.Relax):
+		return m.applyRelaxation()
+	case key.Matches(k, ks.Undo):
+		return m.undoEdit()
+	case key.Matches(k, ks.Redo):
+		return m.redoEdit()
+	case key.Matches(k, ks.Save):
+		if m.files.ReadOnly {
+			m.fail(ErrReadOnly)
+			return nil
+		}
+		return m.ask(prompt{kind: promptSave}, "save scenario as: ", m.suggestPath())
+	case key.Matches(k, ks.Open):
+		return m.ask(prompt{kind: promptOpen}, "open scenario: ", m.lastPath)
+	case key.Matches(k, ks.WriteBack):
+		return m.writeBack()
+	default:
+		for i, b := range ks.Panel {
+			if key.Matches(k, b) {
+				m.panel = panel(i)
+				m.col = 0
+			}
+		}
+	}
+	return nil
+}
+
+func (m *Model) suggestPath() string {
+	if m.lastPath != "" {
+		return m.lastPath
+	}
+	if m.files.Confined {
+		return "scenario"
+	}
+	return "scenario.toml"
+}
+
+// rowCount is the number of selectable rows of the current panel.
+func (m *Model) rowCount() int {
+	switch m.panel {
+	case panelStocks:
+		return len(m.sc.Catalogue.Stocks)
+	case panelLimits:
+		return len(m.sc.Rows())
+	}
+	return 0
+}
+
+func (m *Model) move(d int) {
+	n := m.rowCount()
+	if n == 0 {
+		return
+	}
+	c := m.cursor[m.panel] + d
+	m.cursor[m.panel] = min(max(c, 0), n-1)
+}
+
+// selectedStock returns the stock under the cursor on the stocks panel.
+func (m *Model) selectedStock() (*catalogue.Stock, bool) {
+	if m.panel != panelStocks || len(m.sc.Catalogue.Stocks) == 0 {
+		return nil, false
+	}
+	i := min(m.cursor[panelStocks], len(m.sc.Catalogue.Stocks)-1)
+	return &m.sc.Catalogue.Stocks[i], true
+}
+
+func (m *Model) selectedRow() (Row, bool) {
+	if m.panel != panelLimits {
+		return Row{}, false
+	}
+	rows := m.sc.Rows()
+	if len(rows) == 0 {
+		return Row{}, false
+	}
+	return rows[min(m.cursor[panelLimits], len(rows)-1)], true
+}
+
+// ask opens the input line with a prompt and a starting value.
+func (m *Model) ask(p prompt, label, value string) tea.Cmd {
+	m.prompt = p
+	m.input.set(label, value)
+	return nil
+}
+
+func (m *Model) closePrompt() {
+	m.prompt = prompt{}
+	m.input.set("", "")
+}
+
+func (m *Model) promptKey(k tea.KeyPressMsg) tea.Cmd {
+	switch {
+	case key.Matches(k, m.keys.Cancel):
+		m.closePrompt()
+		m.info("Edit cancelled.")
+		return nil
+	case key.Matches(k, m.keys.Accept):
+		p, text := m.prompt, m.input.text()
+		m.closePrompt()
+		return m.finishPrompt(p, text)
+	}
+	m.input.key(k)
+	return nil
+}
+
+func (m *Model) startEdit() tea.Cmd {
+	switch m.panel {
+	case panelStocks:
+		st, ok := m.selectedStock()
+		if !ok {
+			return nil
+		}
+		if m.col == 0 {
+			return m.ask(prompt{kind: promptStock, stock: st.ID, field: FieldPrice},
+				fmt.Sprintf("price of %s (%s/t): ", st.ID, m.sc.Catalogue.Currency), num(st.Price))
+		}
+		v := ""
+		if st.Limited() {
+			v = num(st.Available)
+		}
+		return m.ask(prompt{kind: promptStock, stock: st.ID, field: FieldAvailable},
+			fmt.Sprintf("%s on hand, t (empty = unlimited): ", st.ID), v)
+	case panelLimits:
+		r, ok := m.selectedRow()
+		if !ok {
+			return nil
+		}
+		side := Side(m.col)
+		if r.Single() {
+			side = Max
+			return m.ask(prompt{kind: promptBound, row: r, side: side}, fmt.Sprintf("%s (%s): ", r.Label, r.Unit), num(r.Bound.Max))
+		}
+		v := r.Bound.Min
+		if side == Max {
+			v = r.Bound.Max
+		}
+		cur := ""
+		if !math.IsInf(v, 0) {
+			cur = num(v)
+		}
+		return m.ask(prompt{kind: promptBound, row: r, side: side},
+			fmt.Sprintf("%s %s, %s (empty = none): ", r.Label, side, r.Unit), cur)
+	default:
+		m.info("Values are edited on 2 Stocks and 3 Limits.")
+	}
+	return nil
+}
+
+// parseValue reads a number typed by the user; empty, "-" or "none" means
+// no value (NaN).
+func parseValue(s string) (float64, error) {
+	s = strings.TrimSpace(strings.ReplaceAll(s, " ", ""))
+	switch strings.ToLower(s) {
+	case "", "-", "none", "unlimited", "inf":
+		return math.NaN(), nil
+	}
+	if strings.Count(s, ",") == 1 && !strings.Contains(s, ".") {
+		s = strings.Replace(s, ",", ".", 1) // decimal comma
+	}
+	v, err := strconv.ParseFloat(s, 64)
+	if err != nil || math.IsInf(v, 0) {
+		return 0, fmt.Errorf("%q is not a number", s)
+	}
+	return v, nil
+}
+
+func (m *Model) finishPrompt(p prompt, text string) tea.Cmd {
+	switch p.kind {
+	case promptStock:
+		v, err := parseValue(text)
+		if err != nil {
+			m.fail(err)
+			return nil
+		}
+		if p.field == FieldPrice && math.IsNaN(v) {
+			m.failf("price of %s needs a number", p.stock)
+			return nil
+		}
+		next, err := m.sc.WithStock(p.stock, p.field, v)
+		if err != nil {
+			m.fail(err)
+			return nil
+		}
+		what := "price"
+		if p.field == FieldAvailable {
+			what = "availability"
+		}
+		return m.apply(next, fmt.Sprintf("%s of %s set to %s.", what, p.stock, text))
+	case promptBound:
+		v, err := parseValue(text)
+		if err != nil {
+			m.fail(err)
+			return nil
+		}
+		next, err := m.sc.WithBound(p.row, p.side, v)
+		if err != nil {
+			m.fail(err)
+			return nil
+		}
+		return m.apply(next, fmt.Sprintf("%s %s set to %s.", p.row.Label, sideWord(p.row, p.side), showValue(v)))
+	case promptNewLimit:
+		next, k, err := m.sc.WithNewRow(text)
+		if err != nil {
+			m.fail(err)
+			return nil
+		}
+		m.panel = panelLimits
+		for i, r := range next.Rows() {
+			if r.Key == k {
+				m.cursor[panelLimits] = i
+			}
+		}
+		m.col = 1
+		return m.apply(next, fmt.Sprintf("Added limit %s with no bounds: press enter to set its maximum (← for minimum).", k))
+	case promptSave:
+		return m.save(text)
+	case promptOpen:
+		return m.open(text)
+	}
+	return nil
+}
+
+func sideWord(r Row, s Side) string {
+	if r.Single() {
+		return ""
+	}
+	return s.String()
+}
+
+func showValue(v float64) string {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return "none"
+	}
+	return num(v)
+}
+
+// num writes a value with as few decimals as it needs (at most 3).
+func num(v float64) string {
+	return strconv.FormatFloat(math.Round(v*1000)/1000, 'f', -1, 64)
+}
+
+// nudgeStep is the step of [ and ] for a row or stock field.
+func nudgeStep(r Row) float64 {
+	switch r.Kind {
+	case RowBatch, RowMaxStocks, RowSFC, RowUse:
+		return 1
+	case RowMinIfUsed:
+		return 0.5
+	}
+	switch r.Key {
+	case "iv", "sv":
+		return 1
+	case "cox":
+		return 0.1
+	}
+	return 0.5
+}
+
+func (m *Model) nudge(dir float64) tea.Cmd {
+	switch m.panel {
+	case panelStocks:
+		st, ok := m.selectedStock()
+		if !ok {
+			return nil
+		}
+		if m.col == 0 {
+			v := math.Max(0, st.Price+10*dir)
+			next, err := m.sc.WithStock(st.ID, FieldPrice, v)
+			if err != nil {
+				m.fail(err)
+				return nil
+			}
+			return m.apply(next, fmt.Sprintf("price of %s %s.", st.ID, num(v)))
+		}
+		if !st.Limited() {
+			m.failf("%s is unlimited: press enter to type an amount on hand first", st.ID)
+			return nil
+		}
+		v := math.Max(0, st.Available+5*dir)
+		next, err := m.sc.WithStock(st.ID, FieldAvailable, v)
+		if err != nil {
+			m.fail(err)
+			return nil
+		}
+		return m.apply(next, fmt.Sprintf("%s on hand %s t.", st.ID, num(v)))
+	case panelLimits:
+		r, ok := m.selectedRow()
+		if !ok {
+			return nil
+		}
+		side := Side(m.col)
+		cur := r.Bound.Min
+		if side == Max || r.Single() {
+			side, cur = Max, r.Bound.Max
+		}
+		if math.IsInf(cur, 0) {
+			m.failf("%s has no %s yet: press enter to type one", r.Label, side)
+			return nil
+		}
+		v := cur + dir*nudgeStep(r)
+		if r.Kind == RowUse || r.Kind == RowSFC || r.Kind == RowMinIfUsed || r.Kind == RowMaxStocks {
+			v = math.Max(0, v)
+		}
+		next, err := m.sc.WithBound(r, side, v)
+		if err != nil {
+			m.fail(err)
+			return nil
+		}
+		return m.apply(next, fmt.Sprintf("%s %s %s.", r.Label, sideWord(r, side), num(v)))
+	}
+	m.info("[ and ] nudge values on 2 Stocks and 3 Limits.")
+	return nil
+}
+
+func (m *Model) toggleAllowed() tea.Cmd {
+	st, ok := m.selectedStock()
+	if !ok {
+		m.info("Stocks are allowed or left out on 2 Stocks (space).")
+		return nil
+	}
+	allowed := m.sc.Excluded[st.ID]
+	next, err := m.sc.WithAllowed(st.ID, allowed)
+	if err != nil {
+		m.fail(err)
+		return nil
+	}
+	if allowed {
+		return m.apply(next, st.ID+" allowed in the blend.")
+	}
+	return m.apply(next, st.ID+" left out of the blend.")
+}
+
+func (m *Model) dropRow() tea.Cmd {
+	r, ok := m.selectedRow()
+	if !ok {
+		m.info("Limits are dropped on 3 Limits (d).")
+		return nil
+	}
+	next, err := m.sc.WithoutRow(r)
+	if err != nil {
+		m.fail(err)
+		return nil
+	}
+	cmd := m.apply(next, fmt.Sprintf("Dropped %s (u undoes).", r.Label))
+	m.move(0)
+	return cmd
+}
+
+func (m *Model) applyRelaxation() tea.Cmd {
+	s := m.snap
+	if s == nil || s.Result == nil || len(s.Result.Relaxation) == 0 || m.Pending() {
+		m.info("There is no relaxation to apply: the spec can be met (or is still being solved).")
+		return nil
+	}
+	next, skipped, err := m.sc.WithRelaxation(s.Result.Relaxation)
+	if err != nil {
+		m.fail(err)
+		return nil
+	}
+	note := "Applied the suggested relaxation (u undoes)."
+	if len(skipped) > 0 {
+		note = fmt.Sprintf("Applied the relaxation except %s (change those by hand).", strings.Join(skipped, ", "))
+	}
+	return m.apply(next, note)
+}
+
+func (m *Model) undoEdit() tea.Cmd {
+	if len(m.undo) == 0 {
+		m.info("Nothing to undo.")
+		return nil
+	}
+	m.redo = append(m.redo, m.sc)
+	m.sc = m.undo[len(m.undo)-1]
+	m.undo = m.undo[:len(m.undo)-1]
+	m.rev++
+	m.dirty = true
+	m.move(0)
+	m.info(fmt.Sprintf("Undone (%d more to undo).", len(m.undo)))
+	m.editNote = true
+	return m.evaluate()
+}
+
+func (m *Model) redoEdit() tea.Cmd {
+	if len(m.redo) == 0 {
+		m.info("Nothing to redo.")
+		return nil
+	}
+	m.undo = append(m.undo, m.sc)
+	m.sc = m.redo[len(m.redo)-1]
+	m.redo = m.redo[:len(m.redo)-1]
+	m.rev++
+	m.dirty = true
+	m.move(0)
+	m.info("Redone.")
+	m.editNote = true
+	return m.evaluate()
+}
+
+func (m *Model) save(name string) tea.Cmd {
+	if m.files.ReadOnly {
+		m.fail(ErrReadOnly)
+		return nil
+	}
+	path, err := m.files.ScenarioPath(name)
+	if err != nil {
+		m.fail(err)
+		return nil
+	}
+	if err := SaveScenario(path, m.sc); err != nil {
+		m.fail(err)
+		return nil
+	}
+	m.lastPath = strings.TrimSpace(name)
+	m.dirty = false
+	m.info("Saved the scenario to " + m.shownPath(path) + ".")
+	return nil
+}
+
+func (m *Model) open(name string) tea.Cmd {
+	path, err := m.files.ScenarioPath(name)
+	if err != nil {
+		m.fail(err)
+		return nil
+	}
+	sc, err := LoadScenario(path)
+	if err != nil {
+		m.fail(firstLines(err, 2))
+		return nil
+	}
+	m.lastPath = strings.TrimSpace(name)
+	cmd := m.apply(sc, "Opened "+m.shownPath(path)+" (u goes back to what you had).")
+	m.dirty = false
+	m.cursor = [numPanels]int{}
+	return cmd
+}
+
+func (m *Model) writeBack() tea.Cmd {
+	if err := m.files.CanWriteBack(); err != nil {
+		m.fail(err)
+		return nil
+	}
+	var wrote []string
+	if m.files.StocksPath != "" {
+		if err := writeStocksFile(m.files.StocksPath, m.sc.Catalogue); err != nil {
+			m.fail(err)
+			return nil
+		}
+		wrote = append(wrote, m.files.StocksPath)
+	}
+	if m.files.SpecPath != "" {
+		_, spec := m.sc.Effective()
+		if err := writeSpecFile(m.files.SpecPath, spec); err != nil {
+			m.fail(err)
+			return nil
+		}
+		wrote = append(wrote, m.files.SpecPath)
+	}
+	m.dirty = false
+	m.info("Wrote " + strings.Join(wrote, " and ") + " (left-out stocks are written as use max 0).")
+	return nil
+}
+
+// shownPath hides the server's folder from a confined (served) workspace.
+func (m *Model) shownPath(path string) string {
+	if m.files.Confined {
+		return strings.TrimPrefix(strings.TrimPrefix(path, m.files.Dir), "/")
+	}
+	return path
+}
+
+// firstLines keeps the first n lines of a long error for the status line.
+func firstLines(err error, n int) error {
+	lines := strings.Split(err.Error(), "\n")
+	if len(lines) <= n {
+		return err
+	}
+	return errors.New(strings.Join(lines[:n], "; ") + fmt.Sprintf(" (and %d more problems)", len(lines)-n))
+}

@@ -1,0 +1,459 @@
+// Package tui is lipoplan's terminal what-if workspace: a bubbletea model that
+// holds one Scenario (stocks, spec and the stocks left out), evaluates it into
+// a Snapshot off the keystroke path, and renders panels from that snapshot.
+// The same model is served to a team over SSH by package tui/serve.
+package tui
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strings"
+
+	"lipoplan/catalogue"
+	"lipoplan/optimise"
+)
+
+// Scenario is everything a what-if session can change: the stock catalogue
+// (prices, availability), the product spec (limits, batch) and the stocks the
+// user has left out. A Scenario handed to Evaluate is never changed again:
+// every edit makes a new one (copy on write), which is what undo keeps.
+type Scenario struct {
+	Catalogue *catalogue.Catalogue
+	Spec      *catalogue.Spec
+	Excluded  map[string]bool // stock id -> left out of the blend
+}
+
+// NewScenario wraps deep copies of cat and spec, so edits never reach the
+// caller's values.
+func NewScenario(cat *catalogue.Catalogue, spec *catalogue.Spec) *Scenario {
+	return &Scenario{Catalogue: cat.Clone(), Spec: spec.Clone(), Excluded: map[string]bool{}}
+}
+
+// Clone returns a deep copy.
+func (s *Scenario) Clone() *Scenario {
+	ex := make(map[string]bool, len(s.Excluded))
+	for k, v := range s.Excluded {
+		if v {
+			ex[k] = true
+		}
+	}
+	return &Scenario{Catalogue: s.Catalogue.Clone(), Spec: s.Spec.Clone(), Excluded: ex}
+}
+
+// ExcludedIDs lists the left-out stocks in id order.
+func (s *Scenario) ExcludedIDs() []string {
+	var out []string
+	for id, v := range s.Excluded {
+		if v {
+			out = append(out, id)
+		}
+	}
+	sort.Strings(out)
+	return out
+}
+
+// Effective returns the catalogue and spec the optimiser sees: a left-out
+// stock gets an inclusion bound of exactly zero (its other bounds give way),
+// and limit rows with neither side set are dropped.
+func (s *Scenario) Effective() (*catalogue.Catalogue, *catalogue.Spec) {
+	spec := s.Spec.Clone()
+	keepL := spec.Limits[:0]
+	for _, l := range spec.Limits {
+		if l.HasMin() || l.HasMax() {
+			keepL = append(keepL, l)
+		}
+	}
+	spec.Limits = keepL
+	keepS := spec.SFC[:0]
+	for _, l := range spec.SFC {
+		if l.HasMin() || l.HasMax() {
+			keepS = append(keepS, l)
+		}
+	}
+	spec.SFC = keepS
+	keepU := spec.Use[:0]
+	seen := map[string]bool{}
+	for _, u := range spec.Use {
+		if s.Excluded[u.Stock] {
+			u.Bound = catalogue.Bound{Min: math.Inf(-1), Max: 0}
+			seen[u.Stock] = true
+		}
+		if u.HasMin() || u.HasMax() {
+			keepU = append(keepU, u)
+		}
+	}
+	spec.Use = keepU
+	for _, id := range s.ExcludedIDs() {
+		if !seen[id] {
+			spec.Use = append(spec.Use, catalogue.Use{Stock: id, Bound: catalogue.Bound{Min: math.Inf(-1), Max: 0}})
+		}
+	}
+	spec.SortLimits()
+	return s.Catalogue, spec
+}
+
+// RowKind tells what a row of the limits panel edits.
+type RowKind int
+
+// Kinds of editable spec rows.
+const (
+	RowBatch     RowKind = iota // the batch size, tonnes
+	RowLimit                    // a property or fatty-acid limit
+	RowSFC                      // solid fat content at one temperature
+	RowUse                      // inclusion of one stock, % of batch
+	RowMaxStocks                // integer rule: at most this many stocks
+	RowMinIfUsed                // integer rule: a used stock is used at no less than this %
+)
+
+// Row is one editable line of the spec. Key is the stem of the optimiser's
+// limit names: "iv" for "iv.min"/"iv.max", "sfc.20", "use.pko-r".
+type Row struct {
+	Kind  RowKind
+	Key   string
+	Label string
+	Unit  string
+	Bound catalogue.Bound // for single-value rows, Max holds the value
+	index int             // position in the spec slice it came from
+	temp  float64
+	stock string
+}
+
+// Single reports whether the row holds one value rather than a min/max pair.
+func (r Row) Single() bool {
+	return r.Kind == RowBatch || r.Kind == RowMaxStocks || r.Kind == RowMinIfUsed
+}
+
+// Rows lists the spec as editable rows: batch, limits, SFC, stock use, rules.
+func (s *Scenario) Rows() []Row {
+	sp := s.Spec
+	rows := []Row{{Kind: RowBatch, Key: "batch", Label: "batch", Unit: "t", Bound: catalogue.Bound{Min: math.Inf(-1), Max: sp.Batch}}}
+	for i, l := range sp.Limits {
+		rows = append(rows, Row{Kind: RowLimit, Key: l.Name, Label: limitLabel(l.Name), Unit: limitUnit(l.Name), Bound: l.Bound, index: i})
+	}
+	for i, l := range sp.SFC {
+		k := catalogue.TempKey(l.Temp)
+		rows = append(rows, Row{Kind: RowSFC, Key: "sfc." + k, Label: "SFC " + k + " °C", Unit: "% solid", Bound: l.Bound, index: i, temp: l.Temp})
+	}
+	for i, u := range sp.Use {
+		rows = append(rows, Row{Kind: RowUse, Key: "use." + u.Stock, Label: "use " + u.Stock, Unit: "% batch", Bound: u.Bound, index: i, stock: u.Stock})
+	}
+	rows = append(rows,
+		Row{Kind: RowMaxStocks, Key: "rules.max_stocks", Label: "max stocks", Unit: "stocks", Bound: catalogue.Bound{Min: math.Inf(-1), Max: float64(sp.Rules.MaxStocks)}},
+		Row{Kind: RowMinIfUsed, Key: "rules.min_if_used", Label: "min if used", Unit: "% batch", Bound: catalogue.Bound{Min: math.Inf(-1), Max: sp.Rules.MinIfUsed}},
+	)
+	return rows
+}
+
+func limitLabel(name string) string {
+	switch name {
+	case "iv", "sv", "safa", "mufa", "pufa", "cox":
+		return strings.ToUpper(name)
+	case "omega3":
+		return "omega-3"
+	}
+	return name
+}
+
+func limitUnit(name string) string {
+	switch name {
+	case "iv":
+		return "g I2/100 g"
+	case "sv":
+		return "mg KOH/g"
+	case "cox":
+		return "Cox value"
+	}
+	return "wt %"
+}
+
+// Side picks the lower or upper bound of a row.
+type Side int
+
+// Bound sides.
+const (
+	Min Side = iota
+	Max
+)
+
+func (sd Side) String() string {
+	if sd == Min {
+		return "minimum"
+	}
+	return "maximum"
+}
+
+// WithBound returns a new scenario with one side of row r set to v
+// (NaN or ±Inf clears that side). Single-value rows ignore side.
+func (s *Scenario) WithBound(r Row, side Side, v float64) (*Scenario, error) {
+	out := s.Clone()
+	sp := out.Spec
+	clear := math.IsNaN(v) || math.IsInf(v, 0)
+	set := func(b *catalogue.Bound) error {
+		switch {
+		case side == Min && clear:
+			b.Min = math.Inf(-1)
+		case side == Min:
+			if b.HasMax() && v > b.Max {
+				return fmt.Errorf("%s minimum %g is above its maximum %g", r.Label, v, b.Max)
+			}
+			b.Min = v
+		case clear:
+			b.Max = math.Inf(1)
+		default:
+			if b.HasMin() && v < b.Min {
+				return fmt.Errorf("%s maximum %g is below its minimum %g", r.Label, v, b.Min)
+			}
+			b.Max = v
+		}
+		return nil
+	}
+	var err error
+	switch r.Kind {
+	case RowBatch:
+		if clear || v <= 0 {
+			return nil, fmt.Errorf("batch must be a number of tonnes above zero")
+		}
+		sp.Batch = v
+	case RowMaxStocks:
+		if clear {
+			v = 0
+		}
+		if v < 0 || v != math.Trunc(v) {
+			return nil, fmt.Errorf("max stocks must be a whole number (0 = no rule)")
+		}
+		sp.Rules.MaxStocks = int(v)
+	case RowMinIfUsed:
+		if clear {
+			v = 0
+		}
+		if v < 0 || v > 100 {
+			return nil, fmt.Errorf("min if used must be between 0 and 100 %% of batch")
+		}
+		sp.Rules.MinIfUsed = v
+	case RowLimit:
+		if r.index >= len(sp.Limits) {
+			return nil, fmt.Errorf("limit %s is gone", r.Key)
+		}
+		err = set(&sp.Limits[r.index].Bound)
+	case RowSFC:
+		if r.index >= len(sp.SFC) {
+			return nil, fmt.Errorf("limit %s is gone", r.Key)
+		}
+		if !clear && (v < 0 || v > 100) {
+			return nil, fmt.Errorf("%s must be between 0 and 100 %% solid", r.Label)
+		}
+		err = set(&sp.SFC[r.index].Bound)
+	case RowUse:
+		if r.index >= len(sp.Use) {
+			return nil, fmt.Errorf("limit %s is gone", r.Key)
+		}
+		if !clear && (v < 0 || v > 100) {
+			return nil, fmt.Errorf("%s must be between 0 and 100 %% of batch", r.Label)
+		}
+		err = set(&sp.Use[r.index].Bound)
+	}
+	if err != nil {
+		return nil, err
+	}
+	return out, nil
+}
+
+// WithoutRow returns a new scenario without limit row r (batch and rules
+// rows are reset to no rule instead; the batch cannot be removed).
+func (s *Scenario) WithoutRow(r Row) (*Scenario, error) {
+	out := s.Clone()
+	sp := out.Spec
+	switch r.Kind {
+	case RowBatch:
+		return nil, fmt.Errorf("the batch cannot be removed; edit it instead")
+	case RowMaxStocks:
+		sp.Rules.MaxStocks = 0
+	case RowMinIfUsed:
+		sp.Rules.MinIfUsed = 0
+	case RowLimit:
+		sp.Limits = append(sp.Limits[:r.index:r.index], sp.Limits[r.index+1:]...)
+	case RowSFC:
+		sp.SFC = append(sp.SFC[:r.index:r.index], sp.SFC[r.index+1:]...)
+	case RowUse:
+		sp.Use = append(sp.Use[:r.index:r.index], sp.Use[r.index+1:]...)
+	}
+	return out, nil
+}
+
+// WithNewRow adds an empty limit named by what the user typed: a property
+// ("iv", "trans"), a fatty-acid key ("C18:2"), "sfc 30" or "use <stock id>".
+// It returns the new scenario and the key of the added row.
+func (s *Scenario) WithNewRow(text string) (*Scenario, string, error) {
+	f := strings.Fields(strings.ReplaceAll(strings.TrimSpace(text), ".", " "))
+	if len(f) == 0 {
+		return nil, "", fmt.Errorf("name a limit: a property (%s), a fatty acid such as C18:2, \"sfc 30\" or \"use <stock>\"", strings.Join(catalogue.Properties, ", "))
+	}
+	out := s.Clone()
+	sp := out.Spec
+	switch strings.ToLower(f[0]) {
+	case "sfc":
+		if len(f) < 2 || len(f) > 3 {
+			return nil, "", fmt.Errorf("write an SFC limit as \"sfc 30\" (temperature in °C)")
+		}
+		t, err := catalogue.ParseTemp(strings.Join(f[1:], "."))
+		if err != nil {
+			return nil, "", err
+		}
+		if t < -20 || t > 80 {
+			return nil, "", fmt.Errorf("SFC temperature %g °C is outside -20..80 °C", t)
+		}
+		for _, l := range sp.SFC {
+			if l.Temp == t {
+				return nil, "", fmt.Errorf("there is already an SFC limit at %s °C", catalogue.TempKey(t))
+			}
+		}
+		sp.SFC = append(sp.SFC, catalogue.SFCLimit{Temp: t, Bound: catalogue.Free()})
+		sp.SortLimits()
+		return out, "sfc." + catalogue.TempKey(t), nil
+	case "use":
+		if len(f) != 2 {
+			return nil, "", fmt.Errorf("write a stock limit as \"use <stock id>\"")
+		}
+		if _, ok := useIndex(sp, f[1]); ok {
+			return nil, "", fmt.Errorf("stock %q already has a use limit", f[1])
+		}
+		if _, ok := out.Catalogue.Find(f[1]); !ok {
+			return nil, "", fmt.Errorf("no stock %q in the catalogue", f[1])
+		}
+		sp.Use = append(sp.Use, catalogue.Use{Stock: f[1], Bound: catalogue.Free()})
+		sp.SortLimits()
+		return out, "use." + f[1], nil
+	}
+	name := strings.Join(f, "")
+	if l := strings.ToLower(name); catalogue.IsProperty(l) {
+		name = l
+	} else if _, ok := catalogue.Lookup(strings.ToUpper(name[:1]) + name[1:]); ok {
+		name = strings.ToUpper(name[:1]) + name[1:]
+	} else {
+		return nil, "", fmt.Errorf("%q is not a limit: use a property (%s), a fatty acid such as C18:2, \"sfc 30\" or \"use <stock>\"", text, strings.Join(catalogue.Properties, ", "))
+	}
+	for _, l := range sp.Limits {
+		if l.Name == name {
+			return nil, "", fmt.Errorf("there is already a %s limit", name)
+		}
+	}
+	sp.Limits = append(sp.Limits, catalogue.Limit{Name: name, Bound: catalogue.Free()})
+	sp.SortLimits()
+	return out, name, nil
+}
+
+func useIndex(sp *catalogue.Spec, id string) (int, bool) {
+	for i, u := range sp.Use {
+		if u.Stock == id {
+			return i, true
+		}
+	}
+	return 0, false
+}
+
+// StockField picks an editable column of the stocks panel.
+type StockField int
+
+// Editable stock fields.
+const (
+	FieldPrice StockField = iota
+	FieldAvailable
+)
+
+// WithStock returns a new scenario with the price or availability of stock id
+// set to v. For availability, +Inf or NaN means unlimited purchase.
+func (s *Scenario) WithStock(id string, f StockField, v float64) (*Scenario, error) {
+	out := s.Clone()
+	st, ok := out.Catalogue.Find(id)
+	if !ok {
+		return nil, fmt.Errorf("no stock %q in the catalogue", id)
+	}
+	switch f {
+	case FieldPrice:
+		if math.IsNaN(v) || math.IsInf(v, 0) || v < 0 {
+			return nil, fmt.Errorf("price of %s must be a number of %s per tonne, 0 or more", id, out.Catalogue.Currency)
+		}
+		st.Price = v
+	case FieldAvailable:
+		if math.IsNaN(v) {
+			v = math.Inf(1)
+		}
+		if v < 0 {
+			return nil, fmt.Errorf("availability of %s must be tonnes on hand, 0 or more (empty = unlimited)", id)
+		}
+		st.Available = v
+	}
+	return out, nil
+}
+
+// WithAllowed returns a new scenario with stock id allowed in (true) or left
+// out of (false) the blend.
+func (s *Scenario) WithAllowed(id string, allowed bool) (*Scenario, error) {
+	if _, ok := s.Catalogue.Find(id); !ok {
+		return nil, fmt.Errorf("no stock %q in the catalogue", id)
+	}
+	out := s.Clone()
+	if allowed {
+		delete(out.Excluded, id)
+	} else {
+		out.Excluded[id] = true
+	}
+	return out, nil
+}
+
+// WithRelaxation returns a new scenario with every suggested relaxation
+// applied: a minimum is lowered and a maximum raised by Relax.By, and
+// "avail.<stock>" raises what is on hand. Names it cannot place (for example
+// a rule) are returned in skipped for the user to change by hand.
+func (s *Scenario) WithRelaxation(rs []optimise.Relax) (out *Scenario, skipped []string, err error) {
+	out = s
+	for _, r := range rs {
+		if id, ok := strings.CutPrefix(r.Name, "avail."); ok {
+			st, found := out.Catalogue.Find(id)
+			if !found || !st.Limited() {
+				skipped = append(skipped, r.Name)
+				continue
+			}
+			if out, err = out.WithStock(id, FieldAvailable, st.Available+r.By); err != nil {
+				return nil, nil, fmt.Errorf("relax %s: %w", r.Name, err)
+			}
+			continue
+		}
+		i := strings.LastIndex(r.Name, ".")
+		if i < 0 {
+			skipped = append(skipped, r.Name)
+			continue
+		}
+		stem, sideName := r.Name[:i], r.Name[i+1:]
+		var row Row
+		found := false
+		for _, x := range out.Rows() {
+			if x.Key == stem {
+				row, found = x, true
+			}
+		}
+		if !found || (sideName != "min" && sideName != "max") {
+			skipped = append(skipped, r.Name)
+			continue
+		}
+		side, v := Max, row.Bound.Max+r.By
+		if sideName == "min" {
+			side, v = Min, row.Bound.Min-r.By
+			if row.Kind == RowSFC || row.Kind == RowUse {
+				v = math.Max(v, 0)
+			}
+		}
+		if math.IsInf(v, 0) {
+			skipped = append(skipped, r.Name)
+			continue
+		}
+		if out, err = out.WithBound(row, side, v); err != nil {
+			return nil, nil, fmt.Errorf("relax %s: %w", r.Name, err)
+		}
+	}
+	if out == s {
+		out = s.Clone()
+	}
+	return out, skipped, nil
+}

@@ -1,0 +1,318 @@
+// Package serve offers the lipoplan workspace to a team over SSH (charm wish).
+// Each SSH session gets its own workspace on a private copy of the scenario.
+// Only public-key authentication against an authorized_keys file is accepted;
+// the host key is created once (mode 0600) and reused; sessions are bounded in
+// number and dropped when idle; nothing is written to disk unless the server
+// was started writable. Every session's key fingerprint (SHA256) and times are
+// logged.
+package serve
+
+import (
+	"bufio"
+	"bytes"
+	"context"
+	"crypto/ed25519"
+	"crypto/rand"
+	"crypto/subtle"
+	"encoding/pem"
+	"errors"
+	"fmt"
+	"io"
+	"io/fs"
+	"log"
+	"net"
+	"os"
+	"strings"
+	"sync"
+	"time"
+
+	tea "charm.land/bubbletea/v2"
+	"charm.land/ssh"
+	"charm.land/wish/v2"
+	"charm.land/wish/v2/activeterm"
+	"charm.land/wish/v2/bubbletea"
+	gossh "golang.org/x/crypto/ssh"
+
+	"lipoplan/catalogue"
+	"lipoplan/tui"
+)
+
+// Config describes one server.
+type Config struct {
+	Listen         string // address to listen on, e.g. "127.0.0.1:2222"
+	AuthorizedKeys string // authorized_keys file: the only keys let in
+	HostKey        string // private host key; created (ed25519, 0600) when absent
+
+	Scenario *tui.Scenario // the shared starting point; each session works on a copy
+	Source   string        // where the scenario came from, for the header
+
+	// Files is the template of each session's file access. Serve forces it
+	// confined to its Dir and read-only unless Writable.
+	Files    tui.Files
+	Writable bool
+
+	MaxSessions int           // at most this many sessions at once (0 = 16)
+	IdleTimeout time.Duration // drop a connection with no traffic this long (0 = never)
+
+	Log io.Writer // session log; os.Stderr when nil
+}
+
+// DefaultMaxSessions bounds sessions when Config.MaxSessions is 0.
+const DefaultMaxSessions = 16
+
+// Server is a running or ready SSH workspace server.
+type Server struct {
+	cfg  Config
+	keys []gossh.PublicKey
+	srv  *ssh.Server
+	log  *log.Logger
+
+	mu     sync.Mutex
+	active int
+}
+
+// New checks the configuration, reads the authorized keys, creates or reads
+// the host key and prepares the server. Problems with the files are
+// catalogue.BadInput errors naming the file.
+func New(cfg Config) (*Server, error) {
+	if cfg.Scenario == nil {
+		return nil, errors.New("serve: no scenario to serve")
+	}
+	if cfg.AuthorizedKeys == "" {
+		return nil, catalogue.Badf("serve: --authorized-keys is required: the file of public keys allowed in (one per line, as in ~/.ssh/authorized_keys)")
+	}
+	if cfg.HostKey == "" {
+		return nil, catalogue.Badf("serve: --host-key is required: the server's private key file (created when absent)")
+	}
+	if cfg.MaxSessions <= 0 {
+		cfg.MaxSessions = DefaultMaxSessions
+	}
+	if cfg.IdleTimeout < 0 {
+		return nil, catalogue.Badf("serve: --idle-timeout %v is negative; give a duration such as 15m, or 0 for none", cfg.IdleTimeout)
+	}
+	if cfg.Log == nil {
+		cfg.Log = os.Stderr
+	}
+	cfg.Files.Confined = true
+	cfg.Files.ReadOnly = !cfg.Writable
+	if !cfg.Writable {
+		cfg.Files.StocksPath, cfg.Files.SpecPath = "", ""
+	}
+	keys, err := LoadAuthorizedKeys(cfg.AuthorizedKeys)
+	if err != nil {
+		return nil, err
+	}
+	hostPEM, err := HostKey(cfg.HostKey)
+	if err != nil {
+		return nil, err
+	}
+	s := &Server{cfg: cfg, keys: keys, log: log.New(cfg.Log, "lipoplan serve: ", log.LstdFlags)}
+	srv, err := wish.NewServer(
+		wish.WithAddress(cfg.Listen),
+		wish.WithHostKeyPEM(hostPEM),
+		wish.WithPublicKeyAuth(s.allowed),
+		wish.WithIdleTimeout(cfg.IdleTimeout),
+		wish.WithVersion("SSH-2.0-lipoplan"),
+		wish.WithMiddleware(
+			bubbletea.Middleware(s.workspace),
+			activeterm.Middleware(),
+			s.bounded,
+			s.logged,
+		),
+	)
+	if err != nil {
+		return nil, fmt.Errorf("serve: setting up the SSH server: %w", err)
+	}
+	s.srv = srv
+	return s, nil
+}
+
+// LoadAuthorizedKeys reads an authorized_keys file (OpenSSH format, parsed
+// with golang.org/x/crypto/ssh.ParseAuthorizedKey). Blank lines and # comments
+// are skipped; any other line that is not a key is an error naming the line.
+func LoadAuthorizedKeys(path string) ([]gossh.PublicKey, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, catalogue.Badf("serve: cannot read authorized keys %s: %v", path, pathErr(err))
+	}
+	var keys []gossh.PublicKey
+	sc := bufio.NewScanner(bytes.NewReader(data))
+	sc.Buffer(make([]byte, 64*1024), 1<<20)
+	for n := 1; sc.Scan(); n++ {
+		line := strings.TrimSpace(sc.Text())
+		if line == "" || strings.HasPrefix(line, "#") {
+			continue
+		}
+		k, _, _, _, err := gossh.ParseAuthorizedKey([]byte(line))
+		if err != nil {
+			return nil, catalogue.Badf("serve: %s line %d is not a public key (%v); write one key per line as ssh-keygen prints it", path, n, err)
+		}
+		keys = append(keys, k)
+	}
+	if err := sc.Err(); err != nil {
+		return nil, catalogue.Badf("serve: reading %s: %v", path, err)
+	}
+	if len(keys) == 0 {
+		return nil, catalogue.Badf("serve: %s holds no public key, so nobody could log in; add the team's keys (one per line)", path)
+	}
+	return keys, nil
+}
+
+// HostKey returns the PEM of the host key at path, creating an ed25519 key
+// there with mode 0600 when the file does not exist. An existing key that
+// others can read is refused, as OpenSSH refuses such keys.
+func HostKey(path string) ([]byte, error) {
+	st, err := os.Stat(path)
+	switch {
+	case errors.Is(err, fs.ErrNotExist):
+		_, priv, err := ed25519.GenerateKey(rand.Reader)
+		if err != nil {
+			return nil, fmt.Errorf("serve: generating a host key: %w", err)
+		}
+		block, err := gossh.MarshalPrivateKey(priv, "lipoplan host key")
+		if err != nil {
+			return nil, fmt.Errorf("serve: encoding the host key: %w", err)
+		}
+		data := pem.EncodeToMemory(block)
+		if err := catalogue.WriteFileAtomic(path, data, 0o600); err != nil {
+			return nil, catalogue.Badf("serve: cannot create host key %s: %v", path, err)
+		}
+		return data, nil
+	case err != nil:
+		return nil, catalogue.Badf("serve: cannot read host key %s: %v", path, pathErr(err))
+	case st.Mode().Perm()&0o077 != 0:
+		return nil, catalogue.Badf("serve: host key %s can be read by others (mode %04o); run chmod 600 %s", path, st.Mode().Perm(), path)
+	}
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, catalogue.Badf("serve: cannot read host key %s: %v", path, pathErr(err))
+	}
+	if _, err := gossh.ParsePrivateKey(data); err != nil {
+		return nil, catalogue.Badf("serve: host key %s is not an unencrypted private key (%v); move it away to have a new one made", path, err)
+	}
+	return data, nil
+}
+
+func pathErr(err error) error {
+	var pe *fs.PathError
+	if errors.As(err, &pe) {
+		return pe.Err
+	}
+	return err
+}
+
+// allowed is the public-key check: the offered key must equal one of the
+// authorized keys (compared by wire encoding, in constant time).
+func (s *Server) allowed(ctx ssh.Context, key ssh.PublicKey) bool {
+	wire := key.Marshal()
+	ok := false
+	for _, k := range s.keys {
+		if subtle.ConstantTimeCompare(k.Marshal(), wire) == 1 {
+			ok = true
+		}
+	}
+	if !ok {
+		s.log.Printf("refused key %s for user %q from %s", gossh.FingerprintSHA256(key), ctx.User(), ctx.RemoteAddr())
+	}
+	return ok
+}
+
+// logged writes each session's key fingerprint, start, end and length.
+func (s *Server) logged(next ssh.Handler) ssh.Handler {
+	return func(sess ssh.Session) {
+		start := time.Now()
+		fp := "none"
+		if k := sess.PublicKey(); k != nil {
+			fp = gossh.FingerprintSHA256(k)
+		}
+		s.log.Printf("session start key=%s user=%q from=%s at=%s", fp, sess.User(), sess.RemoteAddr(), start.Format(time.RFC3339))
+		defer func() {
+			end := time.Now()
+			s.log.Printf("session end key=%s user=%q from=%s at=%s after=%s", fp, sess.User(), sess.RemoteAddr(), end.Format(time.RFC3339), end.Sub(start).Round(time.Millisecond))
+		}()
+		next(sess)
+	}
+}
+
+// bounded refuses a session beyond MaxSessions with a message.
+func (s *Server) bounded(next ssh.Handler) ssh.Handler {
+	return func(sess ssh.Session) {
+		s.mu.Lock()
+		full := s.active >= s.cfg.MaxSessions
+		if !full {
+			s.active++
+		}
+		s.mu.Unlock()
+		if full {
+			s.log.Printf("refused session from %s: %d sessions already open (--max-sessions)", sess.RemoteAddr(), s.cfg.MaxSessions)
+			wish.Println(sess, fmt.Sprintf("lipoplan: the workspace server is full (%d sessions); try again later.\r", s.cfg.MaxSessions))
+			_ = sess.Exit(1)
+			return
+		}
+		defer func() {
+			s.mu.Lock()
+			s.active--
+			s.mu.Unlock()
+		}()
+		next(sess)
+	}
+}
+
+// Active returns the number of sessions open now.
+func (s *Server) Active() int {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	return s.active
+}
+
+// workspace makes each session its own workspace on a copy of the scenario.
+func (s *Server) workspace(sess ssh.Session) (tea.Model, []tea.ProgramOption) {
+	m := tui.NewWithScenario(s.cfg.Scenario.Clone(), s.cfg.Source, s.cfg.Files)
+	return m, nil
+}
+
+// Serve accepts connections on l until Shutdown or Close.
+func (s *Server) Serve(l net.Listener) error {
+	s.log.Printf("serving the workspace on %s (%s; at most %d sessions; idle timeout %s)", l.Addr(), s.mode(), s.cfg.MaxSessions, idle(s.cfg.IdleTimeout))
+	err := s.srv.Serve(l)
+	if errors.Is(err, ssh.ErrServerClosed) {
+		return nil
+	}
+	return err
+}
+
+func (s *Server) mode() string {
+	if s.cfg.Writable {
+		return "writable: sessions may save scenarios in " + s.cfg.Files.Dir + " and write the stocks and spec back"
+	}
+	return "read-only: sessions cannot write files"
+}
+
+func idle(d time.Duration) string {
+	if d == 0 {
+		return "none"
+	}
+	return d.String()
+}
+
+// ListenAndServe listens on Config.Listen and serves.
+func (s *Server) ListenAndServe() error {
+	l, err := net.Listen("tcp", s.cfg.Listen)
+	if err != nil {
+		return catalogue.Badf("serve: cannot listen on %s: %v", s.cfg.Listen, err)
+	}
+	return s.Serve(l)
+}
+
+// Shutdown stops accepting connections and waits for sessions to end until
+// ctx is done, then closes what is left.
+func (s *Server) Shutdown(ctx context.Context) error {
+	err := s.srv.Shutdown(ctx)
+	if errors.Is(err, context.DeadlineExceeded) || errors.Is(err, context.Canceled) {
+		return s.srv.Close()
+	}
+	return err
+}
+
+// Close stops the server and drops every connection.
+func (s *Server) Close() error { return s.srv.Close() }
