@@ -664,7 +664,11 @@ func (c *collector) orders(raw rawOrders, dir string, cat *Catalogue) *Orders {
 			p = filepath.Join(dir, p)
 		}
 		spec, ps := LoadSpec(p, cat)
-		c.ps = append(c.ps, ps...)
+		for _, sp := range ps {
+			// say which line of the orders file led to the spec file
+			sp.Msg += fmt.Sprintf(" (spec of %s in %s)", where, c.file)
+			c.ps = append(c.ps, sp)
+		}
 		if spec == nil || !good {
 			continue
 		}

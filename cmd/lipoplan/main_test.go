@@ -62,8 +62,11 @@ func TestCheckBadCorpus(t *testing.T) {
 		require.NoError(t, err)
 		head := string(raw)
 		flag := "--stocks"
-		if strings.Contains(head, "# kind: spec") {
+		switch {
+		case strings.Contains(head, "# kind: spec"):
 			flag = "--spec"
+		case strings.Contains(head, "# kind: orders"):
+			flag = "--orders"
 		}
 		code, out, errs := run(t, "check", flag, f)
 		assert.Equal(t, 2, code, "%s\n%s%s", f, out, errs)
