@@ -42,7 +42,7 @@ func newKeyMap() keyMap {
 		Redo:      key.NewBinding(key.WithKeys("U", "ctrl+y"), key.WithHelp("U", "redo")),
 		Save:      key.NewBinding(key.WithKeys("s", "ctrl+s"), key.WithHelp("s", "save")),
 		Open:      key.NewBinding(key.WithKeys("o"), key.WithHelp("o", "open")),
-		WriteBack: key.NewBinding(key.WithKeys("W"), key.WithHelp("W", "write back")),
+		WriteBack: key.NewBinding(key.WithKeys("W"), key.WithHelp("W", "write")),
 		Quit:      key.NewBinding(key.WithKeys("q", "ctrl+c"), key.WithHelp("q", "quit")),
 		Keys:      key.NewBinding(key.WithKeys("?"), key.WithHelp("?", "keys")),
 		Accept:    key.NewBinding(key.WithKeys("enter"), key.WithHelp("enter", "apply")),
@@ -68,7 +68,7 @@ func (k keyMap) helpFor(p panel, infeasible bool) []key.Binding {
 	case panelLimits:
 		out = append(out, k.Left, k.Edit, k.Raise, k.NewLimit, k.DropLimit)
 	default:
-		out = append(out, k.Panel[0], k.Next, k.Redo, k.Open, k.WriteBack)
+		out = append(out, k.Panel[0], k.Redo, k.Open, k.WriteBack)
 	}
 	return append(out, k.Undo, k.Save, k.Quit, k.Keys)
 }

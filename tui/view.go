@@ -275,7 +275,7 @@ func (m *Model) blendPanel(w, h int) []string {
 		out = append(out, st.muted.Render("   nothing binds: every stock is at its cheapest"))
 	}
 	for _, l := range binding {
-		out = append(out, wrapped(w, "   "+st.bad.Render(fit(l.Name, 18)), l.Explain)...)
+		out = append(out, wrapped(w, "   "+st.bad.Render(fit(l.Name, 18))+" ", l.Explain)...)
 	}
 	return out
 }
