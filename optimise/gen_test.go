@@ -159,3 +159,8 @@ func relClose(a, b, rel float64) bool {
 	}
 	return math.Abs(a-b) <= rel*math.Max(1, math.Max(math.Abs(a), math.Abs(b)))
 }
+
+// propertyOf is a stock's own value of a limited quantity.
+func propertyOf(s *catalogue.Stock, name string) (float64, bool) {
+	return blend.Coefficient(s, name)
+}
