@@ -25,7 +25,7 @@ type Files struct {
 }
 
 // ErrReadOnly is returned for a write on a read-only workspace.
-var ErrReadOnly = errors.New("this workspace is read-only: the server was started without --writable, so nothing can be saved on it")
+var ErrReadOnly = errors.New("read-only server: nothing can be saved (it was started without --writable)")
 
 var plainName = regexp.MustCompile(`^[A-Za-z0-9][A-Za-z0-9._-]{0,63}$`)
 
@@ -44,7 +44,7 @@ func (f Files) ScenarioPath(name string) (string, error) {
 		return name, nil
 	}
 	if !plainName.MatchString(name) || strings.Contains(name, "..") {
-		return "", fmt.Errorf("scenario name %q: use letters, digits, '.', '-' or '_' only (no folders); files live in the server's scenario folder", name)
+		return "", fmt.Errorf("scenario name %q: letters, digits, . - _ only (no folders)", name)
 	}
 	if !strings.HasSuffix(name, ".toml") {
 		name += ".toml"
@@ -59,7 +59,7 @@ func (f Files) CanWriteBack() error {
 	case f.ReadOnly:
 		return ErrReadOnly
 	case f.StocksPath == "" && f.SpecPath == "":
-		return fmt.Errorf("this workspace did not start from --stocks/--spec files, so there is nothing to write back (save a scenario with s instead)")
+		return fmt.Errorf("nothing to write back: no --stocks/--spec files were given (save with s)")
 	}
 	return nil
 }

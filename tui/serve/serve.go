@@ -114,7 +114,7 @@ func New(cfg Config) (*Server, error) {
 		wish.WithIdleTimeout(cfg.IdleTimeout),
 		wish.WithVersion("SSH-2.0-lipoplan"),
 		wish.WithMiddleware(
-			bubbletea.Middleware(s.workspace),
+			bubbletea.MiddlewareWithProgramHandler(s.program),
 			activeterm.Middleware(),
 			s.bounded,
 			s.logged,
@@ -265,10 +265,16 @@ func (s *Server) Active() int {
 	return s.active
 }
 
-// workspace makes each session its own workspace on a copy of the scenario.
-func (s *Server) workspace(sess ssh.Session) (tea.Model, []tea.ProgramOption) {
+// program makes each session its own workspace on a copy of the scenario.
+// A client that reports no terminal size (OpenSSH with -tt and no local
+// terminal) gets 80x24 rather than a blank screen.
+func (s *Server) program(sess ssh.Session) *tea.Program {
 	m := tui.NewWithScenario(s.cfg.Scenario.Clone(), s.cfg.Source, s.cfg.Files)
-	return m, nil
+	opts := bubbletea.MakeOptions(sess)
+	if pty, _, ok := sess.Pty(); ok && (pty.Window.Width <= 0 || pty.Window.Height <= 0) {
+		opts = append(opts, tea.WithWindowSize(80, 24))
+	}
+	return tea.NewProgram(m, opts...)
 }
 
 // Serve accepts connections on l until Shutdown or Close.
