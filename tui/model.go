@@ -73,6 +73,8 @@ type Model struct {
 	rev        int // revision of sc; bumped by every edit
 	snap       *Snapshot
 	dirty      bool // edits since the last save or load
+	inflight   bool // an evaluation is running
+	queued     bool // edits arrived while it ran
 
 	width, height int
 	panel         panel
@@ -136,8 +138,16 @@ func (m *Model) Message() string { return m.message }
 // Init starts the first evaluation.
 func (m *Model) Init() tea.Cmd { return m.evaluate() }
 
-// evaluate starts evaluating the current scenario in the background.
+// evaluate starts evaluating the current scenario in the background. At
+// most one evaluation runs at a time: edits made meanwhile are folded into
+// one more evaluation of the newest scenario when it returns, so a burst of
+// nudges never queues a solve per key.
 func (m *Model) evaluate() tea.Cmd {
+	if m.inflight {
+		m.queued = true
+		return nil
+	}
+	m.inflight = true
 	sc, rev := m.sc, m.rev
 	return func() tea.Msg { return snapshotMsg{Evaluate(sc, rev)} }
 }
@@ -191,10 +201,15 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 		m.help.SetWidth(m.width - 1)
 		return m, nil
 	case snapshotMsg:
+		m.inflight = false
 		if m.snap == nil || msg.snap.Rev > m.snap.Rev {
 			prev := m.snap
 			m.snap = msg.snap
 			m.noteOutcome(prev)
+		}
+		if m.queued || m.snap.Rev < m.rev {
+			m.queued = false
+			return m, m.evaluate()
 		}
 		return m, nil
 	case tea.PasteMsg:

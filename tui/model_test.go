@@ -9,6 +9,7 @@ import (
 	"testing"
 
 	tea "charm.land/bubbletea/v2"
+	"github.com/charmbracelet/x/ansi"
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
@@ -394,4 +395,28 @@ func TestEvaluateNeverPanics(t *testing.T) {
 	d := newDriver(t, m, 80, 24)
 	d.requireFrame(80, 24)
 	assert.NotEmpty(t, strings.TrimSpace(d.screen()))
+}
+
+func TestEditsDuringASolveAreFolded(t *testing.T) {
+	m := demoModel(t, "laminating", Files{})
+	first := m.Init()
+	require.NotNil(t, first)
+	m.Update(tea.WindowSizeMsg{Width: 80, Height: 24})
+	m.Update(tea.KeyPressMsg{Code: '2', Text: "2"})
+	// three nudges while the first evaluation is still running start no
+	// further solve of their own
+	for i := 0; i < 3; i++ {
+		_, cmd := m.Update(tea.KeyPressMsg{Code: ']', Text: "]"})
+		assert.Nil(t, cmd)
+	}
+	assert.True(t, m.Pending())
+	assert.Contains(t, ansi.Strip(m.View().Content), "solving", "the screen says it is working, never blank")
+	// the first result arrives: one evaluation of the newest scenario follows
+	_, next := m.Update(first())
+	require.NotNil(t, next)
+	_, none := m.Update(next())
+	assert.Nil(t, none)
+	assert.False(t, m.Pending())
+	assert.Equal(t, m.rev, m.Snapshot().Rev)
+	assert.Equal(t, 1180.0, price(m, "rapeseed"))
 }

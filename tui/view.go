@@ -452,8 +452,8 @@ func (m *Model) limitsPanel(w, h int) []string {
 	st := m.styles
 	rows := m.sc.Rows()
 	cur := m.currency()
-	out := []string{st.muted.Render("   " + fit("limit", 16) + rfit("min", 9) + rfit("max", 9) + rfit("blend", 9) + "  " +
-		fit("binds", 7) + rfit(cur+"/t per unit", 15) + "  unit")}
+	out := []string{st.muted.Render("   " + fit("limit", 14) + rfit("min", 9) + rfit("max", 9) + rfit("blend", 9) + "  " +
+		fit("binds", 7) + rfit("saves "+cur+"/t per 1", 17) + "  unit")}
 	n := max(1, h-4)
 	off := m.window(panelLimits, len(rows), n)
 	relax := map[string]optimise.Relax{}
@@ -501,7 +501,7 @@ func (m *Model) limitsPanel(w, h int) []string {
 				worth = fmt.Sprintf("by %s", f2(x.By))
 			}
 		}
-		out = append(out, mark+" "+fit(r.Label, 16)+minC+maxC+rfit(val, 9)+"  "+bindC+rfit(worth, 15)+"  "+st.muted.Render(r.Unit))
+		out = append(out, mark+" "+fit(r.Label, 14)+minC+maxC+rfit(val, 9)+"  "+bindC+rfit(worth, 17)+"  "+st.muted.Render(r.Unit))
 	}
 	for len(out) < h-2 {
 		out = append(out, "")
@@ -550,8 +550,10 @@ func (m *Model) rowValue(r Row) (val, binds, worth string) {
 		if rep, ok := s.Limit(r.Key + "." + sd); ok {
 			val = f2(rep.Value)
 			if rep.Binding {
+				// the saving per unit of moving the bound outwards: raising a
+				// maximum or lowering a minimum (shadow price, sign dropped)
 				binds = "◆ " + sd
-				worth = f2(rep.ShadowPrice)
+				worth = f2(math.Abs(rep.ShadowPrice))
 			}
 		}
 	}
