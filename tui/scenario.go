@@ -1,7 +1,3 @@
-// Package tui is lipoplan's terminal what-if workspace: a bubbletea model that
-// holds one Scenario (stocks, spec and the stocks left out), evaluates it into
-// a Snapshot off the keystroke path, and renders panels from that snapshot.
-// The same model is served to a team over SSH by package tui/serve.
 package tui
 
 import (
