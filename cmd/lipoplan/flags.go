@@ -41,7 +41,7 @@ func (a *app) parse(fs *flag.FlagSet, args []string) error {
 		}
 		return nil
 	case errors.Is(err, flag.ErrHelp):
-		fs.Usage()
+		// flag.Parse has already printed the usage text
 		return errHelp
 	default:
 		fmt.Fprintf(a.stderr, "lipoplan %s: %v; run 'lipoplan %s --help'\n", fs.Name(), err, fs.Name())

@@ -137,3 +137,8 @@ func TestDemoWrite(t *testing.T) {
 	assert.Equal(t, 2, code)
 	assert.Contains(t, errs, "already exists")
 }
+
+func TestHelpPrintedOnce(t *testing.T) {
+	_, out, _ := run(t, "mix", "--help")
+	assert.Equal(t, 1, strings.Count(out, "Usage: lipoplan mix"))
+}
