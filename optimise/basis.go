@@ -4,8 +4,6 @@ import (
 	"errors"
 	"fmt"
 	"math"
-
-	"gonum.org/v1/gonum/mat"
 )
 
 // classify names the state of a variable with value v and bounds lo..up:
@@ -39,7 +37,7 @@ type basisFactor struct {
 	m     *model
 	basic []int // basic variable of each basis position (0..nCols+nRows-1)
 	pos   []int // basis position of each variable, -1 when nonbasic
-	lu    mat.LU
+	lu    denseLU
 }
 
 var errBasis = errors.New("basis is not square and nonsingular")
@@ -57,40 +55,27 @@ func newBasisFactor(m *model, basis []varState) (*basisFactor, error) {
 	if len(f.basic) != r {
 		return nil, fmt.Errorf("%w: %d basic variables for %d rows", errBasis, len(f.basic), r)
 	}
-	b := mat.NewDense(r, r, nil)
+	b := make([]float64, r*r)
 	for p, k := range f.basic {
 		if k < n {
 			for i := 0; i < r; i++ {
-				b.Set(i, p, m.at(i, k))
+				b[i*r+p] = m.at(i, k)
 			}
 		} else {
-			b.Set(k-n, p, -1)
+			b[(k-n)*r+p] = -1
 		}
 	}
-	f.lu.Factorize(b)
-	if c := f.lu.Cond(); math.IsInf(c, 1) || c > 1e14 {
-		return nil, fmt.Errorf("%w: condition number %.3g", errBasis, c)
+	if err := f.lu.factor(b, r); err != nil {
+		return nil, fmt.Errorf("%w: %w", errBasis, err)
 	}
 	return f, nil
 }
 
 // solveT solves Bᵀ z = rhs.
-func (f *basisFactor) solveT(rhs []float64) ([]float64, error) {
-	z := mat.NewVecDense(len(rhs), nil)
-	if err := f.lu.SolveVecTo(z, true, mat.NewVecDense(len(rhs), rhs)); err != nil {
-		return nil, fmt.Errorf("basis solve: %w", err)
-	}
-	return z.RawVector().Data, nil
-}
+func (f *basisFactor) solveT(rhs []float64) ([]float64, error) { return f.lu.solveT(rhs), nil }
 
 // solve solves B z = rhs.
-func (f *basisFactor) solve(rhs []float64) ([]float64, error) {
-	z := mat.NewVecDense(len(rhs), nil)
-	if err := f.lu.SolveVecTo(z, false, mat.NewVecDense(len(rhs), rhs)); err != nil {
-		return nil, fmt.Errorf("basis solve: %w", err)
-	}
-	return z.RawVector().Data, nil
-}
+func (f *basisFactor) solve(rhs []float64) ([]float64, error) { return f.lu.solve(rhs), nil }
 
 // duals computes y from Bᵀ y = c_B (logicals cost nothing) and the reduced
 // costs d = c - Aᵀ y of every column.

@@ -148,6 +148,12 @@ func build(cat *catalogue.Catalogue, spec *catalogue.Spec) (*model, *layout, err
 	}
 
 	m := newModel(n)
+	rows := 1 + len(spec.Limits) + len(spec.SFC)
+	m.a = make([]float64, 0, rows*n)
+	m.rowName = make([]string, 0, rows)
+	m.rowLo = make([]float64, 0, rows)
+	m.rowUp = make([]float64, 0, rows)
+	lay.rows = make([]rowInfo, 0, rows)
 	for j, c := range lay.cols {
 		m.colName[j] = c.stock.ID
 		m.obj[j] = c.stock.Price / 100
@@ -157,7 +163,9 @@ func build(cat *catalogue.Catalogue, spec *catalogue.Spec) (*model, *layout, err
 		if c.use.HasMax() {
 			m.colUp[j] = c.use.Max
 		}
-		m.colUp[j] = math.Min(m.colUp[j], c.availPct)
+		if c.availPct < m.colUp[j] {
+			m.colUp[j] = c.availPct
+		}
 	}
 
 	coef := make([]float64, n)
@@ -248,9 +256,14 @@ func perPct(coef []float64) []float64 {
 // whole spread the stocks on offer can cover". When every stock has the same
 // value it falls back to the size of the bound, and to 1.
 func spread(coef []float64, b catalogue.Bound) float64 {
-	lo, hi := math.Inf(1), math.Inf(-1)
-	for _, v := range coef {
-		lo, hi = math.Min(lo, v), math.Max(hi, v)
+	lo, hi := coef[0], coef[0]
+	for _, v := range coef[1:] {
+		if v < lo {
+			lo = v
+		}
+		if v > hi {
+			hi = v
+		}
 	}
 	if s := hi - lo; s > 1e-9 {
 		return s

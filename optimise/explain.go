@@ -3,6 +3,7 @@ package optimise
 import (
 	"fmt"
 	"math"
+	"strconv"
 )
 
 // words writes shadow prices in plain trade words: what moving a limit by
@@ -15,9 +16,9 @@ type words struct {
 // money writes an amount per tonne of product, e.g. "3.10 EUR/t".
 func (w words) money(v float64) string {
 	if w.cur == "" {
-		return fmt.Sprintf("%.2f per t", v)
+		return strconv.FormatFloat(v, 'f', 2, 64) + " per t"
 	}
-	return fmt.Sprintf("%.2f %s/t", v, w.cur)
+	return strconv.FormatFloat(v, 'f', 2, 64) + " " + w.cur + "/t"
 }
 
 func (w words) batch(v float64) string {
@@ -35,16 +36,16 @@ func (w words) move(what string, s float64, loosenUp bool) string {
 		dir, saving = "raising", s
 	}
 	if math.Abs(s) <= w.tiny {
-		return fmt.Sprintf("binding, but %s %s saves nothing at the margin", dir, what)
+		return "binding, but " + dir + " " + what + " saves nothing at the margin"
 	}
 	if saving > 0 {
-		return fmt.Sprintf("%s %s saves %s", dir, what, w.money(saving))
+		return dir + " " + what + " saves " + w.money(saving)
 	}
-	return fmt.Sprintf("%s %s costs %s", dir, what, w.money(-saving))
+	return dir + " " + what + " costs " + w.money(-saving)
 }
 
 func slack(lr LimitReport, unit string) string {
-	return fmt.Sprintf("not binding: %.4g%s inside the bound", math.Abs(lr.Value-lr.Bound), unit)
+	return "not binding: " + strconv.FormatFloat(math.Abs(lr.Value-lr.Bound), 'g', 4, 64) + unit + " inside the bound"
 }
 
 // limit explains a property, fatty-acid or SFC limit, e.g. "raising the IV
@@ -57,7 +58,7 @@ func (w words) limit(lr LimitReport, label, unit string, isMax bool) string {
 	if isMax {
 		side = "maximum"
 	}
-	return w.move(fmt.Sprintf("the %s %s by 1%s", label, side, unit), lr.ShadowPrice, isMax)
+	return w.move("the "+label+" "+side+" by 1"+unit, lr.ShadowPrice, isMax)
 }
 
 // useLimit explains a [use] bound of one stock.
@@ -75,7 +76,7 @@ func (w words) useLimit(lr LimitReport, id string, isMax bool) string {
 // stock on hand.
 func (w words) avail(lr LimitReport, id string, batch float64) string {
 	if !lr.Binding {
-		return fmt.Sprintf("not binding: %.4g t of %s left over", math.Max(lr.Bound-lr.Value, 0), id)
+		return "not binding: " + strconv.FormatFloat(math.Max(lr.Bound-lr.Value, 0), 'g', 4, 64) + " t of " + id + " left over"
 	}
 	if lr.ShadowPrice <= w.tiny {
 		return fmt.Sprintf("all %s on hand is used, but more of it would save nothing", id)

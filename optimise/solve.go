@@ -124,7 +124,9 @@ func near(v, b float64) bool { return math.Abs(v-b) <= 1e-6*(1+math.Abs(b)) }
 func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt Options) error {
 	n := l.n()
 	batch := l.spec.Batch
-	var parts []blend.Part
+	res.Limits = make([]LimitReport, 0, 2*len(l.rows)+3*n+2)
+	res.Ranging = make([]Range, 0, n)
+	parts := make([]blend.Part, 0, m.nRows)
 	var cost float64
 	for j := 0; j < n; j++ {
 		x := math.Max(sol.x[j], 0)

@@ -41,6 +41,9 @@ func TestLPPaperExample(t *testing.T) {
 	assert.Equal(t, Basic, lp.ColStatus(0))
 	assert.Equal(t, Basic, lp.ColStatus(1))
 	assert.NotEqual(t, Basic, lp.RowStatus(0))
+	st := lp.Statuses(nil)
+	require.Len(t, st, 4)
+	assert.Equal(t, []Basis{lp.ColStatus(0), lp.ColStatus(1), lp.RowStatus(0), lp.RowStatus(1)}, st)
 	lp.Close()
 	lp.Close() // idempotent
 }
