@@ -49,6 +49,7 @@ func commands() []command {
 		{"tags", "TAG distribution of a mix, native or after interesterification", (*app).tags},
 		{"explore", "terminal what-if workspace", (*app).explore},
 		{"serve", "serve the workspace to a team over SSH", (*app).serve},
+		{"solve", "cheapest blend that meets a spec", (*app).solve},
 		// further commands add their line here
 	}
 	sort.SliceStable(cs, func(i, j int) bool { return order(cs[i].name) < order(cs[j].name) })

@@ -1,0 +1,334 @@
+package main
+
+import (
+	"encoding/csv"
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+
+	"lipoplan/blend"
+	"lipoplan/catalogue"
+	"lipoplan/optimise"
+)
+
+func (a *app) solve(args []string) error {
+	fs := a.newFlags("solve", `[--stocks F] [--spec F] [--format text|json|csv] [--mps FILE] [--temps "5,10,37"]`,
+		"Cheapest blend of the stocks that meets the spec: a linear programme (COIN-OR CLP; integer rules\n"+
+			"max_stocks and min_if_used by CBC), with the cost of every binding limit, price ranging per stock\n"+
+			"and, when the spec cannot be met, the smallest relaxation that would make it feasible (exit 3).")
+	stocksPath := fs.String("stocks", "", "stock catalogue TOML (default: embedded demo stocks)")
+	specPath := fs.String("spec", "", "product spec TOML (default: the embedded demo laminating spec)")
+	format := fs.String("format", "text", "text, json or csv")
+	mps := fs.String("mps", "", "also write the model to this file in free MPS format")
+	temps := fs.String("temps", "", `SFC temperatures to report, deg C (default 10,15,...,45 plus the spec's)`)
+	if err := a.parse(fs, args); err != nil {
+		return err
+	}
+	if err := checkFormat(*format, "text", "json", "csv"); err != nil {
+		return err
+	}
+	cat, err := a.stocks(*stocksPath)
+	if err != nil {
+		return err
+	}
+	spec, err := a.spec(*specPath, cat)
+	if err != nil {
+		return err
+	}
+	ts, err := parseTemps(*temps)
+	if err != nil {
+		return err
+	}
+	if ts == nil {
+		extra := make([]float64, len(spec.SFC))
+		for i, l := range spec.SFC {
+			extra[i] = l.Temp
+		}
+		ts = blend.Temps(extra...)
+	}
+	if *mps != "" {
+		if err := optimise.WriteMPS(*mps, cat, spec); err != nil {
+			return fmt.Errorf("--mps: %w", err)
+		}
+	}
+	res, err := optimise.Solve(cat, spec, optimise.Options{Temps: ts})
+	if err != nil {
+		return err
+	}
+	switch *format {
+	case "json":
+		err = writeJSON(a.stdout, solveJSON(res))
+	case "csv":
+		err = writeSolveCSV(a.stdout, res)
+	default:
+		writeSolveText(a.stdout, res, spec, ts)
+	}
+	if err != nil {
+		return err
+	}
+	if res.Status == optimise.Infeasible {
+		return errInfeasible
+	}
+	return nil
+}
+
+// finiteOrNil writes an infinite range end as JSON null.
+func finiteOrNil(v float64, digits int) any {
+	if math.IsInf(v, 0) || math.IsNaN(v) {
+		return nil
+	}
+	return round(v, digits)
+}
+
+// solveJSON is the stable JSON shape of a solve (DESIGN section 4).
+func solveJSON(r *optimise.Result) map[string]any {
+	out := map[string]any{"status": string(r.Status)}
+	blendOut := []map[string]any{}
+	limits := []map[string]any{}
+	ranging := []map[string]any{}
+	if r.Status == optimise.Optimal {
+		out["cost_per_tonne"] = round(r.CostPerTonne, 4)
+		out["batch_cost"] = round(r.BatchCost, 2)
+		out["properties"] = propertiesJSON(r.Properties)
+		for _, l := range r.Blend {
+			blendOut = append(blendOut, map[string]any{"stock": l.Stock, "pct": round(l.Pct, 6), "tonnes": round(l.Tonnes, 6)})
+		}
+		for _, l := range r.Limits {
+			limits = append(limits, map[string]any{
+				"name": l.Name, "value": round(l.Value, 6), "bound": round(l.Bound, 6),
+				"binding": l.Binding, "shadow_price": round(l.ShadowPrice, 6),
+			})
+		}
+		for _, g := range r.Ranging {
+			ranging = append(ranging, map[string]any{"stock": g.Stock, "price_low": finiteOrNil(g.PriceLow, 4), "price_high": finiteOrNil(g.PriceHigh, 4)})
+		}
+	} else {
+		out["cost_per_tonne"] = nil
+		out["batch_cost"] = nil
+		out["properties"] = nil
+		relax := []map[string]any{}
+		for _, x := range r.Relaxation {
+			relax = append(relax, map[string]any{"name": x.Name, "by": round(x.By, 6)})
+		}
+		out["relaxation"] = relax
+	}
+	out["blend"] = blendOut
+	out["limits"] = limits
+	out["ranging"] = ranging
+	return out
+}
+
+// writeSolveCSV writes the answer as one long table for spreadsheets: a
+// section column (status, cost, blend, limit, ranging, relaxation) and the
+// fields that section uses.
+func writeSolveCSV(w io.Writer, r *optimise.Result) error {
+	cw := csv.NewWriter(w)
+	f := func(v float64) string {
+		if math.IsInf(v, 0) || math.IsNaN(v) {
+			return ""
+		}
+		return strconv.FormatFloat(v, 'f', -1, 64)
+	}
+	rows := [][]string{
+		{"section", "name", "value", "tonnes", "bound", "binding", "shadow_price", "price", "price_low", "price_high"},
+		{"status", string(r.Status), "", "", "", "", "", "", "", ""},
+	}
+	if r.Status == optimise.Optimal {
+		rows = append(rows,
+			[]string{"cost", "cost_per_tonne", f(r.CostPerTonne), "", "", "", "", "", "", ""},
+			[]string{"cost", "batch_cost", f(r.BatchCost), "", "", "", "", "", "", ""})
+		for _, l := range r.Blend {
+			rows = append(rows, []string{"blend", l.Stock, f(l.Pct), f(l.Tonnes), "", "", "", "", "", ""})
+		}
+		for _, l := range r.Limits {
+			rows = append(rows, []string{"limit", l.Name, f(l.Value), "", f(l.Bound), strconv.FormatBool(l.Binding), f(l.ShadowPrice), "", "", ""})
+		}
+		for _, g := range r.Ranging {
+			rows = append(rows, []string{"ranging", g.Stock, "", "", "", "", "", f(g.Price), f(g.PriceLow), f(g.PriceHigh)})
+		}
+	}
+	for _, x := range r.Relaxation {
+		rows = append(rows, []string{"relaxation", x.Name, f(x.By), "", "", "", "", "", "", ""})
+	}
+	if err := cw.WriteAll(rows); err != nil {
+		return fmt.Errorf("writing CSV: %w", err)
+	}
+	return nil
+}
+
+func money(v float64, cur string) string {
+	s := strconv.FormatFloat(v, 'f', 2, 64)
+	if cur == "" {
+		return s
+	}
+	return s + " " + cur
+}
+
+// writeSolveText prints the report: blend table, costs, properties,
+// limits against the blend, what each binding limit costs, price ranging,
+// stocks left out, and the caution.
+func writeSolveText(w io.Writer, r *optimise.Result, spec *catalogue.Spec, temps []float64) {
+	title := spec.Name
+	if title == "" {
+		title = spec.File
+	}
+	engine := r.Engine
+	fmt.Fprintf(w, "Spec: %s (%g t batch)\n", title, r.Batch)
+	if r.Status != optimise.Optimal {
+		writeDiagnosis(w, r, spec)
+		fmt.Fprintln(w)
+		fmt.Fprintln(w, cautionLine)
+		return
+	}
+	fmt.Fprintf(w, "Cheapest blend found (%s):\n\n", engine)
+	fmt.Fprintf(w, "  %-14s %-34s %8s %9s %11s\n", "stock", "name", "%", "tonnes", "price/t")
+	prices := map[string]float64{}
+	for _, g := range r.Ranging {
+		prices[g.Stock] = g.Price
+	}
+	var sum, tonnes float64
+	for _, l := range r.Blend {
+		fmt.Fprintf(w, "  %-14s %-34s %8.2f %9.3f %11s\n", l.Stock, clip(l.Name, 34), l.Pct, l.Tonnes, money(prices[l.Stock], ""))
+		sum += l.Pct
+		tonnes += l.Tonnes
+	}
+	fmt.Fprintf(w, "  %-14s %-34s %8.2f %9.3f\n\n", "total", "", sum, tonnes)
+	fmt.Fprintf(w, "  Cost: %s per tonne, %s per batch\n\n", money(r.CostPerTonne, r.Currency), money(r.BatchCost, r.Currency))
+
+	fmt.Fprintln(w, "Properties of the blend")
+	writeProperties(w, r.Properties, temps)
+	fmt.Fprintln(w)
+
+	fmt.Fprintln(w, "Limits (shadow price: what raising the bound by one unit saves per tonne; + saves, - costs)")
+	fmt.Fprintf(w, "  %-22s %10s %10s  %-8s %12s\n", "limit", "blend", "bound", "", "shadow/t")
+	for _, l := range r.Limits {
+		state := "slack"
+		if l.Binding {
+			state = "BINDING"
+		}
+		fmt.Fprintf(w, "  %-22s %10.3f %10.3f  %-8s %12.4f\n", l.Name, l.Value, l.Bound, state, l.ShadowPrice)
+	}
+	fmt.Fprintln(w)
+	fmt.Fprintln(w, "What the binding limits cost")
+	any := false
+	for _, l := range r.Limits {
+		if l.Binding {
+			fmt.Fprintf(w, "  %-22s %s\n", l.Name, l.Explain)
+			any = true
+		}
+	}
+	if !any {
+		fmt.Fprintln(w, "  none: no limit holds the blend back; it is simply the cheapest mix")
+	}
+	fmt.Fprintln(w)
+
+	fmt.Fprintln(w, "Price ranging (the blend stays the same while the stock's price stays within the range)")
+	fmt.Fprintf(w, "  %-14s %11s %11s %11s\n", "in the blend", "price", "from", "to")
+	for _, g := range r.Ranging {
+		if g.InBlend {
+			fmt.Fprintf(w, "  %-14s %11.2f %11s %11s\n", g.Stock, g.Price, rangeEnd(g.PriceLow), rangeEnd(g.PriceHigh))
+		}
+	}
+	fmt.Fprintln(w)
+	fmt.Fprintln(w, "Stocks left out (the price at which each would start to pay its way)")
+	for _, g := range r.Ranging {
+		if g.InBlend {
+			continue
+		}
+		switch {
+		case math.IsInf(g.PriceLow, -1):
+			fmt.Fprintf(w, "  %-14s %11.2f  kept out by a limit or rule, not by its price\n", g.Stock, g.Price)
+		default:
+			fmt.Fprintf(w, "  %-14s %11.2f  would enter below %.2f (%.2f cheaper)\n", g.Stock, g.Price, g.PriceLow, g.Price-g.PriceLow)
+		}
+	}
+	fmt.Fprintln(w)
+	fmt.Fprintln(w, cautionLine)
+}
+
+func rangeEnd(v float64) string {
+	switch {
+	case math.IsInf(v, 1):
+		return "no limit"
+	case math.IsInf(v, -1):
+		return "no limit"
+	}
+	return strconv.FormatFloat(v, 'f', 2, 64)
+}
+
+// writeDiagnosis explains an impossible spec and the smallest relaxation.
+func writeDiagnosis(w io.Writer, r *optimise.Result, spec *catalogue.Spec) {
+	fmt.Fprintln(w, "The spec cannot be met with these stocks.")
+	if len(r.Relaxation) == 0 {
+		return
+	}
+	fmt.Fprintln(w)
+	fmt.Fprintln(w, "Smallest change that would make it feasible (elastic LP; each move is weighed against the")
+	fmt.Fprintln(w, "spread of that quantity over the stocks, so IV units and % points compare fairly):")
+	for _, x := range r.Relaxation {
+		line := relaxWords(x)
+		if b, ok := boundOf(spec, x.Name); ok {
+			to := b + x.By
+			if strings.HasSuffix(x.Name, ".min") {
+				to = b - x.By
+			}
+			line += " (from " + strconv.FormatFloat(b, 'g', 6, 64) + " to " + strconv.FormatFloat(to, 'g', 6, 64) + ")"
+		}
+		fmt.Fprintf(w, "  %-22s %s\n", x.Name, line)
+	}
+}
+
+// boundOf finds the bound a relaxation name refers to in the spec.
+func boundOf(spec *catalogue.Spec, name string) (float64, bool) {
+	dot := strings.LastIndexByte(name, '.')
+	if dot < 0 {
+		return 0, false
+	}
+	key, side := name[:dot], name[dot+1:]
+	pick := func(b catalogue.Bound) (float64, bool) {
+		if side == "min" && b.HasMin() {
+			return b.Min, true
+		}
+		if side == "max" && b.HasMax() {
+			return b.Max, true
+		}
+		return 0, false
+	}
+	if id, ok := strings.CutPrefix(key, "use."); ok {
+		for _, u := range spec.Use {
+			if u.Stock == id {
+				return pick(u.Bound)
+			}
+		}
+		return 0, false
+	}
+	if t, ok := strings.CutPrefix(key, "sfc."); ok {
+		for _, l := range spec.SFC {
+			if catalogue.TempKey(l.Temp) == t {
+				return pick(l.Bound)
+			}
+		}
+		return 0, false
+	}
+	for _, l := range spec.Limits {
+		if l.Name == key {
+			return pick(l.Bound)
+		}
+	}
+	return 0, false
+}
+
+func relaxWords(x optimise.Relax) string {
+	by := strconv.FormatFloat(x.By, 'g', 4, 64)
+	switch {
+	case strings.HasPrefix(x.Name, "avail."):
+		return "have " + by + " t more of " + strings.TrimPrefix(x.Name, "avail.") + " on hand"
+	case strings.HasSuffix(x.Name, ".max"):
+		return "raise the maximum by " + by
+	case strings.HasSuffix(x.Name, ".min"):
+		return "lower the minimum by " + by
+	}
+	return "move by " + by
+}

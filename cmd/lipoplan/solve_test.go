@@ -1,0 +1,196 @@
+package main
+
+import (
+	"bufio"
+	"encoding/csv"
+	"encoding/json"
+	"math"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"sort"
+	"strconv"
+	"strings"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"lipoplan/catalogue"
+	"lipoplan/optimise"
+)
+
+func keysOf(m map[string]any) []string {
+	var ks []string
+	for k := range m {
+		ks = append(ks, k)
+	}
+	sort.Strings(ks)
+	return ks
+}
+
+func TestSolveDemoJSON(t *testing.T) {
+	code, out, errs := run(t, "solve", "--format", "json")
+	require.Equal(t, 0, code, errs)
+	var got map[string]any
+	require.NoError(t, json.Unmarshal([]byte(out), &got))
+	// The keys of DESIGN section 4, exactly.
+	assert.Equal(t, []string{"batch_cost", "blend", "cost_per_tonne", "limits", "properties", "ranging", "status"}, keysOf(got))
+	assert.Equal(t, "optimal", got["status"])
+	var pct float64
+	for _, l := range got["blend"].([]any) {
+		line := l.(map[string]any)
+		assert.Equal(t, []string{"pct", "stock", "tonnes"}, keysOf(line))
+		pct += line["pct"].(float64)
+	}
+	assert.InDelta(t, 100, pct, 1e-4)
+	for _, l := range got["limits"].([]any) {
+		assert.Equal(t, []string{"binding", "bound", "name", "shadow_price", "value"}, keysOf(l.(map[string]any)))
+	}
+	for _, g := range got["ranging"].([]any) {
+		assert.Equal(t, []string{"price_high", "price_low", "stock"}, keysOf(g.(map[string]any)))
+	}
+	props := got["properties"].(map[string]any)
+	for _, k := range []string{"fatty_acids", "iv", "sv", "safa", "mufa", "pufa", "trans", "cox", "sfc"} {
+		assert.Contains(t, props, k)
+	}
+	assert.Contains(t, props["sfc"], "20")
+}
+
+func TestSolveDemoText(t *testing.T) {
+	code, out, errs := run(t, "solve")
+	require.Equal(t, 0, code, errs)
+	for _, want := range []string{"Cheapest blend found", "Properties of the blend", "What the binding limits cost",
+		"Price ranging", "Stocks left out", "saves", cautionLine} {
+		assert.Contains(t, out, want)
+	}
+}
+
+func TestSolveCSV(t *testing.T) {
+	code, out, errs := run(t, "solve", "--format", "csv")
+	require.Equal(t, 0, code, errs)
+	rows, err := csv.NewReader(strings.NewReader(out)).ReadAll()
+	require.NoError(t, err)
+	require.Greater(t, len(rows), 3)
+	assert.Equal(t, "section", rows[0][0])
+	assert.Equal(t, []string{"status", "optimal"}, rows[1][:2])
+	var pct float64
+	for _, r := range rows {
+		if r[0] == "blend" {
+			v, err := strconv.ParseFloat(r[2], 64)
+			require.NoError(t, err)
+			pct += v
+		}
+	}
+	assert.InDelta(t, 100, pct, 1e-6)
+}
+
+// impossibleSpec asks for 30 % solid fat at 20 °C with at most 5 % SAFA:
+// solid fat at room temperature is saturated fat (common practice: fully
+// saturated TAGs are the high-melting ones), so no blend of the demo stocks
+// can do both.
+const impossibleSpec = `name = "Impossible test fat"
+batch = 10.0
+[limits]
+safa = { max = 5.0 }
+[limits.sfc]
+"20" = { min = 30.0 }
+`
+
+func TestSolveInfeasible(t *testing.T) {
+	dir := t.TempDir()
+	path := filepath.Join(dir, "impossible.toml")
+	require.NoError(t, os.WriteFile(path, []byte(impossibleSpec), 0o644))
+
+	code, out, _ := run(t, "solve", "--spec", path)
+	assert.Equal(t, 3, code)
+	assert.Contains(t, out, "cannot be met")
+	assert.Contains(t, out, cautionLine)
+
+	code, out, _ = run(t, "solve", "--spec", path, "--format", "json")
+	assert.Equal(t, 3, code)
+	var got struct {
+		Status     string           `json:"status"`
+		Relaxation []optimise.Relax `json:"relaxation"`
+	}
+	require.NoError(t, json.Unmarshal([]byte(out), &got))
+	assert.Equal(t, "infeasible", got.Status)
+	require.NotEmpty(t, got.Relaxation)
+	var raw map[string]any
+	require.NoError(t, json.Unmarshal([]byte(out), &raw))
+	for _, r := range raw["relaxation"].([]any) {
+		assert.Equal(t, []string{"by", "name"}, keysOf(r.(map[string]any)))
+	}
+	// The relaxation applied makes the spec feasible.
+	cat := catalogue.DemoStocks()
+	spec, ps := catalogue.LoadSpec(path, cat)
+	require.Empty(t, ps.Errors())
+	c2, s2, err := optimise.Relaxed(cat, spec, got.Relaxation)
+	require.NoError(t, err)
+	res, err := optimise.Solve(c2, s2, optimise.Options{})
+	require.NoError(t, err)
+	assert.Equal(t, optimise.Optimal, res.Status)
+}
+
+// glpsolObjective solves an MPS file with GLPK (an outside reference) and
+// reads the objective from its plain-text solution ("s bas ... obj").
+func glpsolObjective(t *testing.T, mps string) float64 {
+	t.Helper()
+	sol := mps + ".sol"
+	out, err := exec.Command("glpsol", "--freemps", mps, "-w", sol).CombinedOutput()
+	require.NoError(t, err, string(out))
+	f, err := os.Open(sol)
+	require.NoError(t, err)
+	defer f.Close()
+	sc := bufio.NewScanner(f)
+	for sc.Scan() {
+		fs := strings.Fields(sc.Text())
+		if len(fs) >= 7 && fs[0] == "s" && fs[1] == "bas" {
+			require.Equal(t, "f", fs[4], "GLPK finds no feasible optimum")
+			v, err := strconv.ParseFloat(fs[6], 64)
+			require.NoError(t, err)
+			return v
+		}
+	}
+	t.Fatal("no solution line in glpsol output")
+	return math.NaN()
+}
+
+func TestSolveMPSAgainstGLPK(t *testing.T) {
+	if _, err := exec.LookPath("glpsol"); err != nil {
+		t.Skip("glpsol (Debian package glpk-utils) is not on PATH; .ci/run installs it")
+	}
+	dir := t.TempDir()
+	mps := filepath.Join(dir, "model.mps")
+	code, out, errs := run(t, "solve", "--format", "json", "--mps", mps)
+	require.Equal(t, 0, code, errs)
+	var got struct {
+		Cost float64 `json:"cost_per_tonne"`
+	}
+	require.NoError(t, json.Unmarshal([]byte(out), &got))
+	obj := glpsolObjective(t, mps)
+	assert.InDelta(t, obj, got.Cost, 1e-6*obj+1e-4) // JSON rounds the cost to 4 decimals
+	entries, err := os.ReadDir(dir)
+	require.NoError(t, err)
+	for _, e := range entries {
+		assert.False(t, strings.HasSuffix(e.Name(), ".tmp"), "temporary file %s left behind", e.Name())
+	}
+}
+
+func TestSolveBadInput(t *testing.T) {
+	code, _, errs := run(t, "solve", "--format", "xml")
+	assert.Equal(t, 2, code)
+	assert.Contains(t, errs, "--format")
+
+	code, _, errs = run(t, "solve", "--spec", filepath.Join(t.TempDir(), "nope.toml"))
+	assert.Equal(t, 2, code)
+	assert.Contains(t, errs, "nope.toml")
+
+	code, _, errs = run(t, "solve", "--mps", filepath.Join(t.TempDir(), "no-such-dir", "m.mps"))
+	assert.Equal(t, 2, code)
+	assert.Contains(t, errs, "m.mps")
+
+	code, _, errs = run(t, "solve", "--temps", "hot")
+	assert.Equal(t, 2, code)
+	assert.Contains(t, errs, "--temps")
+}
