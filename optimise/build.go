@@ -175,9 +175,13 @@ func build(cat *catalogue.Catalogue, spec *catalogue.Spec) (*model, *layout, err
 	m.addRow("sum", coef, 100, 100)
 	lay.rows = append(lay.rows, rowInfo{kind: rowSum, key: "sum", label: "sum of shares", unit: " %", bound: catalogue.Bound{Min: 100, Max: 100}, scale: 1})
 
-	// Profiles are computed once per stock, and only when a property limit
-	// needs one; fatty-acid limits read the profile directly.
-	var props []blend.Properties
+	// Every [limits] row is filled stock by stock: one blend.Profile per
+	// stock (only when a property limit needs it) gives that stock's value
+	// of every limited quantity at once; fatty-acid limits read the profile
+	// directly. The rows are written straight into the flat matrix.
+	var active []catalogue.Limit
+	var isFA []bool
+	needProfile := false
 	for _, l := range spec.Limits {
 		if !l.HasMin() && !l.HasMax() {
 			continue // an empty limit constrains nothing
@@ -185,27 +189,40 @@ func build(cat *catalogue.Catalogue, spec *catalogue.Spec) (*model, *layout, err
 		if math.IsNaN(l.Min) || math.IsNaN(l.Max) || l.Min > l.Max {
 			return nil, nil, catalogue.Badf("%s: limit %q = { min = %v, max = %v }: min must not exceed max", where, l.Name, l.Min, l.Max)
 		}
-		_, isFA := catalogue.Lookup(l.Name)
-		if !isFA && !catalogue.IsProperty(l.Name) {
+		_, fa := catalogue.Lookup(l.Name)
+		if !fa && !catalogue.IsProperty(l.Name) {
 			return nil, nil, catalogue.Badf("%s: limit %q is neither a property (%s) nor a fatty-acid key such as \"C18:2\"", where, l.Name, strings.Join(catalogue.Properties, ", "))
 		}
-		for j, c := range lay.cols {
-			if isFA {
-				coef[j] = c.stock.FattyAcids[l.Name]
-				continue
-			}
-			if props == nil {
-				props = make([]blend.Properties, n)
-				for k, ck := range lay.cols {
-					props[k] = blend.Profile(ck.stock.FattyAcids)
-				}
-			}
-			// As blend.Coefficient: every property is linear in mass share.
-			coef[j], _ = props[j].Value(l.Name)
+		active = append(active, l)
+		isFA = append(isFA, fa)
+		needProfile = needProfile || !fa
+	}
+	first := m.nRows
+	for _, l := range active {
+		m.addRow(l.Name, coef[:0], l.Min, l.Max) // coefficients follow
+	}
+	m.a = m.a[:m.nRows*n]
+	for j, c := range lay.cols {
+		var p blend.Properties
+		if needProfile {
+			p = blend.Profile(c.stock.FattyAcids)
 		}
+		for i, l := range active {
+			var v float64
+			if isFA[i] {
+				v = c.stock.FattyAcids[l.Name]
+			} else {
+				// As blend.Coefficient: every property is linear in mass share.
+				v, _ = p.Value(l.Name)
+			}
+			m.a[(first+i)*n+j] = v
+		}
+	}
+	for i, l := range active {
+		row := m.row(first + i)
 		label, unit := propertyLabel(l.Name)
-		lay.rows = append(lay.rows, rowInfo{kind: rowLimit, key: l.Name, label: label, unit: unit, bound: l.Bound, scale: spread(coef, l.Bound)})
-		m.addRow(l.Name, perPct(coef), l.Min, l.Max)
+		lay.rows = append(lay.rows, rowInfo{kind: rowLimit, key: l.Name, label: label, unit: unit, bound: l.Bound, scale: spread(row, l.Bound)})
+		perPct(row)
 	}
 
 	for _, l := range spec.SFC {

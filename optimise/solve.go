@@ -124,7 +124,19 @@ func near(v, b float64) bool { return math.Abs(v-b) <= 1e-6*(1+math.Abs(b)) }
 func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt Options) error {
 	n := l.n()
 	batch := l.spec.Batch
-	res.Limits = make([]LimitReport, 0, 2*len(l.rows)+3*n+2)
+	nl := 2 + 2*len(l.rows)
+	for _, c := range l.cols {
+		if c.use.HasMin() {
+			nl++
+		}
+		if c.use.HasMax() {
+			nl++
+		}
+		if c.stock.Limited() {
+			nl++
+		}
+	}
+	res.Limits = make([]LimitReport, 0, nl)
 	res.Ranging = make([]Range, 0, n)
 	parts := make([]blend.Part, 0, m.nRows)
 	var cost float64
