@@ -10,26 +10,11 @@ import (
 	"lipoplan/catalogue"
 )
 
-// rowKind tells what a model row stands for.
-type rowKind int
-
-const (
-	rowSum    rowKind = iota // the shares add up to 100 %
-	rowLimit                 // a [limits] entry: property or fatty acid
-	rowSFC                   // a [limits.sfc] entry
-	rowLink                  // integer rule: x_j <= U_j·used_j
-	rowMinUse                // integer rule: x_j >= min_if_used·used_j
-	rowCount                 // integer rule: Σ used_j <= max_stocks
-)
-
 // rowInfo describes one model row for reports and relaxation.
 type rowInfo struct {
-	kind  rowKind
-	key   string  // model row name: "sum", "iv", "C18:2", "sfc.20", ...
-	label string  // trade words: "IV", "SFC at 20 °C", ...
-	unit  string  // unit of the limited quantity, "" for IV
-	temp  float64 // rowSFC only
-	stock int     // rowLink, rowMinUse: the stock column
+	key   string // model row name: "sum", "iv", "C18:2", "sfc.20", ...
+	label string // trade words: "IV", "SFC at 20 °C", ...
+	unit  string // unit of the limited quantity, "" for IV
 	bound catalogue.Bound
 	// scale is the typical magnitude of the limited quantity among the
 	// stocks on offer (see elastic.go); deficits are divided by it.
@@ -173,7 +158,7 @@ func build(cat *catalogue.Catalogue, spec *catalogue.Spec) (*model, *layout, err
 		coef[j] = 1
 	}
 	m.addRow("sum", coef, 100, 100)
-	lay.rows = append(lay.rows, rowInfo{kind: rowSum, key: "sum", label: "sum of shares", unit: " %", bound: catalogue.Bound{Min: 100, Max: 100}, scale: 1})
+	lay.rows = append(lay.rows, rowInfo{key: "sum", label: "sum of shares", unit: " %", bound: catalogue.Bound{Min: 100, Max: 100}, scale: 1})
 
 	// Every [limits] row is filled stock by stock: one blend.Profile per
 	// stock (only when a property limit needs it) gives that stock's value
@@ -221,7 +206,7 @@ func build(cat *catalogue.Catalogue, spec *catalogue.Spec) (*model, *layout, err
 	for i, l := range active {
 		row := m.row(first + i)
 		label, unit := propertyLabel(l.Name)
-		lay.rows = append(lay.rows, rowInfo{kind: rowLimit, key: l.Name, label: label, unit: unit, bound: l.Bound, scale: spread(row, l.Bound)})
+		lay.rows = append(lay.rows, rowInfo{key: l.Name, label: label, unit: unit, bound: l.Bound, scale: spread(row, l.Bound)})
 		perPct(row)
 	}
 
@@ -250,7 +235,7 @@ func build(cat *catalogue.Catalogue, spec *catalogue.Spec) (*model, *layout, err
 			return nil, nil, catalogue.Badf("%s: limit sfc %q: stock %s has no measured SFC at %s °C; add \"%s\" under [stock.sfc] (within its measured range) or exclude it with [use] %s = { max = 0 }",
 				where, t, strings.Join(lacking, ", "), t, t, lacking[0])
 		}
-		lay.rows = append(lay.rows, rowInfo{kind: rowSFC, key: sfcKey(l.Temp), label: "SFC at " + catalogue.TempKey(l.Temp) + " °C", unit: " % solid", temp: l.Temp, bound: l.Bound, scale: spread(coef, l.Bound)})
+		lay.rows = append(lay.rows, rowInfo{key: sfcKey(l.Temp), label: "SFC at " + catalogue.TempKey(l.Temp) + " °C", unit: " % solid", bound: l.Bound, scale: spread(coef, l.Bound)})
 		m.addRow(sfcKey(l.Temp), perPct(coef), l.Min, l.Max)
 	}
 	if r := spec.Rules; r.MaxStocks < 0 || math.IsNaN(r.MinIfUsed) || r.MinIfUsed < 0 || r.MinIfUsed > 100 {
@@ -330,17 +315,14 @@ func (l *layout) withRules(m *model, linkCap func(j int) float64) *model {
 		copy(coef, m.row(i))
 		out.addRow(m.rowName[i], coef, m.rowLo[i], m.rowUp[i])
 	}
-	l.milpRows = l.milpRows[:0]
 	inf := math.Inf(1)
 	for _, j := range cand {
 		clear(coef)
 		coef[j], coef[l.used[j]] = 1, -linkCap(j)
 		out.addRow("link."+m.colName[j], coef, math.Inf(-1), 0)
-		l.milpRows = append(l.milpRows, rowInfo{kind: rowLink, key: "link." + m.colName[j], stock: j})
 		if r.MinIfUsed > 0 {
 			coef[l.used[j]] = -r.MinIfUsed
 			out.addRow("minuse."+m.colName[j], coef, 0, inf)
-			l.milpRows = append(l.milpRows, rowInfo{kind: rowMinUse, key: "minuse." + m.colName[j], stock: j})
 		}
 	}
 	if r.MaxStocks > 0 {
@@ -349,7 +331,6 @@ func (l *layout) withRules(m *model, linkCap func(j int) float64) *model {
 			coef[l.used[j]] = 1
 		}
 		out.addRow("count", coef, math.Inf(-1), float64(r.MaxStocks))
-		l.milpRows = append(l.milpRows, rowInfo{kind: rowCount, key: "count"})
 	}
 	return out
 }
