@@ -200,6 +200,9 @@ func build(cat *catalogue.Catalogue, spec *catalogue.Spec) (*model, *layout, err
 				// As blend.Coefficient: every property is linear in mass share.
 				v, _ = p.Value(l.Name)
 			}
+			if !finiteNum(v) {
+				return nil, nil, catalogue.Badf("stock %q: its %s is %v; give finite fatty-acid values", c.stock.ID, l.Name, v)
+			}
 			m.a[(first+i)*n+j] = v
 		}
 	}
@@ -226,6 +229,9 @@ func build(cat *catalogue.Catalogue, spec *catalogue.Spec) (*model, *layout, err
 				}
 				lay.cols[j].frozen = true
 				v = 0
+			}
+			if !finiteNum(v) {
+				return nil, nil, catalogue.Badf("stock %q: SFC at %s °C is %v; give finite values under [stock.sfc]", c.stock.ID, catalogue.TempKey(l.Temp), v)
 			}
 			coef[j] = v
 		}

@@ -252,3 +252,43 @@ func TestEmptyRowInfeasible(t *testing.T) {
 		assert.InDelta(t, 1, r.Relaxation[0].By, 1e-9)
 	}
 }
+
+// Odd programmatic inputs (as a what-if editor might produce) give a
+// bad-input error or an answer, never a panic.
+func TestOddInputsNeverPanic(t *testing.T) {
+	nan := math.NaN()
+	mk := func(edit func(*catalogue.Catalogue, *catalogue.Spec)) (*catalogue.Catalogue, *catalogue.Spec) {
+		cat := twoStocks()
+		spec := &catalogue.Spec{Batch: 20, Limits: []catalogue.Limit{{Name: "iv", Bound: bound(10, 60)}}, SFC: nil}
+		edit(cat, spec)
+		return cat, spec
+	}
+	edits := map[string]func(*catalogue.Catalogue, *catalogue.Spec){
+		"nan fa":      func(c *catalogue.Catalogue, _ *catalogue.Spec) { c.Stocks[0].FattyAcids["C18:1"] = nan },
+		"nan price":   func(c *catalogue.Catalogue, _ *catalogue.Spec) { c.Stocks[0].Price = nan },
+		"neg avail":   func(c *catalogue.Catalogue, _ *catalogue.Spec) { c.Stocks[0].Available = -1 },
+		"nan bound":   func(_ *catalogue.Catalogue, s *catalogue.Spec) { s.Limits[0].Min = nan },
+		"inf batch":   func(_ *catalogue.Catalogue, s *catalogue.Spec) { s.Batch = math.Inf(1) },
+		"dup stock":   func(c *catalogue.Catalogue, _ *catalogue.Spec) { c.Stocks[1].ID = "hard" },
+		"no fa":       func(c *catalogue.Catalogue, _ *catalogue.Spec) { c.Stocks[0].FattyAcids = nil },
+		"huge use":    func(_ *catalogue.Catalogue, s *catalogue.Spec) { s.Use = []catalogue.Use{{Stock: "hard", Bound: bound(150, 200)}} },
+		"zero avail":  func(c *catalogue.Catalogue, _ *catalogue.Spec) { c.Stocks[0].Available, c.Stocks[1].Available = 0, 0 },
+		"rules range": func(_ *catalogue.Catalogue, s *catalogue.Spec) { s.Rules.MinIfUsed = 150 },
+		"sfc no data": func(_ *catalogue.Catalogue, s *catalogue.Spec) { s.SFC = []catalogue.SFCLimit{{Temp: 20, Bound: bound(5, inf())}} },
+	}
+	for name, edit := range edits {
+		t.Run(name, func(t *testing.T) {
+			cat, spec := mk(edit)
+			for _, eng := range engines() {
+				require.NotPanics(t, func() {
+					r, err := solveWith(eng, cat, spec, Options{})
+					if err == nil {
+						require.Contains(t, []Status{Optimal, Infeasible}, r.Status)
+					} else {
+						assert.True(t, catalogue.IsBadInput(err), "%s: %v", eng.name(), err)
+					}
+				})
+			}
+		})
+	}
+}
