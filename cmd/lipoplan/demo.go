@@ -95,22 +95,28 @@ func (a *app) writeDemo(dir string) error {
 	return nil
 }
 
-// demoSolve solves every embedded demo spec and prints its report.
+// demoSolve solves every embedded demo spec and prints its full report, as
+// `lipoplan solve` would for that spec.
 func (a *app) demoSolve(cat *catalogue.Catalogue) error {
 	infeasible := false
-	for _, spec := range catalogue.DemoSpecs() {
-		res, err := optimise.Solve(cat, spec, optimise.Options{})
+	for i, spec := range catalogue.DemoSpecs() {
+		extra := make([]float64, len(spec.SFC))
+		for j, l := range spec.SFC {
+			extra[j] = l.Temp
+		}
+		ts := blend.Temps(extra...)
+		res, err := optimise.Solve(cat, spec, optimise.Options{Temps: ts})
 		if err != nil {
 			return fmt.Errorf("demo spec %q: %w", spec.Name, err)
 		}
-		fmt.Fprintf(a.stdout, "== %s (%.0f t batch): %s\n", spec.Name, spec.Batch, res.Status)
-		for _, l := range res.Blend {
-			fmt.Fprintf(a.stdout, "  %-10s %6.2f %%  %7.2f t\n", l.Stock, l.Pct, l.Tonnes)
+		if i > 0 {
+			fmt.Fprintln(a.stdout)
 		}
-		fmt.Fprintf(a.stdout, "  cost %.2f %s/t\n\n", res.CostPerTonne, res.Currency)
+		fmt.Fprintf(a.stdout, "=== Demo spec %d of %d: %s ===\n\n",
+			i+1, len(catalogue.DemoSpecs()), spec.ID)
+		writeSolveText(a.stdout, res, spec, ts)
 		infeasible = infeasible || res.Status != optimise.Optimal
 	}
-	fmt.Fprintln(a.stdout, cautionLine)
 	if infeasible {
 		return errInfeasible
 	}

@@ -142,3 +142,13 @@ func TestHelpPrintedOnce(t *testing.T) {
 	_, out, _ := run(t, "mix", "--help")
 	assert.Equal(t, 1, strings.Count(out, "Usage: lipoplan mix"))
 }
+
+// The demo solves every demo spec; its optimum must equal a direct solve.
+func TestDemoReport(t *testing.T) {
+	code, out, errs := run(t, "demo")
+	require.Equal(t, 0, code, errs)
+	assert.Contains(t, out, "Demo stocks")
+	assert.Equal(t, len(catalogue.DemoSpecs()), strings.Count(out, "=== Demo spec"))
+	assert.Contains(t, out, "What the binding limits cost")
+	assert.Contains(t, out, "Caution")
+}
