@@ -3,6 +3,7 @@
 package optimise
 
 import (
+	"errors"
 	"fmt"
 
 	"lipoplan/optimise/coin"
@@ -29,17 +30,35 @@ func (m *model) coinProblem() *coin.Problem {
 	}
 }
 
-func (coinEngine) solveLP(m *model) (*solution, error) {
-	lp := coin.NewLP()
-	defer lp.Close()
-	if err := lp.Load(m.coinProblem()); err != nil {
-		return nil, fmt.Errorf("clp: %w", err)
-	}
+func (e coinEngine) solveLP(m *model) (*solution, error) {
+	p := m.coinProblem()
 	// Blend rows are per % of batch with coefficients of order 0..3 and
 	// bounds of order 1..100: already well scaled, and CLP runs markedly
-	// faster on them without its own scaling pass.
-	lp.SetScaling(false)
-	st := lp.Solve()
+	// faster on them without its own scaling pass. Should the dual simplex
+	// stop short (numerical trouble), the model is solved again from scratch
+	// with scaling and CLP's own method choice.
+	s, err := e.solveOnce(m, p, false)
+	if err == nil || !errors.Is(err, errStopped) {
+		return s, err
+	}
+	return e.solveOnce(m, p, true)
+}
+
+var errStopped = errors.New("clp stopped short")
+
+func (coinEngine) solveOnce(m *model, p *coin.Problem, careful bool) (*solution, error) {
+	lp := coin.NewLP()
+	defer lp.Close()
+	if err := lp.Load(p); err != nil {
+		return nil, fmt.Errorf("clp: %w", err)
+	}
+	var st coin.Status
+	if careful {
+		st = lp.SolveInitial()
+	} else {
+		lp.SetScaling(false)
+		st = lp.Solve()
+	}
 	switch st {
 	case coin.Infeasible:
 		return &solution{status: solInfeasible}, nil
@@ -47,7 +66,7 @@ func (coinEngine) solveLP(m *model) (*solution, error) {
 		return &solution{status: solUnbounded}, nil
 	case coin.Optimal:
 	default:
-		return nil, fmt.Errorf("clp: solve %s after %d iterations", st, lp.Iterations())
+		return nil, fmt.Errorf("clp: solve %s after %d iterations: %w", st, lp.Iterations(), errStopped)
 	}
 	s := &solution{
 		status: solOptimal,

@@ -264,17 +264,21 @@ func TestOddInputsNeverPanic(t *testing.T) {
 		return cat, spec
 	}
 	edits := map[string]func(*catalogue.Catalogue, *catalogue.Spec){
-		"nan fa":      func(c *catalogue.Catalogue, _ *catalogue.Spec) { c.Stocks[0].FattyAcids["C18:1"] = nan },
-		"nan price":   func(c *catalogue.Catalogue, _ *catalogue.Spec) { c.Stocks[0].Price = nan },
-		"neg avail":   func(c *catalogue.Catalogue, _ *catalogue.Spec) { c.Stocks[0].Available = -1 },
-		"nan bound":   func(_ *catalogue.Catalogue, s *catalogue.Spec) { s.Limits[0].Min = nan },
-		"inf batch":   func(_ *catalogue.Catalogue, s *catalogue.Spec) { s.Batch = math.Inf(1) },
-		"dup stock":   func(c *catalogue.Catalogue, _ *catalogue.Spec) { c.Stocks[1].ID = "hard" },
-		"no fa":       func(c *catalogue.Catalogue, _ *catalogue.Spec) { c.Stocks[0].FattyAcids = nil },
-		"huge use":    func(_ *catalogue.Catalogue, s *catalogue.Spec) { s.Use = []catalogue.Use{{Stock: "hard", Bound: bound(150, 200)}} },
+		"nan fa":    func(c *catalogue.Catalogue, _ *catalogue.Spec) { c.Stocks[0].FattyAcids["C18:1"] = nan },
+		"nan price": func(c *catalogue.Catalogue, _ *catalogue.Spec) { c.Stocks[0].Price = nan },
+		"neg avail": func(c *catalogue.Catalogue, _ *catalogue.Spec) { c.Stocks[0].Available = -1 },
+		"nan bound": func(_ *catalogue.Catalogue, s *catalogue.Spec) { s.Limits[0].Min = nan },
+		"inf batch": func(_ *catalogue.Catalogue, s *catalogue.Spec) { s.Batch = math.Inf(1) },
+		"dup stock": func(c *catalogue.Catalogue, _ *catalogue.Spec) { c.Stocks[1].ID = "hard" },
+		"no fa":     func(c *catalogue.Catalogue, _ *catalogue.Spec) { c.Stocks[0].FattyAcids = nil },
+		"huge use": func(_ *catalogue.Catalogue, s *catalogue.Spec) {
+			s.Use = []catalogue.Use{{Stock: "hard", Bound: bound(150, 200)}}
+		},
 		"zero avail":  func(c *catalogue.Catalogue, _ *catalogue.Spec) { c.Stocks[0].Available, c.Stocks[1].Available = 0, 0 },
 		"rules range": func(_ *catalogue.Catalogue, s *catalogue.Spec) { s.Rules.MinIfUsed = 150 },
-		"sfc no data": func(_ *catalogue.Catalogue, s *catalogue.Spec) { s.SFC = []catalogue.SFCLimit{{Temp: 20, Bound: bound(5, inf())}} },
+		"sfc no data": func(_ *catalogue.Catalogue, s *catalogue.Spec) {
+			s.SFC = []catalogue.SFCLimit{{Temp: 20, Bound: bound(5, inf())}}
+		},
 	}
 	for name, edit := range edits {
 		t.Run(name, func(t *testing.T) {

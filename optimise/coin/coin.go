@@ -226,6 +226,17 @@ func (lp *LP) SetScaling(on bool) {
 // Clp_initialSolve's presolve and chooses the same optimum.
 func (lp *LP) Solve() Status {
 	C.Clp_dual(lp.m, 0)
+	return lp.status()
+}
+
+// SolveInitial runs Clp_initialSolve: presolve, CLP's choice of method,
+// postsolve; slower on small models, steadier on awkward ones.
+func (lp *LP) SolveInitial() Status {
+	C.Clp_initialSolve(lp.m)
+	return lp.status()
+}
+
+func (lp *LP) status() Status {
 	switch {
 	case C.Clp_isProvenOptimal(lp.m) != 0:
 		return Optimal

@@ -97,3 +97,13 @@ func TestVersion(t *testing.T) {
 	assert.Contains(t, Version(), "CLP 1.")
 	assert.Contains(t, Version(), "CBC 2.")
 }
+
+// Clp_initialSolve reaches the same hand-worked optimum (3, 1) at 9.
+func TestLPSolveInitial(t *testing.T) {
+	lp := NewLP()
+	defer lp.Close()
+	require.NoError(t, lp.Load(paperLP()))
+	require.Equal(t, Optimal, lp.SolveInitial())
+	assert.InDelta(t, 9, lp.Objective(), 1e-9)
+	assert.InDeltaSlice(t, []float64{1.5, 0.5}, lp.RowPrice(nil), 1e-9)
+}
