@@ -31,7 +31,8 @@ func classify(basic bool, v, lo, up float64) varState {
 // written as [A  -I]·(x, r) = 0, where r are the row logicals (activities).
 // B's columns are the basic structurals' columns of A and -e_i for each basic
 // logical i. It yields duals (Bᵀy = c_B) and tableau rows (e_pᵀB⁻¹[A -I])
-// for cost ranging; see e.g. Chvátal, Linear Programming (1983), ch. 10
+// for cost ranging; see e.g. Chvátal, Linear Programming (1983), the
+// chapter on sensitivity analysis (chapter number from memory: 10)
 // (sensitivity analysis) for both formulas.
 type basisFactor struct {
 	m     *model
@@ -128,7 +129,8 @@ func (f *basisFactor) alpha(rho []float64, k int) float64 {
 // A nonbasic column at its lower bound stays out while d_j + δ >= 0, at its
 // upper bound while d_j + δ <= 0. For a basic column in position p, every
 // nonbasic k keeps the right sign of d_k - δ·α_pk (α_p = e_pᵀB⁻¹[A -I]),
-// the textbook ratio test of cost ranging (Chvátal 1983, ch. 10).
+// the textbook ratio test of cost ranging (Chvátal 1983, sensitivity
+// analysis).
 func (f *basisFactor) costRange(j int, basis []varState, d, y []float64) (lo, hi float64, err error) {
 	const eps = 1e-9
 	lo, hi = math.Inf(-1), math.Inf(1)

@@ -29,7 +29,7 @@ type deficit struct {
 // 100 %). Stocks that lack SFC data the spec needs and are excluded by use
 // max = 0 stay out. This is the textbook elastic (goal programming)
 // formulation, e.g. Chinneck, Feasibility and Infeasibility in Optimization
-// (2008), ch. 7.
+// (2008), on elastic programming (reference from memory).
 func (l *layout) elastic(base *model) (*model, []deficit) {
 	n := l.n()
 	type side struct {

@@ -22,7 +22,8 @@ var errNoMILP = errors.New("integer rules (max_stocks, min_if_used) need the COI
 //     different for every bound), which makes the programme nondegenerate in
 //     practice: at its optimum exactly nRows variables lie strictly between
 //     their bounds, and those are the basis. (Charnes' perturbation method
-//     against degeneracy; Chvátal, Linear Programming (1983), ch. 3.)
+//     against degeneracy, from memory; see e.g. Chvátal, Linear Programming
+//     (1983), on degeneracy.)
 //  2. With that basis and every nonbasic variable at its original bound the
 //     vertex of the original programme is recomputed exactly from B z_B =
 //     -N z_N; its duals solve Bᵀy = c_B and reduced costs are d = c - Aᵀy.

@@ -39,8 +39,9 @@ func needGlpsol(t *testing.T) {
 
 // runGlpsol solves an MPS file with GLPK (glpsol --freemps) and reads its
 // plain-text solution: "s bas rows cols pst dst obj", then "i row st prim
-// dual" and "j col st prim dual" lines (GLPK reference manual, glp_print_sol
-// / glp_write_sol format). With ranges it also parses the sensitivity report.
+// dual" and "j col st prim dual" lines (GLPK's plain-text solution format,
+// as glpsol 5.0 writes it here). With ranges it also parses the sensitivity
+// report.
 func runGlpsol(t *testing.T, mps string, ranges bool) glpk {
 	t.Helper()
 	sol := mps + ".sol"
@@ -253,7 +254,7 @@ func assertNear(t *testing.T, want, got, tol float64, msg string, args ...any) {
 // TestShadowPricesByFiniteDifferences re-solves each nondegenerate random
 // case with every binding limit moved by a small step and checks the
 // shadow price against the change in cost (the definition of the dual as a
-// derivative of the optimal value; Chvátal 1983, ch. 10).
+// derivative of the optimal value; Chvátal 1983, sensitivity analysis).
 func TestShadowPricesByFiniteDifferences(t *testing.T) {
 	cases := randomSuite(t, 60, "")
 	checked := 0
