@@ -265,8 +265,11 @@ func writeDiagnosis(w io.Writer, r *optimise.Result, spec *catalogue.Spec) {
 		return
 	}
 	fmt.Fprintln(w)
-	fmt.Fprintln(w, "Smallest change that would make it feasible (elastic LP; each move is weighed against the")
-	fmt.Fprintln(w, "spread of that quantity over the stocks, so IV units and % points compare fairly):")
+	fmt.Fprintln(w, "Smallest change that would make it feasible (elastic programme; each move is weighed against")
+	fmt.Fprintln(w, "the spread of that quantity over the stocks, so IV units and % points compare fairly):")
+	if spec.Rules.Active() {
+		fmt.Fprintln(w, "(the integer rules under [rules] are kept as written)")
+	}
 	for _, x := range r.Relaxation {
 		line := relaxWords(x)
 		if b, ok := boundOf(spec, x.Name); ok {
