@@ -107,20 +107,55 @@ func (f *basisFactor) duals() (y, d []float64, err error) {
 	return y, d, nil
 }
 
-// alpha is entry k of tableau row rho (rho = B⁻ᵀ e_p): rhoᵀ times column k of
-// [A -I].
-func (f *basisFactor) alpha(rho []float64, k int) float64 {
+// ranger does cost ranging for the columns of one optimal basis. It lists
+// the nonbasic variables that restrict the ranges once, with their reduced
+// costs and their columns of [A -I] laid out contiguously, so that ranging
+// every stock costs one Bᵀ solve and one pass over that list per basic
+// stock.
+type ranger struct {
+	f     *basisFactor
+	basis []varState
+	d     []float64
+	k     []int      // nonbasic variables that are not fixed
+	st    []varState // their states
+	dk    []float64  // their reduced costs (y_i for a row logical)
+	col   []int      // offset of their column of A in data; -1 for a row logical
+	data  []float64  // the nonbasic structural columns, one after another
+	e     []float64  // scratch unit vector
+}
+
+func (f *basisFactor) newRanger(basis []varState, d, y []float64) *ranger {
 	m := f.m
-	if k >= m.nCols {
-		return -rho[k-m.nCols]
-	}
-	var s float64
-	for i, r := range rho {
-		if r != 0 {
-			s += r * m.a[i*m.nCols+k]
+	nb, ns := 0, 0
+	for k, s := range basis {
+		if s != stBasic && s != stFixed {
+			nb++
+			if k < m.nCols {
+				ns++
+			}
 		}
 	}
-	return s
+	r := &ranger{f: f, basis: basis, d: d, e: make([]float64, m.nRows),
+		k: make([]int, 0, nb), st: make([]varState, 0, nb), dk: make([]float64, 0, nb), col: make([]int, 0, nb),
+		data: make([]float64, 0, ns*m.nRows)}
+	for k, s := range basis {
+		if s == stBasic || s == stFixed {
+			continue
+		}
+		r.k = append(r.k, k)
+		r.st = append(r.st, s)
+		if k < m.nCols {
+			r.col = append(r.col, len(r.data))
+			for i := 0; i < m.nRows; i++ {
+				r.data = append(r.data, m.a[i*m.nCols+k])
+			}
+			r.dk = append(r.dk, d[k])
+		} else {
+			r.col = append(r.col, -1)
+			r.dk = append(r.dk, y[k-m.nCols])
+		}
+	}
+	return r
 }
 
 // costRange is the interval [lo, hi] of changes δ to the objective
@@ -131,42 +166,37 @@ func (f *basisFactor) alpha(rho []float64, k int) float64 {
 // nonbasic k keeps the right sign of d_k - δ·α_pk (α_p = e_pᵀB⁻¹[A -I]),
 // the textbook ratio test of cost ranging (Chvátal 1983, sensitivity
 // analysis).
-func (f *basisFactor) costRange(j int, basis []varState, d, y []float64) (lo, hi float64, err error) {
+func (r *ranger) costRange(j int) (lo, hi float64, err error) {
 	const eps = 1e-9
 	lo, hi = math.Inf(-1), math.Inf(1)
-	m := f.m
-	switch basis[j] {
+	switch r.basis[j] {
 	case stLower:
-		return -d[j], hi, nil
+		return -r.d[j], hi, nil
 	case stUpper:
-		return lo, -d[j], nil
+		return lo, -r.d[j], nil
 	case stFixed:
 		return lo, hi, nil
 	case stFree:
 		return 0, 0, nil
 	}
-	e := make([]float64, m.nRows)
-	e[f.pos[j]] = 1
-	rho, err := f.solveT(e)
-	if err != nil {
-		return 0, 0, err
-	}
-	for k, s := range basis {
-		if s == stBasic || s == stFixed {
-			continue
+	clear(r.e)
+	r.e[r.f.pos[j]] = 1
+	rho := r.f.lu.solveT(r.e)
+	nc := r.f.m.nCols
+	for t, k := range r.k {
+		var a float64
+		if off := r.col[t]; off >= 0 {
+			for i, v := range r.data[off : off+len(rho)] {
+				a += rho[i] * v
+			}
+		} else {
+			a = -rho[k-nc]
 		}
-		a := f.alpha(rho, k)
 		if math.Abs(a) <= eps {
 			continue
 		}
-		var dk float64
-		if k < m.nCols {
-			dk = d[k]
-		} else {
-			dk = y[k-m.nCols]
-		}
-		ratio := dk / a
-		switch s {
+		ratio := r.dk[t] / a
+		switch r.st[t] {
 		case stLower: // need dk - δa >= 0
 			if a > 0 {
 				hi = math.Min(hi, ratio)
