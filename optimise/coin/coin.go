@@ -71,12 +71,12 @@ type Basis int8
 
 // CLP basis statuses (ClpSimplex::Status).
 const (
-	Free      Basis = 0
-	Basic     Basis = 1
-	AtUpper   Basis = 2
-	AtLower   Basis = 3
-	SuperBas  Basis = 4
-	FixedBase Basis = 5
+	Free       Basis = 0
+	Basic      Basis = 1
+	AtUpper    Basis = 2
+	AtLower    Basis = 3
+	Superbasic Basis = 4
+	Fixed      Basis = 5
 )
 
 // Version reports the CLP and CBC library versions.
