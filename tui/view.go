@@ -249,19 +249,20 @@ func (m *Model) blendPanel(w, h int) []string {
 	}
 	p := r.Properties
 	out = append(out, "")
-	out = append(out, wrapped(w, st.head.Render("Properties")+"  ", fmt.Sprintf("IV %s  SV %s  SAFA %s %%  MUFA %s %%  PUFA %s %%  trans %s %%  Cox %s",
-		f1(p.IV), f1(p.SV), f1(p.SAFA), f1(p.MUFA), f1(p.PUFA), f2(p.Trans), f2(p.Cox)))...)
+	out = append(out, wrapped(w, st.head.Render("Properties")+"  ", keepTogether(
+		"IV "+f1(p.IV), "SV "+f1(p.SV), "SAFA "+f1(p.SAFA)+" %", "MUFA "+f1(p.MUFA)+" %",
+		"PUFA "+f1(p.PUFA)+" %", "trans "+f2(p.Trans)+" %", "Cox "+f2(p.Cox)))...)
 	if len(p.SFC) > 0 {
 		temps := make([]float64, 0, len(p.SFC))
 		for t := range p.SFC {
 			temps = append(temps, t)
 		}
 		sort.Float64s(temps)
-		var b strings.Builder
-		for _, t := range temps {
-			fmt.Fprintf(&b, "%s° %s  ", catalogue.TempKey(t), f1(p.SFC[t]))
+		items := make([]string, len(temps))
+		for i, t := range temps {
+			items[i] = catalogue.TempKey(t) + "° " + f1(p.SFC[t])
 		}
-		out = append(out, wrapped(w, st.head.Render("SFC %")+"       ", strings.TrimSpace(b.String()))...)
+		out = append(out, wrapped(w, st.head.Render("SFC %")+"       ", keepTogether(items...))...)
 	}
 	var binding []optimise.LimitReport
 	for _, l := range r.Limits {
@@ -326,6 +327,15 @@ func (m *Model) relaxationLines(w int, r *optimise.Result) []string {
 	return append(out, "",
 		" Press "+st.key.Render("R")+" to apply these changes (u undoes them),",
 		" or edit limits on 3 Limits, allow stocks or buy more on 2 Stocks.")
+}
+
+// keepTogether joins items with two spaces, binding each item's own words
+// with no-break spaces so that word wrapping breaks only between items.
+func keepTogether(items ...string) string {
+	for i, it := range items {
+		items[i] = strings.ReplaceAll(it, " ", "\u00a0")
+	}
+	return strings.Join(items, "  ")
 }
 
 // wrapped word-wraps text after a lead (which may be styled) and indents the
