@@ -94,7 +94,8 @@ type Result struct {
 	Properties   blend.Properties
 	Limits       []LimitReport
 	Ranging      []Range
-	Relaxation   []Relax // when Infeasible: smallest relaxation that would make the spec feasible
+	Relaxation   []Relax  // when Infeasible: smallest relaxation that would make the spec feasible
+	Notes        []string // what the answer leaves out, in plain words (e.g. an unmodelled [process] step)
 }
 
 // Solve finds the cheapest blend of cat's stocks that meets spec.

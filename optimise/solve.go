@@ -28,6 +28,10 @@ func solveWith(eng engine, cat *catalogue.Catalogue, spec *catalogue.Spec, opt O
 		return nil, err
 	}
 	res := &Result{Engine: eng.name(), Currency: cat.Currency, Spec: spec.Name, Batch: spec.Batch}
+	if spec.Process != nil {
+		res.Notes = append(res.Notes, "the spec's [process] step (interesterification) is not modelled by solve: "+
+			"the blend is of the stocks as they are, with SFC linear in their measured curves")
+	}
 	lpm := base
 	var choice []bool
 	if lay.rules.Active() {

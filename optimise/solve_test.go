@@ -296,3 +296,13 @@ func TestOddInputsNeverPanic(t *testing.T) {
 		})
 	}
 }
+
+func TestProcessStepNoted(t *testing.T) {
+	spec := &catalogue.Spec{Batch: 20, Limits: []catalogue.Limit{{Name: "C18:1", Bound: bound(30, inf())}},
+		Process: &catalogue.Process{Interesterify: []string{"hard", "soft"}, Method: "chemical"}}
+	r, err := Solve(twoStocks(), spec, Options{})
+	require.NoError(t, err)
+	require.Len(t, r.Notes, 1)
+	assert.Contains(t, r.Notes[0], "[process]")
+	assert.InDelta(t, 1150, r.CostPerTonne, 1e-9) // the paper case, unchanged
+}

@@ -176,6 +176,9 @@ func writeSolveText(w io.Writer, r *optimise.Result, spec *catalogue.Spec, temps
 	}
 	engine := r.Engine
 	fmt.Fprintf(w, "Spec: %s (%g t batch)\n", title, r.Batch)
+	for _, n := range r.Notes {
+		fmt.Fprintf(w, "Note: %s\n", n)
+	}
 	if r.Status != optimise.Optimal {
 		writeDiagnosis(w, r, spec)
 		fmt.Fprintln(w)
