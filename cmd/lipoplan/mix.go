@@ -46,7 +46,9 @@ func (a *app) mix(args []string) error {
 		return catalogue.Badf("--use: %w", err)
 	}
 	if *format == "json" {
-		return writeJSON(a.stdout, propertiesJSON(p))
+		out := propertiesJSON(p)
+		out["caution"] = cautionJSON
+		return writeJSON(a.stdout, out)
 	}
 	fmt.Fprintf(a.stdout, "Mix of %s\n\n", describeParts(parts))
 	writeProperties(a.stdout, p, ts)
@@ -60,6 +62,10 @@ func (a *app) mix(args []string) error {
 const cautionLine = "Caution: calculated values are estimates; confirm by lab analysis (GC FAME, pulsed-NMR SFC) before use.\n" +
 	"Trans-fat, labelling and contaminant limits (e.g. 3-MCPD and glycidyl esters in refined palm products)\n" +
 	"are set by local food law; follow it and your licensed practice."
+
+// cautionJSON is the caution carried in JSON output, in one line.
+const cautionJSON = "Calculated values are estimates: confirm by lab analysis (GC FAME, pulsed-NMR SFC) before use. " +
+	"Trans-fat, labelling and contaminant limits are set by local food law."
 
 func checkFormat(f string, allowed ...string) error {
 	for _, a := range allowed {

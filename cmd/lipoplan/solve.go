@@ -84,7 +84,7 @@ func finiteOrNil(v float64, digits int) any {
 
 // solveJSON is the stable JSON shape of a solve (DESIGN section 4).
 func solveJSON(r *optimise.Result) map[string]any {
-	out := map[string]any{"status": string(r.Status)}
+	out := map[string]any{"status": string(r.Status), "caution": cautionJSON}
 	blendOut := []map[string]any{}
 	limits := []map[string]any{}
 	ranging := []map[string]any{}
@@ -182,7 +182,7 @@ func writeSolveText(w io.Writer, r *optimise.Result, spec *catalogue.Spec, temps
 	if r.Status != optimise.Optimal {
 		writeDiagnosis(w, r, spec)
 		fmt.Fprintln(w)
-		fmt.Fprintln(w, cautionLine)
+		writeCautions(w, spec)
 		return
 	}
 	fmt.Fprintf(w, "Cheapest blend found (%s):\n\n", engine)
@@ -248,7 +248,17 @@ func writeSolveText(w io.Writer, r *optimise.Result, spec *catalogue.Spec, temps
 		}
 	}
 	fmt.Fprintln(w)
+	writeCautions(w, spec)
+}
+
+// writeCautions closes a solve report: the general caution, and the plant
+// hazard caution when the spec names an interesterification step
+// (DESIGN section 10).
+func writeCautions(w io.Writer, spec *catalogue.Spec) {
 	fmt.Fprintln(w, cautionLine)
+	if spec.Process != nil {
+		fmt.Fprintln(w, processCaution)
+	}
 }
 
 func rangeEnd(v float64) string {
