@@ -35,7 +35,7 @@ func TestSolveDemoJSON(t *testing.T) {
 	var got map[string]any
 	require.NoError(t, json.Unmarshal([]byte(out), &got))
 	// The keys of DESIGN section 4, exactly.
-	assert.Equal(t, []string{"batch_cost", "blend", "cost_per_tonne", "limits", "properties", "ranging", "status"}, keysOf(got))
+	assert.Equal(t, []string{"batch_cost", "blend", "caution", "cost_per_tonne", "limits", "properties", "ranging", "status"}, keysOf(got))
 	assert.Equal(t, "optimal", got["status"])
 	var pct float64
 	for _, l := range got["blend"].([]any) {
