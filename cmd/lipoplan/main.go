@@ -51,6 +51,7 @@ func commands() []command {
 		{"serve", "serve the workspace to a team over SSH", (*app).serve},
 		{"solve", "cheapest blend that meets a spec", (*app).solve},
 		{"plan", "make several orders from one shared stock at least cost", (*app).plan},
+		{"sweep", "cost and blend over a range of one stock's price", (*app).sweep},
 		// further commands add their line here
 	}
 	sort.SliceStable(cs, func(i, j int) bool { return order(cs[i].name) < order(cs[j].name) })
