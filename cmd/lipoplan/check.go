@@ -2,6 +2,7 @@ package main
 
 import (
 	"fmt"
+	"strings"
 
 	"lipoplan/catalogue"
 )
@@ -36,7 +37,7 @@ func (a *app) check(args []string) error {
 		all = append(all, ps...)
 	}
 	for _, p := range all {
-		fmt.Fprintln(a.stdout, p.String())
+		fmt.Fprintln(a.stdout, a.paint(p))
 	}
 	errs := all.Errors()
 	if len(errs) > 0 {
@@ -56,4 +57,18 @@ func (a *app) check(args []string) error {
 	}
 	fmt.Fprintf(a.stdout, " (%d warning(s))\n", len(all))
 	return nil
+}
+
+// paint marks the kind of a problem in colour when colour is allowed (a
+// terminal, NO_COLOR unset): errors red, warnings yellow.
+func (a *app) paint(p catalogue.Problem) string {
+	line := p.String()
+	if !a.color {
+		return line
+	}
+	kind, code := "error: ", "31"
+	if p.Warning {
+		kind, code = "warning: ", "33"
+	}
+	return strings.Replace(line, kind, "\x1b["+code+"m"+kind+"\x1b[0m", 1)
 }

@@ -152,3 +152,23 @@ func TestDemoReport(t *testing.T) {
 	assert.Contains(t, out, "What the binding limits cost")
 	assert.Contains(t, out, "Caution")
 }
+
+// Colour only where allowed: the test app writes to buffers (not a
+// terminal), so no escape codes; with colour on, errors are marked.
+func TestColourOnlyWhenAllowed(t *testing.T) {
+	_, out, _ := run(t, "check", "--stocks", "../../testdata/bad/"+firstBad(t))
+	assert.NotContains(t, out, "\x1b[")
+	var buf bytes.Buffer
+	a := &app{stdout: &buf, stderr: &buf, color: true}
+	a.main([]string{"check", "--stocks", "../../testdata/bad/" + firstBad(t)})
+	assert.Contains(t, buf.String(), "\x1b[31merror: ")
+	t.Setenv("NO_COLOR", "1")
+	assert.False(t, colorAllowed(os.Stdout))
+}
+
+func firstBad(t *testing.T) string {
+	files, err := filepath.Glob("../../testdata/bad/stock*.toml")
+	require.NoError(t, err)
+	require.NotEmpty(t, files)
+	return filepath.Base(files[0])
+}
