@@ -100,11 +100,7 @@ func (a *app) writeDemo(dir string) error {
 func (a *app) demoSolve(cat *catalogue.Catalogue) error {
 	infeasible := false
 	for i, spec := range catalogue.DemoSpecs() {
-		extra := make([]float64, len(spec.SFC))
-		for j, l := range spec.SFC {
-			extra[j] = l.Temp
-		}
-		ts := blend.Temps(extra...)
+		ts := specTemps(spec)
 		res, err := optimise.Solve(cat, spec, optimise.Options{Temps: ts})
 		if err != nil {
 			return fmt.Errorf("demo spec %q: %w", spec.Name, err)

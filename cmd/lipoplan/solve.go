@@ -8,7 +8,6 @@ import (
 	"strconv"
 	"strings"
 
-	"lipoplan/blend"
 	"lipoplan/catalogue"
 	"lipoplan/optimise"
 )
@@ -42,11 +41,7 @@ func (a *app) solve(args []string) error {
 		return err
 	}
 	if ts == nil {
-		extra := make([]float64, len(spec.SFC))
-		for i, l := range spec.SFC {
-			extra[i] = l.Temp
-		}
-		ts = blend.Temps(extra...)
+		ts = specTemps(spec)
 	}
 	if *mps != "" {
 		if err := optimise.WriteMPS(*mps, cat, spec); err != nil {

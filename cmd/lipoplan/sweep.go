@@ -8,7 +8,6 @@ import (
 	"strconv"
 	"strings"
 
-	"lipoplan/blend"
 	"lipoplan/catalogue"
 	"lipoplan/optimise"
 )
@@ -41,11 +40,7 @@ func (a *app) sweep(args []string) error {
 	if err != nil {
 		return err
 	}
-	extra := make([]float64, len(spec.SFC))
-	for i, l := range spec.SFC {
-		extra[i] = l.Temp
-	}
-	r, err := optimise.Sweep(cat, spec, id, from, to, steps, optimise.Options{Temps: blend.Temps(extra...)})
+	r, err := optimise.Sweep(cat, spec, id, from, to, steps, optimise.Options{Temps: specTemps(spec)})
 	if err != nil {
 		return err
 	}
