@@ -267,14 +267,40 @@ func (s *Server) Active() int {
 
 // program makes each session its own workspace on a copy of the scenario.
 // A client that reports no terminal size (OpenSSH with -tt and no local
-// terminal) gets 80x24 rather than a blank screen.
+// terminal sends 0x0 in its pty-req and window-changes) gets 80x24 rather
+// than a blank screen: the program starts at 80x24 and keepKnownSize drops
+// every later 0x0 size, which the wish middleware forwards from the session's
+// window channel and which would otherwise shrink the renderer to nothing.
 func (s *Server) program(sess ssh.Session) *tea.Program {
 	m := tui.NewWithScenario(s.cfg.Scenario.Clone(), s.cfg.Source, s.cfg.Files)
 	opts := bubbletea.MakeOptions(sess)
 	if pty, _, ok := sess.Pty(); ok && (pty.Window.Width <= 0 || pty.Window.Height <= 0) {
 		opts = append(opts, tea.WithWindowSize(80, 24))
 	}
+	// tea.WithFilter replaces the filter MakeOptions set, so keepKnownSize
+	// also does that filter's job (see its doc comment).
+	opts = append(opts, tea.WithFilter(keepKnownSize))
 	return tea.NewProgram(m, opts...)
+}
+
+// keepKnownSize is the program's message filter. It drops a WindowSizeMsg
+// with no width or no height: bubbletea v2 resizes its renderer to any size
+// it is sent, and at 0x0 it clears the screen and draws nothing, for good.
+// The wish bubbletea middleware sends the pty-req's size (0x0 from a client
+// without a terminal) from its own goroutine, racing the program's first
+// 80x24 size; when it lost the race the session stayed blank. Like the filter
+// of bubbletea.MakeOptions it turns a SuspendMsg into a ResumeMsg, as a
+// remote session cannot be suspended.
+func keepKnownSize(_ tea.Model, msg tea.Msg) tea.Msg {
+	switch msg := msg.(type) {
+	case tea.WindowSizeMsg:
+		if msg.Width <= 0 || msg.Height <= 0 {
+			return nil
+		}
+	case tea.SuspendMsg:
+		return tea.ResumeMsg{}
+	}
+	return msg
 }
 
 // Serve accepts connections on l until Shutdown or Close.

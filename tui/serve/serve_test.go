@@ -15,6 +15,7 @@ import (
 	"testing"
 	"time"
 
+	tea "charm.land/bubbletea/v2"
 	"github.com/charmbracelet/x/ansi"
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
@@ -422,4 +423,81 @@ func TestWritableServerSavesByName(t *testing.T) {
 	_, err = io.WriteString(s.in, "W")
 	require.NoError(t, err)
 	waitFor(t, s.out, "nothing to write back", 10*time.Second)
+}
+
+// TestUnknownWindowSizeKeepsTheScreen: a client without a local terminal
+// (OpenSSH -tt with stdin a pipe) reports a 0x0 window in its pty-req and in
+// any window-change. The wish middleware forwards that size to the program
+// from its own goroutine; bubbletea's renderer, resized to 0x0, clears the
+// screen and draws nothing from then on. Here the 0x0 comes after the first
+// screen, so the order is fixed: a key pressed afterwards must still draw.
+func TestUnknownWindowSizeKeepsTheScreen(t *testing.T) {
+	key, line := newKey(t)
+	ts := start(t, []string{line}, nil)
+	s, err := dial(t, ts.addr, key)
+	require.NoError(t, err)
+	defer s.close()
+	waitFor(t, s.out, "Cheapest blend", 20*time.Second)
+	require.NoError(t, s.sess.WindowChange(0, 0))
+	// Give the server time to pass the size on; a server that keeps its size
+	// passes however long this is, one that shrinks to 0x0 fails once it has.
+	time.Sleep(300 * time.Millisecond)
+	mark := len(s.out.String())
+	_, err = io.WriteString(s.in, "2")
+	require.NoError(t, err)
+	deadline := time.Now().Add(10 * time.Second)
+	for !strings.Contains(ansi.Strip(s.out.String()[mark:]), "optimal from") {
+		if time.Now().After(deadline) {
+			t.Fatalf("after a 0x0 window-change the Stocks panel was not drawn; got since:\n%q", s.out.String()[mark:])
+		}
+		time.Sleep(20 * time.Millisecond)
+	}
+}
+
+func TestKeepKnownSizeFilter(t *testing.T) {
+	assert.Nil(t, keepKnownSize(nil, tea.WindowSizeMsg{Width: 0, Height: 0}), "0x0 means the client has no terminal: keep the size")
+	assert.Nil(t, keepKnownSize(nil, tea.WindowSizeMsg{Width: 80, Height: 0}))
+	assert.Nil(t, keepKnownSize(nil, tea.WindowSizeMsg{Width: 0, Height: 24}))
+	assert.Equal(t, tea.WindowSizeMsg{Width: 100, Height: 30}, keepKnownSize(nil, tea.WindowSizeMsg{Width: 100, Height: 30}))
+	assert.Equal(t, tea.ResumeMsg{}, keepKnownSize(nil, tea.SuspendMsg{}), "a remote session is never suspended (as wish's own filter)")
+	assert.Equal(t, tea.QuitMsg{}, keepKnownSize(nil, tea.QuitMsg{}))
+}
+
+// TestOpenSSHClientRepeatedly opens twenty sessions one after another with the
+// real OpenSSH client, stdin a pipe: every one must show the workspace. Each
+// normally takes a fraction of a second; the whole loop is bounded.
+func TestOpenSSHClientRepeatedly(t *testing.T) {
+	requireOpenSSH(t)
+	keyDir := t.TempDir()
+	key, pub := sshKeygen(t, keyDir, "team")
+	ts := start(t, []string{pub}, nil)
+	deadline := time.Now().Add(60 * time.Second)
+	for i := 0; i < 20; i++ {
+		require.True(t, time.Now().Before(deadline), "twenty sessions took over 60s; %d done", i)
+		cmd := openSSH(key, ts.addr)
+		stdin, err := cmd.StdinPipe()
+		require.NoError(t, err)
+		out := &lockedBuffer{}
+		cmd.Stdout, cmd.Stderr = out, out
+		require.NoError(t, cmd.Start())
+		done := make(chan error, 1)
+		go func() { done <- cmd.Wait() }()
+		ok := assert.Eventually(t, func() bool {
+			return strings.Contains(ansi.Strip(out.String()), "Cheapest blend")
+		}, 10*time.Second, 10*time.Millisecond, "session %d shows no workspace; got:\n%s", i, ansi.Strip(out.String()))
+		if !ok {
+			_ = cmd.Process.Kill()
+			<-done
+			t.FailNow()
+		}
+		_, err = io.WriteString(stdin, "q")
+		require.NoError(t, err)
+		select {
+		case err := <-done:
+			require.NoError(t, err, "session %d: ssh ends cleanly after q", i)
+		case <-time.After(10 * time.Second):
+			_ = cmd.Process.Kill()
+			t.Fatalf("session %d: ssh did not end after q", i)
+		}
+	}
 }
