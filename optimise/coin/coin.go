@@ -24,6 +24,7 @@ package coin
 #include <float.h>
 #include <stdio.h>
 #include <stdlib.h>
+#include <string.h>
 #include <Clp_C_Interface.h>
 #include <Cbc_C_Interface.h>
 
@@ -31,6 +32,38 @@ package coin
 // 32-bit CoinBigIndex. Any other build fails here at compile time.
 typedef char coin_bigindex_is_32_bits[(sizeof(CoinBigIndex) == 4) ? 1 : -1];
 static void coin_flush_stdout(void) { fflush(stdout); }
+
+// coin_lp_dual runs the dual simplex and returns the outcome in one call:
+// 0 optimal, 1 primal infeasible, 2 dual infeasible, 3 stopped.
+static int coin_lp_dual(Clp_Simplex *m) {
+	Clp_dual(m, 0);
+	if (Clp_isProvenOptimal(m)) return 0;
+	if (Clp_isProvenPrimalInfeasible(m)) return 1;
+	if (Clp_isProvenDualInfeasible(m)) return 2;
+	return 3;
+}
+
+static void coin_copy(double *dst, const double *src, int n) {
+	if (n <= 0) return;
+	if (src) memcpy(dst, src, (size_t)n * sizeof(double));
+	else memset(dst, 0, (size_t)n * sizeof(double));
+}
+
+// coin_lp_solution copies the whole answer of the last solve out in one
+// call: column values, row activities, row duals, reduced costs and the
+// basis status of every column then every row (low 3 bits of the status
+// array). Any pointer may be NULL to skip that part.
+static void coin_lp_solution(Clp_Simplex *m, int cols, int rows,
+		double *x, double *act, double *y, double *d, unsigned char *st) {
+	if (x) coin_copy(x, Clp_getColSolution(m), cols);
+	if (act) coin_copy(act, Clp_getRowActivity(m), rows);
+	if (y) coin_copy(y, Clp_getRowPrice(m), rows);
+	if (d) coin_copy(d, Clp_getReducedCost(m), cols);
+	if (st) {
+		const unsigned char *s = Clp_statusArray(m);
+		for (int k = 0; k < cols + rows; k++) st[k] = s ? (s[k] & 7) : 0;
+	}
+}
 */
 import "C"
 
@@ -133,9 +166,9 @@ func (p *Problem) check() error {
 	return nil
 }
 
-// finite maps ±Inf to ±COIN_DBL_MAX, COIN-OR's infinity, into dst.
+// finite appends src to dst with ±Inf mapped to ±COIN_DBL_MAX, COIN-OR's
+// infinity.
 func finite(dst, src []float64) []float64 {
-	dst = dst[:0]
 	for _, v := range src {
 		switch {
 		case math.IsInf(v, 1):
@@ -163,26 +196,41 @@ func ptr(s []float64) *C.double {
 	return (*C.double)(unsafe.Pointer(&s[0]))
 }
 
-func (p *Problem) args() loadArgs {
+// args returns the C views of p. The bounds, with ±Inf mapped to
+// ±COIN_DBL_MAX, are written into scratch (grown as needed and returned, so
+// a model that is loaded again and again reuses one buffer).
+func (p *Problem) args(scratch []float64) (loadArgs, []float64) {
 	var a loadArgs
 	a.start = unsafe.Pointer(&p.Start[0])
 	if len(p.Index) > 0 {
 		a.index = unsafe.Pointer(&p.Index[0])
 	}
 	a.value = ptr(p.Value)
-	a.cl = ptr(finite(make([]float64, 0, p.Cols), p.ColLower))
-	a.cu = ptr(finite(make([]float64, 0, p.Cols), p.ColUpper))
-	a.rl = ptr(finite(make([]float64, 0, p.Rows), p.RowLower))
-	a.ru = ptr(finite(make([]float64, 0, p.Rows), p.RowUpper))
+	n := 2*p.Cols + 2*p.Rows
+	if cap(scratch) < n {
+		scratch = make([]float64, 0, n)
+	}
+	b := finite(scratch[:0], p.ColLower)
+	b = finite(b, p.ColUpper)
+	b = finite(b, p.RowLower)
+	b = finite(b, p.RowUpper)
+	c, r := p.Cols, p.Rows
+	a.cl, a.cu = ptr(b[:c]), ptr(b[c:2*c])
+	a.rl, a.ru = ptr(b[2*c:2*c+r]), ptr(b[2*c+r:])
 	a.obj = ptr(p.Obj)
-	return a
+	return a, b
 }
 
-// LP is one CLP model.
+// LP is one CLP model. One model may be loaded and solved any number of
+// times: each Load replaces the problem and starts the next solve afresh from
+// the slack basis, so a caller solving many small LPs saves the cost of
+// Clp_newModel (CLP builds its message tables there, a sizeable part of a
+// small solve) by keeping one LP.
 type LP struct {
-	m    unsafe.Pointer // Clp_Simplex*
-	cols int
-	rows int
+	m       unsafe.Pointer // Clp_Simplex*
+	cols    int
+	rows    int
+	scratch []float64 // bounds with COIN-OR's infinity, reused by Load
 }
 
 // NewLP makes an empty CLP model with logging off. Call Close when done.
@@ -200,7 +248,8 @@ func (lp *LP) Close() {
 	}
 }
 
-// Load copies the problem into the model (Clp_loadProblem).
+// Load copies the problem into the model (Clp_loadProblem), replacing any
+// problem loaded before together with its basis and solution.
 func (lp *LP) Load(p *Problem) error {
 	if lp.m == nil {
 		return errors.New("coin: LP used after Close")
@@ -208,7 +257,8 @@ func (lp *LP) Load(p *Problem) error {
 	if err := p.check(); err != nil {
 		return err
 	}
-	a := p.args()
+	var a loadArgs
+	a, lp.scratch = p.args(lp.scratch)
 	C.Clp_loadProblem(lp.m, C.int(p.Cols), C.int(p.Rows),
 		(*C.CoinBigIndex)(a.start), (*C.int)(a.index), a.value,
 		a.cl, a.cu, a.obj, a.rl, a.ru)
@@ -231,8 +281,7 @@ func (lp *LP) SetScaling(on bool) {
 // values pass); for the small dense blend models this is faster than
 // Clp_initialSolve's presolve and chooses the same optimum.
 func (lp *LP) Solve() Status {
-	C.Clp_dual(lp.m, 0)
-	return lp.status()
+	return Status(C.coin_lp_dual(lp.m))
 }
 
 // SolveInitial runs Clp_initialSolve: presolve, CLP's choice of method,
@@ -295,6 +344,33 @@ func (lp *LP) ReducedCost(dst []float64) []float64 {
 	return copyOut(dst, C.Clp_getReducedCost(lp.m), lp.cols)
 }
 
+// Solution copies the whole answer of the last solve in one call: column
+// values x and reduced costs d (len Cols), row activities act and duals y
+// (len Rows) and the basis status of every column then every row logical
+// into st (len Cols+Rows). Each slice must have its length or be nil to
+// skip it.
+func (lp *LP) Solution(x, act, y, d []float64, st []Basis) error {
+	if lp.m == nil {
+		return errors.New("coin: LP used after Close")
+	}
+	c, r := lp.cols, lp.rows
+	for _, s := range []struct {
+		name string
+		got  int
+		want int
+	}{{"x", len(x), c}, {"act", len(act), r}, {"y", len(y), r}, {"d", len(d), c}, {"st", len(st), c + r}} {
+		if s.got != 0 && s.got != s.want {
+			return fmt.Errorf("coin: solution slice %s has length %d, want %d", s.name, s.got, s.want)
+		}
+	}
+	var stp *C.uchar
+	if len(st) > 0 {
+		stp = (*C.uchar)(unsafe.Pointer(&st[0]))
+	}
+	C.coin_lp_solution(lp.m, C.int(c), C.int(r), ptr(x), ptr(act), ptr(y), ptr(d), stp)
+	return nil
+}
+
 // Statuses copies the basis status of every column, then every row logical,
 // into dst (Clp_statusArray, one call for the whole basis).
 func (lp *LP) Statuses(dst []Basis) []Basis {
@@ -351,7 +427,7 @@ func (mp *MIP) Load(p *Problem) error {
 	if err := p.check(); err != nil {
 		return err
 	}
-	a := p.args()
+	a, _ := p.args(nil)
 	C.Cbc_loadProblem(mp.m, C.int(p.Cols), C.int(p.Rows),
 		(*C.CoinBigIndex)(a.start), (*C.int)(a.index), a.value,
 		a.cl, a.cu, a.obj, a.rl, a.ru)

@@ -107,3 +107,53 @@ func TestLPSolveInitial(t *testing.T) {
 	assert.InDelta(t, 9, lp.Objective(), 1e-9)
 	assert.InDeltaSlice(t, []float64{1.5, 0.5}, lp.RowPrice(nil), 1e-9)
 }
+
+// Solution reads the hand-worked answer of paperLP in one call: x = (3, 1),
+// both rows tight at (4, 6), duals (1.5, 0.5), reduced costs zero, both
+// columns basic and both row logicals not.
+func TestLPSolutionInOneCall(t *testing.T) {
+	lp := NewLP()
+	defer lp.Close()
+	require.NoError(t, lp.Load(paperLP()))
+	require.Equal(t, Optimal, lp.Solve())
+	x, act, y, d := make([]float64, 2), make([]float64, 2), make([]float64, 2), make([]float64, 2)
+	st := make([]Basis, 4)
+	require.NoError(t, lp.Solution(x, act, y, d, st))
+	assert.InDeltaSlice(t, []float64{3, 1}, x, 1e-9)
+	assert.InDeltaSlice(t, []float64{4, 6}, act, 1e-9)
+	assert.InDeltaSlice(t, []float64{1.5, 0.5}, y, 1e-9)
+	assert.InDeltaSlice(t, []float64{0, 0}, d, 1e-9)
+	assert.Equal(t, lp.Statuses(nil), st)
+	assert.Equal(t, Basic, st[0])
+	assert.NotEqual(t, Basic, st[2])
+	require.NoError(t, lp.Solution(nil, act, nil, nil, nil), "nil parts are skipped")
+	assert.ErrorContains(t, lp.Solution(make([]float64, 3), nil, nil, nil, nil), "length 3")
+}
+
+// One model loaded again and again: each Load replaces the problem and the
+// next solve starts afresh, so a reused model gives what a new one gives
+// (the hand-worked optimum 9 of paperLP, the hand-checked infeasibility of
+// x + y >= 4 with x + y <= 3, and paperLP again with the same iteration count).
+func TestLPReuse(t *testing.T) {
+	fresh := NewLP()
+	require.NoError(t, fresh.Load(paperLP()))
+	require.Equal(t, Optimal, fresh.Solve())
+	iters := fresh.Iterations()
+	fresh.Close()
+
+	lp := NewLP()
+	defer lp.Close()
+	for k := 0; k < 3; k++ {
+		require.NoError(t, lp.Load(paperLP()))
+		require.Equal(t, Optimal, lp.Solve())
+		assert.InDelta(t, 9, lp.Objective(), 1e-9)
+		assert.Equal(t, iters, lp.Iterations(), "solve %d starts from the slack basis", k)
+		inf := math.Inf(1)
+		require.NoError(t, lp.Load(&Problem{
+			Cols: 2, Rows: 2, Start: []int32{0, 2, 4}, Index: []int32{0, 1, 0, 1},
+			Value: []float64{1, 1, 1, 1}, ColLower: []float64{0, 0}, ColUpper: []float64{inf, inf},
+			Obj: []float64{1, 1}, RowLower: []float64{4, math.Inf(-1)}, RowUpper: []float64{inf, 3},
+		}))
+		assert.Equal(t, Infeasible, lp.Solve())
+	}
+}
