@@ -9,5 +9,7 @@ import (
 )
 
 func benchBareCLP(b *testing.B, _ *catalogue.Catalogue, _ *catalogue.Spec) {
-	b.Run("BareCLP", func(b *testing.B) { b.Skip("CLP needs the cgo build without -tags purego") })
+	for _, name := range []string{"BareCLP", "BareCLPReused"} {
+		b.Run(name, func(b *testing.B) { b.Skip("CLP needs the cgo build without -tags purego") })
+	}
 }

@@ -24,14 +24,27 @@ func bench30x20(tb testing.TB) (*catalogue.Catalogue, *catalogue.Spec) {
 
 // BenchmarkBlend30x20/Solve is the whole optimise.Solve call: model
 // building, CLP, duals, ranging, properties and reports.
+// BenchmarkBlend30x20/Solver is the same through one Solver kept across
+// solves (as a workspace session would).
 // BenchmarkBlend30x20/GonumSimplex is gonum's lp.Simplex alone on the same
-// model in standard form, prebuilt. BenchmarkBlend30x20/BareCLP (cgo builds,
-// bench_coin_test.go) is CLP through the binding on prebuilt arrays.
+// model in standard form, prebuilt. BenchmarkBlend30x20/BareCLP and
+// BareCLPReused (cgo builds, bench_coin_test.go) are CLP through the binding
+// on prebuilt arrays, with a new CLP model per solve and with one model.
 func BenchmarkBlend30x20(b *testing.B) {
 	cat, spec := bench30x20(b)
 	b.Run("Solve", func(b *testing.B) {
 		for b.Loop() {
 			r, err := Solve(cat, spec, Options{})
+			if err != nil || r.Status != Optimal {
+				b.Fatal(err, r.Status)
+			}
+		}
+	})
+	b.Run("Solver", func(b *testing.B) {
+		s := NewSolver()
+		defer s.Close()
+		for b.Loop() {
+			r, err := s.Solve(cat, spec, Options{})
 			if err != nil || r.Status != Optimal {
 				b.Fatal(err, r.Status)
 			}

@@ -40,7 +40,9 @@ type solution struct {
 
 // engine solves models. Implementations are chosen by build tags: COIN-OR
 // CLP/CBC through optimise/coin when cgo is available (and the purego tag is
-// not set), gonum's simplex otherwise.
+// not set), gonum's simplex otherwise. defaultEngine makes one that holds
+// nothing between calls; reusableEngine one that keeps its working memory
+// (a CLP model) from one solve to the next until close.
 type engine interface {
 	name() string
 	milpName() string
@@ -48,4 +50,20 @@ type engine interface {
 	solveLP(m *model) (*solution, error)
 	// solveMILP solves m honouring m.integer.
 	solveMILP(m *model) (*solution, error)
+	// close frees what the engine keeps; the engine is not used after.
+	close()
+}
+
+// newSolution allocates an optimal LP answer for nCols columns and nRows
+// rows: the four value vectors share one allocation.
+func newSolution(nCols, nRows int) *solution {
+	v := make([]float64, 2*nCols+2*nRows)
+	return &solution{
+		status: solOptimal,
+		x:      v[:nCols:nCols],
+		d:      v[nCols : 2*nCols : 2*nCols],
+		act:    v[2*nCols : 2*nCols+nRows : 2*nCols+nRows],
+		y:      v[2*nCols+nRows:],
+		basis:  make([]varState, nCols+nRows),
+	}
 }

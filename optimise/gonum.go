@@ -39,6 +39,8 @@ func (gonumEngine) milpName() string { return "gonum" }
 
 func (gonumEngine) solveMILP(*model) (*solution, error) { return nil, errNoMILP }
 
+func (gonumEngine) close() {}
+
 func (gonumEngine) solveLP(m *model) (*solution, error) {
 	p := perturbed(m)
 	s, err := simplexBounded(p)

@@ -93,23 +93,40 @@ type csc struct {
 }
 
 func (m *model) csc() csc {
+	var c csc
+	m.cscInto(&c)
+	return c
+}
+
+// cscInto writes the compressed sparse column form of A into c, reusing
+// its arrays when they are large enough.
+func (m *model) cscInto(c *csc) {
 	nz := 0
 	for _, v := range m.a {
 		if v != 0 {
 			nz++
 		}
 	}
-	c := csc{start: make([]int32, m.nCols+1), index: make([]int32, 0, nz), value: make([]float64, 0, nz)}
+	if cap(c.start) < m.nCols+1 {
+		c.start = make([]int32, m.nCols+1)
+	}
+	if cap(c.index) < nz {
+		c.index = make([]int32, nz)
+		c.value = make([]float64, nz)
+	}
+	c.start, c.index, c.value = c.start[:m.nCols+1], c.index[:nz], c.value[:nz]
+	k := 0
+	c.start[0] = 0
 	for j := 0; j < m.nCols; j++ {
-		for i := 0; i < m.nRows; i++ {
-			if v := m.a[i*m.nCols+j]; v != 0 {
-				c.index = append(c.index, int32(i))
-				c.value = append(c.value, v)
+		for i, off := 0, j; i < m.nRows; i, off = i+1, off+m.nCols {
+			if v := m.a[off]; v != 0 {
+				c.index[k] = int32(i)
+				c.value[k] = v
+				k++
 			}
 		}
-		c.start[j+1] = int32(len(c.index))
+		c.start[j+1] = int32(k)
 	}
-	return c
 }
 
 // activity computes A x into dst.

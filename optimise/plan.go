@@ -68,7 +68,9 @@ func specLabel(s *catalogue.Spec) string {
 // "<spec>:<limit>"); otherwise the shortfall of shared stock is found by an
 // LP that minimises the extra tonnes needed ("avail.<id>").
 func Plan(cat *catalogue.Catalogue, orders *catalogue.Orders) (*PlanResult, error) {
-	return planWith(defaultEngine(), cat, orders)
+	s := NewSolver()
+	defer s.Close()
+	return s.Plan(cat, orders)
 }
 
 func planWith(eng engine, cat *catalogue.Catalogue, orders *catalogue.Orders) (*PlanResult, error) {

@@ -10,8 +10,13 @@ import (
 	"lipoplan/catalogue"
 )
 
+// solve runs one Solve in a Solver of its own, so that the LPs of one call
+// (the base LP, the LP after a MILP, an elastic programme) share one CLP
+// model, freed before it returns.
 func solve(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result, error) {
-	return solveWith(defaultEngine(), cat, spec, opt)
+	s := NewSolver()
+	defer s.Close()
+	return s.Solve(cat, spec, opt)
 }
 
 // solveWith is Solve on a chosen engine.

@@ -1,0 +1,51 @@
+package optimise
+
+import (
+	"errors"
+
+	"lipoplan/catalogue"
+)
+
+// Solver solves one spec or plan after another with the same working
+// memory: in the COIN-OR build it keeps one CLP model (and the buffers that
+// fill it) between solves, which saves making a CLP model per solve, a
+// sizeable share of a small blend LP. Every solve starts afresh from the slack
+// basis, so a Solver gives exactly the answers of Solve and Plan, whatever
+// it solved before.
+//
+// A Solver is for one goroutine at a time (a workspace session, a benchmark
+// loop); give each goroutine its own. Close frees its C memory; the zero
+// value is not usable, make one with NewSolver.
+type Solver struct {
+	eng engine
+}
+
+// NewSolver makes a Solver. Call Close when done with it.
+func NewSolver() *Solver { return &Solver{eng: reusableEngine()} }
+
+var errSolverClosed = errors.New("optimise: Solver used after Close")
+
+// Solve is Solve with the Solver's working memory.
+func (s *Solver) Solve(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result, error) {
+	if s == nil || s.eng == nil {
+		return nil, errSolverClosed
+	}
+	return solveWith(s.eng, cat, spec, opt)
+}
+
+// Plan is Plan with the Solver's working memory.
+func (s *Solver) Plan(cat *catalogue.Catalogue, orders *catalogue.Orders) (*PlanResult, error) {
+	if s == nil || s.eng == nil {
+		return nil, errSolverClosed
+	}
+	return planWith(s.eng, cat, orders)
+}
+
+// Close frees the Solver's C memory. It is safe to call more than once;
+// the Solver is not used after.
+func (s *Solver) Close() {
+	if s != nil && s.eng != nil {
+		s.eng.close()
+		s.eng = nil
+	}
+}
