@@ -30,7 +30,13 @@ func Solubility(dH, tm, t float64) float64 {
 // piece through the current point never lies below f to its left), each
 // step saturating at least one more component, so at most len(z)+1 steps.
 // L = 1 when everything dissolves; L = 0 below the eutectic (sum xs <= 1).
-func LiquidFraction(z, xs []float64) float64 {
+func LiquidFraction(z, xs []float64) float64 { return LiquidFractionFrom(z, xs, 1) }
+
+// LiquidFractionFrom is LiquidFraction started at L = start instead of 1; a
+// start at or above the root (e.g. the liquid fraction at a higher
+// temperature) saves steps. A start below the root is detected and replaced
+// by 1.
+func LiquidFractionFrom(z, xs []float64, start float64) float64 {
 	var sumMin, sumXs, sumZ float64
 	for i, zi := range z {
 		if zi <= 0 {
@@ -50,7 +56,10 @@ func LiquidFraction(z, xs []float64) float64 {
 		return 0
 	}
 	L := 1.0
-	for iter := 0; iter <= len(z)+1; iter++ {
+	if start > 0 && start < 1 {
+		L = start
+	}
+	for iter := 0; iter <= len(z)+2; iter++ {
 		var A, B float64
 		for i, zi := range z {
 			if zi <= 0 {
@@ -61,6 +70,13 @@ func LiquidFraction(z, xs []float64) float64 {
 			} else {
 				B += xs[i]
 			}
+		}
+		if A/L+B-1 > 1e-12 { // left of the root: restart from L = 1
+			if L == 1 {
+				break
+			}
+			L = 1
+			continue
 		}
 		if B >= 1 { // cannot happen right of the root; guard against round-off
 			break

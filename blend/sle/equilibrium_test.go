@@ -93,6 +93,9 @@ func TestEquilibriumMassBalance(t *testing.T) {
 			}
 			assert.LessOrEqual(t, sxs, 1+1e-12, "no liquid only below the eutectic")
 		}
+		// a warm start anywhere in (0, 1) gives the same answer (a start left
+		// of the root is detected and replaced by 1)
+		assert.InDelta(t, L, LiquidFractionFrom(z, xs, r.Float64()), 1e-12)
 		// the plain bisection finds the same liquid fraction
 		if L > 0 && L < 1 {
 			assert.InDelta(t, bisectLiquid(z, xs), L, 1e-9)

@@ -1,8 +1,10 @@
 package sle
 
 import (
+	"cmp"
 	"fmt"
 	"math"
+	"slices"
 
 	"lipoplan/blend"
 	"lipoplan/catalogue"
@@ -34,14 +36,21 @@ type Set struct {
 	mass []float64 // g/mol
 	tm   []float64 // K
 	dhR  []float64 // dH/R, K
-	name []string
 }
 
 // NewSet precomputes the TAG identities of all species over acids and their
 // melting properties in the chosen polymorph.
 func NewSet(acids []catalogue.FattyAcid, opt Options) *Set {
 	n := len(acids)
-	s := &Set{Acids: acids, opt: opt, n: n, group: make([]int32, n*n*n)}
+	m := n * n * (n + 1) / 2
+	s := &Set{Acids: acids, opt: opt, n: n, group: make([]int32, n*n*n),
+		mass: make([]float64, 0, m), tm: make([]float64, 0, m), dhR: make([]float64, 0, m)}
+	w, beta := wesdorp(opt.Polymorph), opt.Polymorph.resolve() == Beta
+	mass := make([]float64, n)
+	for i, f := range acids {
+		mass[i] = f.MolarMass()
+	}
+	base := catalogue.Glycerol.Mass() - 3*catalogue.Water.Mass()
 	for i := 0; i < n; i++ {
 		for j := 0; j < n; j++ {
 			for k := i; k < n; k++ {
@@ -49,11 +58,11 @@ func NewSet(acids []catalogue.FattyAcid, opt Options) *Set {
 				s.group[(i*n+j)*n+k] = g
 				s.group[(k*n+j)*n+i] = g
 				a, b, c := acids[i], acids[j], acids[k]
-				m := MeltingOf(a, b, c, opt.Polymorph)
-				s.mass = append(s.mass, catalogue.TAGMolarMass(a, b, c))
-				s.tm = append(s.tm, m.Tm)
-				s.dhR = append(s.dhR, m.DH/GasConstant)
-				s.name = append(s.name, a.Code+b.Code+c.Code)
+				p := meltingWith(w, beta, a, b, c)
+				// glycerol + 3 acids - 3 water (condensation), as catalogue.TAGMolarMass
+				s.mass = append(s.mass, base+mass[i]+mass[j]+mass[k])
+				s.tm = append(s.tm, p.Tm)
+				s.dhR = append(s.dhR, p.DH/GasConstant)
 			}
 		}
 	}
@@ -69,6 +78,7 @@ func (s *Set) Len() int { return len(s.mass) }
 type Work struct {
 	z, xs, mass, tm, dhR []float64
 	acc                  []float64
+	order                []int
 }
 
 // Curve predicts the SFC (mass % solid) at each temperature (deg C) of the
@@ -120,8 +130,17 @@ func (s *Set) Curve(mol []float64, temps []float64, out []float64, w *Work) erro
 	}
 	totalMass /= total
 	w.xs = grow(w.xs, len(w.z))
-	for ti, t := range temps {
-		tk := t + 273.15
+	// Solve from the highest temperature down: the liquid fraction rises
+	// with temperature, so each solution bounds the next root from above,
+	// which is where LiquidFractionFrom must start.
+	w.order = w.order[:0]
+	for i := range temps {
+		w.order = append(w.order, i)
+	}
+	slices.SortFunc(w.order, func(a, b int) int { return cmp.Compare(temps[b], temps[a]) })
+	L := 1.0
+	for _, ti := range w.order {
+		tk := temps[ti] + 273.15
 		for i := range w.z {
 			if w.dhR[i] <= 0 || tk >= w.tm[i] {
 				w.xs[i] = 1
@@ -129,7 +148,7 @@ func (s *Set) Curve(mol []float64, temps []float64, out []float64, w *Work) erro
 				w.xs[i] = math.Exp(w.dhR[i] * (1/w.tm[i] - 1/tk))
 			}
 		}
-		L := LiquidFraction(w.z, w.xs)
+		L = LiquidFractionFrom(w.z, w.xs, L)
 		var solid float64
 		for i, zi := range w.z {
 			if si := zi - L*w.xs[i]; si > 0 {

@@ -62,7 +62,9 @@ func TestPureTAGSolidBelowMeltingPointLiquidAbove(t *testing.T) {
 func TestBinaryPPPOOOAgainstHildebrandByHand(t *testing.T) {
 	// 50:50 mol tripalmitin/triolein at temperatures where triolein is fully
 	// liquid: the liquid is saturated in PPP (Hildebrand), L = 0.5/(1 - xs),
-	// solid PPP = 0.5 - L xs mol per mol, SFC = 100 solid M(PPP) / mean M.
+	// solid PPP = 0.5 - L xs mol per mol, SFC = 100 solid M(PPP) / mean M,
+	// with M from catalogue.TAGMolarMass (tripalmitin 807.3, triolein 885.4
+	// g/mol, DESIGN section 5), so the set's own masses are checked too.
 	p, o := acid(t, "C16:0"), acid(t, "C18:1")
 	d := &randomise.Distribution{Acids: []catalogue.FattyAcid{p, o}, Mol: make([]float64, 8)}
 	d.Mol[0] = 0.5 // PPP (0,0,0)

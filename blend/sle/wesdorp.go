@@ -192,8 +192,11 @@ func (m Melting) TmCelsius() float64 { return m.Tm - 273.15 }
 //
 // Sn-1 and sn-3 enter only through P and R, so mirror images melt alike.
 func MeltingOf(a, b, c catalogue.FattyAcid, p Polymorph) Melting {
-	w := wesdorp(p)
-	p = p.resolve()
+	return meltingWith(wesdorp(p), p.resolve() == Beta, a, b, c)
+}
+
+// meltingWith is MeltingOf with the coefficient set already chosen.
+func meltingWith(w wesdorpSet, beta bool, a, b, c catalogue.FattyAcid) Melting {
 	n1, n2, n3 := a.Carbons, b.Carbons, c.Carbons
 	n := float64(n1 + n2 + n3)
 	pp, rr := min(n1, n3), max(n1, n3)
@@ -204,14 +207,14 @@ func MeltingOf(a, b, c catalogue.FattyAcid, p Polymorph) Melting {
 		odd = 1
 	}
 	var cnt [5]float64
-	for _, f := range []catalogue.FattyAcid{a, b, c} {
-		cnt[kindOf(f)]++
-	}
+	cnt[kindOf(a)]++
+	cnt[kindOf(b)]++
+	cnt[kindOf(c)]++
 	nO, nE, nJ, nN := cnt[kindO], cnt[kindE], cnt[kindJ], cnt[kindN]
 	pairs := func(v float64) float64 { return v * (v - 1) / 2 }
 
 	dh := w.h*n + w.h0 + w.hxy*fxy + w.hO*nO + w.hE*nE + w.hJ*(nJ+nN)
-	if p == Beta {
+	if beta {
 		dh += w.hodd * odd
 	}
 	quad := func(c0, codd, cx, cx2, cxy, cy, cy2 float64) float64 {
