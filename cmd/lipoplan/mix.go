@@ -10,21 +10,32 @@ import (
 
 	"lipoplan/blend"
 	"lipoplan/catalogue"
+	"lipoplan/randomise"
 )
 
 func (a *app) mix(args []string) error {
-	fs := a.newFlags("mix", `--use "id=40,id2=60" [--stocks F] [--temps "10,20,35"] [--format text|json]`,
+	fs := a.newFlags("mix", `--use "id=40,id2=60" [--stocks F] [--temps "10,20,35"] [--process native|chemical|enzymatic] [--predict] [--format text|json]`,
 		"Properties of a physical mix (% by mass): fatty-acid profile, calculated IV (AOCS Cd 1c-85),\n"+
-			"SV, SAFA/MUFA/PUFA, trans, omega-3, Cox value and SFC weighted from the stocks' measured curves.")
+			"SV, SAFA/MUFA/PUFA, trans, omega-3, Cox value and SFC weighted from the stocks' measured curves.\n"+
+			"--predict adds the SFC predicted from the TAGs (solid-liquid equilibrium) after --process.")
 	stocksPath := fs.String("stocks", "", "stock catalogue TOML (default: embedded demo stocks)")
 	use := fs.String("use", "", `shares by stock id, % by mass, e.g. "pko-r=40,ps-h=60"`)
 	temps := fs.String("temps", "", `SFC temperatures in deg C (default 10,15,...,45)`)
 	format := fs.String("format", "text", "text or json")
+	process := fs.String("process", "native", "for --predict: native, chemical or enzymatic interesterification of the whole mix")
+	predict := fs.Bool("predict", false, "add the SFC predicted from the TAG composition")
 	if err := a.parse(fs, args); err != nil {
 		return err
 	}
 	if err := checkFormat(*format, "text", "json"); err != nil {
 		return err
+	}
+	method, err := randomise.ParseMethod(*process)
+	if err != nil {
+		return catalogue.Badf("--process %q is not known; use native, chemical or enzymatic", *process)
+	}
+	if method != randomise.Native && !*predict {
+		return catalogue.Badf("--process %s changes only the predicted SFC; add --predict", method)
 	}
 	cat, err := a.stocks(*stocksPath)
 	if err != nil {
@@ -45,15 +56,30 @@ func (a *app) mix(args []string) error {
 	if err != nil {
 		return catalogue.Badf("--use: %w", err)
 	}
+	var pred *predicted
+	if *predict {
+		if pred, err = predictMix(parts, method, ts); err != nil {
+			return err
+		}
+	}
 	if *format == "json" {
 		out := propertiesJSON(p)
 		out["caution"] = cautionJSON
+		if pred != nil {
+			pred.addJSON(out)
+		}
 		return writeJSON(a.stdout, out)
 	}
 	fmt.Fprintf(a.stdout, "Mix of %s\n\n", describeParts(parts))
 	writeProperties(a.stdout, p, ts)
+	if pred != nil {
+		pred.writeText(a.stdout, ts)
+	}
 	fmt.Fprintln(a.stdout)
 	fmt.Fprintln(a.stdout, cautionLine)
+	if method != randomise.Native {
+		fmt.Fprintln(a.stdout, processCaution)
+	}
 	return nil
 }
 
