@@ -25,7 +25,8 @@ func DefaultOptions() Options { return Options{Polymorph: DefaultPolymorph} }
 // precomputed: the positional species (sn-1, sn-2, sn-3) of a distribution
 // over those acids are grouped into TAG identities by merging mirror images
 // (ABC with CBA), which melt alike. Build it once per acid set and call Curve
-// for as many compositions as needed (no maps on that path).
+// for as many compositions as needed (no maps on that path). A Set is never
+// changed after NewSet: goroutines may share it, each with its own Work.
 type Set struct {
 	Acids []catalogue.FattyAcid
 	opt   Options
