@@ -92,10 +92,10 @@ const tInfinity = 401.15
 // (doi:10.1201/b12883-10) and tabulated (42 parameters per polymorph) by
 // Moorthy et al. (2016), J. Am. Oil Chem. Soc. (doi:10.1007/s11746-016-2935-1).
 // We did not have the original papers; the values below were read from a
-// public transcription of that table in open-source Rust code (GitHub
-// projects of "ippras", files on TAG thermodynamic properties), where three
-// copies (rounded table and unrounded saturated A/B constants) agree. The
-// 3-decimal table values are used. Values the table gives in parentheses
+// secondary public transcription of that table (three copies of it, rounded
+// table and unrounded saturated A/B constants, agree) and should be checked
+// against Moorthy et al. (2016), Table 1, when it is to hand. The 3-decimal
+// table values are used. Values the table gives in parentheses
 // ("guessed for lack of data": alpha h_J, beta' h_E, h_J) are used as given.
 func wesdorp(p Polymorph) wesdorpSet {
 	switch p.resolve() {
