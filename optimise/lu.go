@@ -88,8 +88,16 @@ func (f *denseLU) solve(b []float64) []float64 {
 
 // solveT returns x with Aᵀ x = b: Uᵀ z = b, Lᵀ w = z, x = Pᵀ w.
 func (f *denseLU) solveT(b []float64) []float64 {
+	x := make([]float64, f.n)
+	f.solveTTo(x, make([]float64, f.n), b)
+	return x
+}
+
+// solveTTo is solveT writing x into x, with w as scratch (both len n, not
+// aliasing b).
+func (f *denseLU) solveTTo(x, w, b []float64) {
 	n, a := f.n, f.a
-	w := append([]float64(nil), b...)
+	copy(w, b)
 	for i := 0; i < n; i++ {
 		s := w[i]
 		for j := 0; j < i; j++ {
@@ -104,9 +112,7 @@ func (f *denseLU) solveT(b []float64) []float64 {
 		}
 		w[i] = s
 	}
-	x := make([]float64, n)
 	for i, p := range f.piv {
 		x[p] = w[i]
 	}
-	return x
 }

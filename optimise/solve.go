@@ -250,11 +250,7 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 
 	// Cost ranging: objective coefficients are price/100, so a change δ
 	// of the coefficient is a price change of 100·δ.
-	f, ferr := newBasisFactor(m, sol.basis)
-	var rg *ranger
-	if ferr == nil {
-		rg = f.newRanger(sol.basis, sol.d, sol.y)
-	}
+	rg, ferr := newRanger(m, sol.basis, sol.d, sol.y)
 	for j := 0; j < n; j++ {
 		s := l.cols[j].stock
 		r := Range{Stock: s.ID, InBlend: sol.x[j] > usedTol, Price: s.Price, PriceLow: math.Inf(-1), PriceHigh: math.Inf(1)}
@@ -266,10 +262,7 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 				r.PriceLow = s.Price - 100*d
 			}
 		case ferr == nil:
-			lo, hi, err := rg.costRange(j)
-			if err != nil {
-				return fmt.Errorf("optimise %s: ranging %q: %w", specWhere(l.spec), s.ID, err)
-			}
+			lo, hi := rg.costRange(j)
 			r.PriceLow, r.PriceHigh = s.Price+100*lo, s.Price+100*hi
 		default:
 			return fmt.Errorf("optimise %s: ranging: %w", specWhere(l.spec), ferr)
