@@ -6,7 +6,22 @@ import (
 	"strings"
 
 	"lipoplan/catalogue"
+	"lipoplan/randomise"
 )
+
+// overlayMethods are the TAG distributions whose predicted SFC the chart can
+// overlay, in the order p steps through them.
+var overlayMethods = [...]randomise.Method{randomise.Native, randomise.Chemical, randomise.Enzymatic}
+
+func overlayTitle(m randomise.Method) string {
+	switch m {
+	case randomise.Chemical:
+		return "after chemical interesterification"
+	case randomise.Enzymatic:
+		return "after enzymatic (sn-1,3) interesterification"
+	}
+	return "as blended"
+}
 
 // cell kinds of the SFC chart canvas.
 type cellKind uint8
@@ -15,6 +30,7 @@ const (
 	cellEmpty cellKind = iota
 	cellGrid
 	cellBand
+	cellPred // TAG-model prediction overlay
 	cellCurve
 	cellIn  // curve point at a spec temperature, inside the band
 	cellOut // curve point at a spec temperature, outside the band
@@ -81,6 +97,24 @@ func (m *Model) sfcPanel(w, h int) []string {
 	for _, p := range pts {
 		top = math.Max(top, p.Solid)
 	}
+	var pred []catalogue.Point
+	var predNote string
+	if m.overlay > 0 && m.snap.Feasible() {
+		method := overlayMethods[m.overlay-1]
+		if col, ok := m.snap.TAG.Column(method); ok {
+			switch {
+			case col.Err != nil:
+				predNote = col.Err.Error()
+			case col.PredErr != nil:
+				predNote = col.PredErr.Error()
+			default:
+				pred = col.Predicted
+			}
+		}
+		for _, p := range pred {
+			top = math.Max(top, p.Solid)
+		}
+	}
 	top = math.Min(100, math.Ceil(top/10)*10)
 	c := &sfcChart{w: max(10, w-8), h: max(3, h-5), lo: lo, hi: hi, top: top}
 	c.cells = make([]cellKind, c.w*c.h)
@@ -107,6 +141,7 @@ func (m *Model) sfcPanel(w, h int) []string {
 			}
 		}
 	}
+	plot(c, pred, cellPred)
 	// blend curve, joined with vertical strokes where it falls steeply
 	prev := -1
 	for x := 0; x < c.w; x++ {
@@ -135,7 +170,11 @@ func (m *Model) sfcPanel(w, h int) []string {
 		}
 	}
 
-	out := []string{" " + st.head.Render("SFC, % solid, against °C") + st.muted.Render(" · blend (linear in measured curves) and spec band")}
+	sub := " · blend (linear in measured curves) and spec band"
+	if m.overlay > 0 {
+		sub = " · measured-linear • and TAG model ∘ " + overlayTitle(overlayMethods[m.overlay-1])
+	}
+	out := []string{" " + st.head.Render("SFC, % solid, against °C") + st.muted.Render(fit(sub, max(0, w-26)))}
 	labels := map[int]string{}
 	step := 10.0
 	if float64(c.h-1)/(top/10) < 2 {
@@ -163,10 +202,66 @@ func (m *Model) sfcPanel(w, h int) []string {
 		}
 	}
 	out = append(out, st.muted.Render(strings.TrimRight(string(axis), " ")))
-	out = append(out, " "+st.curve.Render("•")+" blend   "+st.band.Render("▒")+" spec band   "+
-		st.ok.Render("●")+" meets   "+st.bad.Render("✗")+" misses")
-	out = append(out, m.sfcSummary(pts, gaps))
+	legend := " " + st.curve.Render("•") + " blend   " + st.band.Render("▒") + " spec band   " +
+		st.ok.Render("●") + " meets   " + st.bad.Render("✗") + " misses"
+	if m.overlay > 0 {
+		legend += "   " + st.pred.Render("∘") + " predicted"
+	} else {
+		legend += st.muted.Render("   p predicted")
+	}
+	out = append(out, legend)
+	switch {
+	case predNote != "":
+		out = append(out, st.muted.Render(fit(" Prediction unavailable: "+predNote, w)))
+	case len(pred) > 0:
+		out = append(out, m.predSummary(pred))
+	default:
+		out = append(out, m.sfcSummary(pts, gaps))
+	}
 	return out
+}
+
+// plot draws a curve on the canvas, joined with vertical strokes.
+func plot(c *sfcChart, pts []catalogue.Point, k cellKind) {
+	if len(pts) == 0 {
+		return
+	}
+	prev := -1
+	for x := 0; x < c.w; x++ {
+		t := c.lo + float64(x)/float64(max(1, c.w-1))*(c.hi-c.lo)
+		v, ok := interp(pts, t)
+		if !ok {
+			prev = -1
+			continue
+		}
+		y := c.row(v)
+		c.set(x, y, k)
+		if prev >= 0 {
+			for yy := min(prev, y) + 1; yy < max(prev, y); yy++ {
+				c.set(x, yy, k)
+			}
+		}
+		prev = y
+	}
+}
+
+// predSummary is one line: the predicted SFC at each spec temperature, with
+// the caution that it is a model estimate.
+func (m *Model) predSummary(pred []catalogue.Point) string {
+	st := m.styles
+	var b strings.Builder
+	b.WriteString(" model ")
+	for _, l := range m.sc.Spec.SFC {
+		if v, ok := interp(pred, l.Temp); ok {
+			mark := st.ok.Render("✓")
+			if !inBand(l, v) {
+				mark = st.bad.Render("✗")
+			}
+			fmt.Fprintf(&b, "%s° %.1f%s  ", catalogue.TempKey(l.Temp), v, mark)
+		}
+	}
+	b.WriteString(st.muted.Render("(estimate; the blend is optimised on measured curves)"))
+	return b.String()
 }
 
 func (m *Model) chartRow(c *sfcChart, y int) string {
@@ -180,6 +275,8 @@ func (m *Model) chartRow(c *sfcChart, y int) string {
 			b.WriteString(st.muted.Render("·"))
 		case cellBand:
 			b.WriteString(st.band.Render("▒"))
+		case cellPred:
+			b.WriteString(st.pred.Render("∘"))
 		case cellCurve:
 			b.WriteString(st.curve.Render("•"))
 		case cellIn:
@@ -268,6 +365,25 @@ func (m *Model) tagPanel(w, h int) []string {
 			line += "  " + st.band.Render(strings.Repeat("█", int(math.Round(r.get(cols[0])/100*float64(barW)))))
 		}
 		out = append(out, line)
+	}
+	if len(m.sc.Spec.SFC) > 0 && h >= 16 {
+		out = append(out, " "+st.head.Render("SFC predicted")+st.muted.Render(" (TAG model, % solid; an estimate)"))
+		for _, l := range m.sc.Spec.SFC {
+			line := " " + fit(catalogue.TempKey(l.Temp)+" °C", 14)
+			for _, c := range cols {
+				v, ok := interp(c.Predicted, l.Temp)
+				if c.Err != nil || c.PredErr != nil || !ok {
+					line += rfit("—", colW)
+					continue
+				}
+				mark := " "
+				if !inBand(l, v) {
+					mark = st.bad.Render("✗")
+				}
+				line += rfit(fmt.Sprintf("%.1f", v), colW-1) + mark
+			}
+			out = append(out, line)
+		}
 	}
 	out = append(out, "", " "+st.head.Render("Main TAGs")+st.muted.Render(" (mirror images merged, sn-2 kept; mol %)"))
 	for i := 0; i < topSpecies && len(out) < h-2; i++ {

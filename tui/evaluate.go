@@ -101,7 +101,7 @@ func Evaluate(sc *Scenario, rev int) (snap *Snapshot) {
 	parts := blendParts(cat, res)
 	lo, hi := chartTemps(spec)
 	snap.Curve, snap.CurveGaps = curve(parts, lo, hi)
-	snap.TAG = tagView(parts)
+	snap.TAG = tagView(parts, lo, hi)
 	return snap
 }
 

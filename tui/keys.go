@@ -13,6 +13,7 @@ type keyMap struct {
 	Allow                 key.Binding
 	NewLimit, DropLimit   key.Binding
 	Relax                 key.Binding
+	Predict               key.Binding
 	Undo, Redo            key.Binding
 	Save, Open, WriteBack key.Binding
 	Quit, Keys            key.Binding
@@ -38,6 +39,7 @@ func newKeyMap() keyMap {
 		NewLimit:  key.NewBinding(key.WithKeys("n", "+"), key.WithHelp("n", "add")),
 		DropLimit: key.NewBinding(key.WithKeys("d", "delete"), key.WithHelp("d", "drop")),
 		Relax:     key.NewBinding(key.WithKeys("R"), key.WithHelp("R", "relax")),
+		Predict:   key.NewBinding(key.WithKeys("p"), key.WithHelp("p", "predicted")),
 		Undo:      key.NewBinding(key.WithKeys("u", "ctrl+z"), key.WithHelp("u", "undo")),
 		Redo:      key.NewBinding(key.WithKeys("U", "ctrl+y"), key.WithHelp("U", "redo")),
 		Save:      key.NewBinding(key.WithKeys("s", "ctrl+s"), key.WithHelp("s", "save")),
@@ -67,6 +69,8 @@ func (k keyMap) helpFor(p panel, infeasible bool) []key.Binding {
 		out = append(out, k.Left, k.Edit, k.Raise, k.Allow)
 	case panelLimits:
 		out = append(out, k.Left, k.Edit, k.Raise, k.NewLimit, k.DropLimit)
+	case panelSFC:
+		out = append(out, k.Predict, k.Panel[0])
 	default:
 		out = append(out, k.Panel[0], k.Redo, k.Open, k.WriteBack)
 	}
@@ -85,6 +89,7 @@ func (k keyMap) keyGroups() [][2]string {
 		{"n  +", "add a limit: iv, trans, C18:2, sfc 30, use <stock>"},
 		{"d  delete", "drop the limit under the cursor"},
 		{"R", "apply the relaxation suggested for an impossible spec"},
+		{"p", "SFC curve: overlay the TAG model's prediction, as blended / chemical IE / enzymatic IE / off"},
 		{"u ctrl+z / U ctrl+y", "undo / redo an edit"},
 		{"s / o", "save the scenario as one TOML file / open one"},
 		{"W", "write stocks and spec back to the files they came from"},

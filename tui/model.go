@@ -90,6 +90,7 @@ type Model struct {
 	quitArm  bool // q pressed once with unsaved edits
 	editNote bool // the message describes an edit still to be costed
 	showKeys bool // the full key list is open
+	overlay  int  // SFC curve: 0 off, else 1 + index into overlayMethods
 
 	keys   keyMap
 	help   help.Model
@@ -283,6 +284,14 @@ func (m *Model) key(k tea.KeyPressMsg) tea.Cmd {
 		return m.dropRow()
 	case key.Matches(k, ks.Relax):
 		return m.applyRelaxation()
+	case key.Matches(k, ks.Predict):
+		m.panel = panelSFC
+		m.overlay = (m.overlay + 1) % (len(overlayMethods) + 1)
+		if m.overlay == 0 {
+			m.info("Predicted SFC overlay off.")
+		} else {
+			m.info("Overlay: SFC predicted by the TAG model, " + overlayTitle(overlayMethods[m.overlay-1]) + ".")
+		}
 	case key.Matches(k, ks.Undo):
 		return m.undoEdit()
 	case key.Matches(k, ks.Redo):

@@ -14,8 +14,10 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"lipoplan/blend"
+	"lipoplan/blend/sle"
 	"lipoplan/catalogue"
 	"lipoplan/optimise"
+	"lipoplan/randomise"
 )
 
 func stockIndex(t *testing.T, m *Model, id string) int {
@@ -419,4 +421,33 @@ func TestEditsDuringASolveAreFolded(t *testing.T) {
 	assert.False(t, m.Pending())
 	assert.Equal(t, m.rev, m.Snapshot().Rev)
 	assert.Equal(t, 1180.0, price(m, "rapeseed"))
+}
+
+// p overlays the TAG model's predicted SFC on the chart, cycling as blended,
+// chemical IE, enzymatic IE and off. The numbers shown must be the blend/sle
+// prediction for the optimal blend's TAGs (same model, computed directly).
+func TestPredictedOverlay(t *testing.T) {
+	d := newDriver(t, demoModel(t, "laminating", Files{}), 80, 24)
+	snap := d.m.Snapshot()
+	require.True(t, snap.Feasible())
+	d.keys("4p")
+	scr := d.screen()
+	assert.Contains(t, scr, "∘ predicted")
+	assert.Contains(t, scr, "as blended")
+	parts := blendParts(d.m.Scenario().Catalogue, snap.Result)
+	temps := []float64{}
+	for _, l := range d.m.Scenario().Spec.SFC {
+		temps = append(temps, l.Temp)
+	}
+	want, _, err := sle.PredictParts(parts, randomise.Native, 1, temps, sle.DefaultOptions())
+	require.NoError(t, err)
+	for _, tt := range temps {
+		assert.Contains(t, scr, fmt.Sprintf("%s° %.1f", catalogue.TempKey(tt), want[tt]))
+	}
+	d.requireFrame(80, 24)
+	d.keys("p")
+	assert.Contains(t, d.screen(), "after chemical interesterification")
+	d.keys("pp")
+	assert.NotContains(t, d.screen(), "∘ predicted", "fourth p turns the overlay off")
+	assert.Equal(t, snap, d.m.Snapshot(), "the overlay never re-solves")
 }

@@ -3,11 +3,12 @@ package tui
 import "charm.land/lipgloss/v2"
 
 // styles is the workspace palette: warm butter for headings, leaf green for a
-// met spec, brick red for what binds or fails, slate for the spec band.
+// met spec, brick red for what binds or fails, slate for the spec band,
+// heather for the TAG model's predicted curve.
 type styles struct {
 	title, tab, tabOn, head, muted, key   lipgloss.Style
 	ok, bad, warn, sel, cell, band, curve lipgloss.Style
-	caution, msg, msgErr                  lipgloss.Style
+	caution, msg, msgErr, pred            lipgloss.Style
 }
 
 func newStyles() styles {
@@ -35,5 +36,6 @@ func newStyles() styles {
 		caution: lipgloss.NewStyle().Italic(true).Foreground(grey),
 		msg:     lipgloss.NewStyle().Foreground(cream),
 		msgErr:  lipgloss.NewStyle().Bold(true).Foreground(brick),
+		pred:    lipgloss.NewStyle().Foreground(lipgloss.Color("#B48EAD")), // heather, the model's overlay
 	}
 }

@@ -2,8 +2,11 @@ package tui
 
 import (
 	"fmt"
+	"sort"
 
 	"lipoplan/blend"
+	"lipoplan/blend/sle"
+	"lipoplan/catalogue"
 	"lipoplan/randomise"
 )
 
@@ -14,6 +17,11 @@ type TAGColumn struct {
 	Top     []randomise.Species
 	Notes   []string
 	Err     error
+	// Predicted is the SFC the TAG model (blend/sle: solid-liquid
+	// equilibrium, Wesdorp melting points, beta) gives for these TAGs on the
+	// chart's 1 °C grid; nil when the model could not run (PredErr says why).
+	Predicted []catalogue.Point
+	PredErr   error
 }
 
 // TAGView holds the TAG classes of the blend as mixed (native) and after full
@@ -25,9 +33,14 @@ type TAGView struct {
 // topSpecies is how many species (positional isomers merged) each column keeps.
 const topSpecies = 6
 
-// tagView distributes the blend three ways. Each method fails on its own
-// (e.g. an acid with no letter code) without hiding the others.
-func tagView(parts []blend.Part) TAGView {
+// tagView distributes the blend three ways and predicts each one's SFC from
+// lo to hi °C. Each method fails on its own (e.g. an acid with no letter
+// code) without hiding the others.
+func tagView(parts []blend.Part, lo, hi float64) TAGView {
+	var temps []float64
+	for t := lo; t <= hi+1e-9; t++ {
+		temps = append(temps, t)
+	}
 	var v TAGView
 	for _, m := range []randomise.Method{randomise.Native, randomise.Chemical, randomise.Enzymatic} {
 		c := TAGColumn{Method: m}
@@ -39,8 +52,34 @@ func tagView(parts []blend.Part) TAGView {
 			sp := d.SpeciesBy(randomise.Regio)
 			c.Top = sp[:min(topSpecies, len(sp))]
 			c.Notes = d.Notes
+			c.Predicted, c.PredErr = predicted(d, temps)
 		}
 		v.Columns = append(v.Columns, c)
 	}
 	return v
+}
+
+// predicted runs the TAG model over temps and returns the curve sorted by
+// temperature.
+func predicted(d *randomise.Distribution, temps []float64) ([]catalogue.Point, error) {
+	vals, err := sle.Predict(d, temps, sle.DefaultOptions())
+	if err != nil {
+		return nil, err
+	}
+	out := make([]catalogue.Point, 0, len(vals))
+	for t, v := range vals {
+		out = append(out, catalogue.Point{Temp: t, Solid: v})
+	}
+	sort.Slice(out, func(i, j int) bool { return out[i].Temp < out[j].Temp })
+	return out, nil
+}
+
+// Column returns the column of method m.
+func (v TAGView) Column(m randomise.Method) (TAGColumn, bool) {
+	for _, c := range v.Columns {
+		if c.Method == m {
+			return c, true
+		}
+	}
+	return TAGColumn{}, false
 }
