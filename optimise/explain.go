@@ -1,102 +1,153 @@
 package optimise
 
 import (
-	"fmt"
 	"math"
 	"strconv"
 )
 
 // words writes shadow prices in plain trade words: what moving a limit by
-// one unit saves (or costs) per tonne of product.
+// one unit saves (or costs) per tonne of product. Every phrase is appended
+// to a byte buffer, so that a report writes all its texts into one buffer
+// (see texts) rather than allocating a string or two per limit.
 type words struct {
 	cur  string  // currency code for display; may be empty
 	tiny float64 // shadow prices below this count as zero
 }
 
-// money writes an amount per tonne of product, e.g. "3.10 EUR/t".
-func (w words) money(v float64) string {
+// money appends an amount per tonne of product, e.g. "3.10 EUR/t".
+func (w words) money(b []byte, v float64) []byte {
+	b = strconv.AppendFloat(b, v, 'f', 2, 64)
 	if w.cur == "" {
-		return strconv.FormatFloat(v, 'f', 2, 64) + " per t"
+		return append(b, " per t"...)
 	}
-	return strconv.FormatFloat(v, 'f', 2, 64) + " " + w.cur + "/t"
+	return append(append(append(b, ' '), w.cur...), "/t"...)
 }
 
-func (w words) batch(v float64) string {
+// batch appends an amount per batch, e.g. "62.00 EUR per batch".
+func (w words) batch(b []byte, v float64) []byte {
+	b = strconv.AppendFloat(b, v, 'f', 2, 64)
 	if w.cur == "" {
-		return fmt.Sprintf("%.2f per batch", v)
+		return append(b, " per batch"...)
 	}
-	return fmt.Sprintf("%.2f %s per batch", v, w.cur)
+	return append(append(append(b, ' '), w.cur...), " per batch"...)
 }
 
 // move phrases the effect of moving a bound: s is the shadow price (+ =
-// raising the bound saves), loosen says which way relaxes the limit.
-func (w words) move(what string, s float64, loosenUp bool) string {
-	dir, saving := "lowering", -s
+// raising the bound saves), loosenUp says which way relaxes the limit.
+// what is appended by the caller's func so it needs no string of its own.
+func (w words) move(b []byte, what func([]byte) []byte, s float64, loosenUp bool) []byte {
+	dir, saving := "lowering ", -s
 	if loosenUp {
-		dir, saving = "raising", s
+		dir, saving = "raising ", s
 	}
 	if math.Abs(s) <= w.tiny {
-		return "binding, but " + dir + " " + what + " saves nothing at the margin"
+		b = append(append(b, "binding, but "...), dir...)
+		return append(what(b), " saves nothing at the margin"...)
 	}
+	b = what(append(b, dir...))
 	if saving > 0 {
-		return dir + " " + what + " saves " + w.money(saving)
+		return w.money(append(b, " saves "...), saving)
 	}
-	return dir + " " + what + " costs " + w.money(-saving)
+	return w.money(append(b, " costs "...), -saving)
 }
 
-func slack(lr LimitReport, unit string) string {
-	return "not binding: " + strconv.FormatFloat(math.Abs(lr.Value-lr.Bound), 'g', 4, 64) + unit + " inside the bound"
+func slack(b []byte, lr LimitReport, unit string) []byte {
+	b = append(b, "not binding: "...)
+	b = strconv.AppendFloat(b, math.Abs(lr.Value-lr.Bound), 'g', 4, 64)
+	return append(append(b, unit...), " inside the bound"...)
 }
 
 // limit explains a property, fatty-acid or SFC limit, e.g. "raising the IV
 // maximum by 1 saves 3.10 EUR/t".
-func (w words) limit(lr LimitReport, label, unit string, isMax bool) string {
+func (w words) limit(b []byte, lr LimitReport, label, unit string, isMax bool) []byte {
 	if !lr.Binding {
-		return slack(lr, unit)
+		return slack(b, lr, unit)
 	}
-	side := "minimum"
+	side := " minimum by 1"
 	if isMax {
-		side = "maximum"
+		side = " maximum by 1"
 	}
-	return w.move("the "+label+" "+side+" by 1"+unit, lr.ShadowPrice, isMax)
+	return w.move(b, func(b []byte) []byte {
+		return append(append(append(append(b, "the "...), label...), side...), unit...)
+	}, lr.ShadowPrice, isMax)
 }
 
 // useLimit explains a [use] bound of one stock.
-func (w words) useLimit(lr LimitReport, id string, isMax bool) string {
+func (w words) useLimit(b []byte, lr LimitReport, id string, isMax bool) []byte {
 	if !lr.Binding {
-		return slack(lr, " %")
+		return slack(b, lr, " %")
 	}
 	if isMax {
-		return w.move(fmt.Sprintf("the cap on %s by 1 %% of the batch", id), lr.ShadowPrice, true)
+		return w.move(b, func(b []byte) []byte {
+			return append(append(append(b, "the cap on "...), id...), " by 1 % of the batch"...)
+		}, lr.ShadowPrice, true)
 	}
-	return w.move(fmt.Sprintf("the minimum of %s by 1 %% of the batch", id), lr.ShadowPrice, false)
+	return w.move(b, func(b []byte) []byte {
+		return append(append(append(b, "the minimum of "...), id...), " by 1 % of the batch"...)
+	}, lr.ShadowPrice, false)
 }
 
 // avail explains an availability limit; its shadow price is per tonne of
 // stock on hand.
-func (w words) avail(lr LimitReport, id string, batch float64) string {
+func (w words) avail(b []byte, lr LimitReport, id string, batch float64) []byte {
 	if !lr.Binding {
-		return "not binding: " + strconv.FormatFloat(math.Max(lr.Bound-lr.Value, 0), 'g', 4, 64) + " t of " + id + " left over"
+		b = append(b, "not binding: "...)
+		b = strconv.AppendFloat(b, math.Max(lr.Bound-lr.Value, 0), 'g', 4, 64)
+		return append(append(append(b, " t of "...), id...), " left over"...)
 	}
 	if lr.ShadowPrice <= w.tiny {
-		return fmt.Sprintf("all %s on hand is used, but more of it would save nothing", id)
+		return append(append(append(b, "all "...), id...), " on hand is used, but more of it would save nothing"...)
 	}
-	return fmt.Sprintf("each extra tonne of %s on hand saves %s (%s)", id, w.money(lr.ShadowPrice), w.batch(lr.ShadowPrice*batch))
+	b = append(append(append(b, "each extra tonne of "...), id...), " on hand saves "...)
+	b = w.money(b, lr.ShadowPrice)
+	b = w.batch(append(b, " ("...), lr.ShadowPrice*batch)
+	return append(b, ')')
 }
 
-func (w words) minIfUsed(lr LimitReport) string {
+func (w words) minIfUsed(b []byte, lr LimitReport) []byte {
 	if !lr.Binding {
-		return slack(lr, " %")
+		return slack(b, lr, " %")
 	}
-	return w.move("the minimum dose of a stock in use by 1 %", lr.ShadowPrice, false)
+	return w.move(b, func(b []byte) []byte {
+		return append(b, "the minimum dose of a stock in use by 1 %"...)
+	}, lr.ShadowPrice, false)
 }
 
-func (w words) maxStocks(lr LimitReport) string {
+func (w words) maxStocks(b []byte, lr LimitReport) []byte {
 	if !lr.Binding {
-		return fmt.Sprintf("not binding: %d stocks in the blend, %d allowed", int(lr.Value), int(lr.Bound))
+		b = append(b, "not binding: "...)
+		b = strconv.AppendInt(b, int64(lr.Value), 10)
+		b = append(b, " stocks in the blend, "...)
+		b = strconv.AppendInt(b, int64(lr.Bound), 10)
+		return append(b, " allowed"...)
 	}
 	if lr.ShadowPrice <= w.tiny {
-		return "binding, but allowing one more stock saves nothing"
+		return append(b, "binding, but allowing one more stock saves nothing"...)
 	}
-	return fmt.Sprintf("allowing one more stock saves %s", w.money(lr.ShadowPrice))
+	return w.money(append(b, "allowing one more stock saves "...), lr.ShadowPrice)
+}
+
+// texts gathers the names and explanations of a report's limits in one
+// buffer; done turns the buffer into one string and hands each limit its
+// two substrings, so a report of forty limits costs one string allocation
+// instead of eighty.
+type texts struct {
+	b  []byte
+	at []int // end of each name, then of its explanation, limit by limit
+}
+
+// name and explained close the current limit's name and explanation; the
+// caller appends each to t.b first.
+func (t *texts) name()      { t.at = append(t.at, len(t.b)) }
+func (t *texts) explained() { t.at = append(t.at, len(t.b)) }
+
+// done sets Name and Explain of limits[k] for every limit written.
+func (t *texts) done(limits []LimitReport) {
+	s := string(t.b)
+	prev := 0
+	for k := 0; 2*k+1 < len(t.at); k++ {
+		a, b := t.at[2*k], t.at[2*k+1]
+		limits[k].Name, limits[k].Explain = s[prev:a], s[a:b]
+		prev = b
+	}
 }

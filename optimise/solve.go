@@ -176,31 +176,39 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 	res.Properties = props
 
 	w := words{cur: l.cat.Currency, tiny: 1e-7 * math.Max(1, cost)}
+	tx := texts{b: make([]byte, 0, 64*nl), at: make([]int, 0, 2*nl)}
+	add := func(lr LimitReport) { res.Limits = append(res.Limits, lr) }
 	for i := 1; i < m.nRows; i++ { // row 0 is the sum
-		ri := l.rows[i]
+		ri := &l.rows[i]
 		v, y := sol.act[i], sol.y[i]
 		if ri.bound.HasMin() {
-			lr := LimitReport{Name: ri.key + ".min", Value: v, Bound: ri.bound.Min, Binding: near(v, ri.bound.Min)}
+			lr := LimitReport{Value: v, Bound: ri.bound.Min, Binding: near(v, ri.bound.Min)}
 			if y > 0 {
 				lr.ShadowPrice = -y
 			}
-			lr.Explain = w.limit(lr, ri.label, ri.unit, false)
-			res.Limits = append(res.Limits, lr)
+			tx.b = append(append(tx.b, ri.key...), ".min"...)
+			tx.name()
+			tx.b = w.limit(tx.b, lr, ri.label, ri.unit, false)
+			tx.explained()
+			add(lr)
 		}
 		if ri.bound.HasMax() {
-			lr := LimitReport{Name: ri.key + ".max", Value: v, Bound: ri.bound.Max, Binding: near(v, ri.bound.Max)}
+			lr := LimitReport{Value: v, Bound: ri.bound.Max, Binding: near(v, ri.bound.Max)}
 			if y < 0 {
 				lr.ShadowPrice = -y
 			}
-			lr.Explain = w.limit(lr, ri.label, ri.unit, true)
-			res.Limits = append(res.Limits, lr)
+			tx.b = append(append(tx.b, ri.key...), ".max"...)
+			tx.name()
+			tx.b = w.limit(tx.b, lr, ri.label, ri.unit, true)
+			tx.explained()
+			add(lr)
 		}
 	}
 
 	var minDose float64 // Σ d_j of stocks held at min_if_used
 	minUsed := math.Inf(1)
 	for j := 0; j < n; j++ {
-		c := l.cols[j]
+		c := &l.cols[j]
 		x, d := math.Max(sol.x[j], 0), sol.d[j]
 		id := c.stock.ID
 		atLo := sol.basis[j] == stLower || sol.basis[j] == stFixed && d > 0
@@ -214,39 +222,52 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 			}
 		}
 		if c.use.HasMin() {
-			lr := LimitReport{Name: "use." + id + ".min", Value: x, Bound: c.use.Min, Binding: near(x, c.use.Min)}
+			lr := LimitReport{Value: x, Bound: c.use.Min, Binding: near(x, c.use.Min)}
 			if atLo && !ruleLo && m.colLo[j] == c.use.Min {
 				lr.ShadowPrice = -d
 			}
-			lr.Explain = w.useLimit(lr, id, false)
-			res.Limits = append(res.Limits, lr)
+			tx.b = append(append(append(tx.b, "use."...), id...), ".min"...)
+			tx.name()
+			tx.b = w.useLimit(tx.b, lr, id, false)
+			tx.explained()
+			add(lr)
 		}
 		useTight := c.use.HasMax() && c.use.Max <= c.availPct
 		if c.use.HasMax() {
-			lr := LimitReport{Name: "use." + id + ".max", Value: x, Bound: c.use.Max, Binding: near(x, c.use.Max)}
+			lr := LimitReport{Value: x, Bound: c.use.Max, Binding: near(x, c.use.Max)}
 			if atUp && useTight && m.colUp[j] == c.use.Max {
 				lr.ShadowPrice = -d
 			}
-			lr.Explain = w.useLimit(lr, id, true)
-			res.Limits = append(res.Limits, lr)
+			tx.b = append(append(append(tx.b, "use."...), id...), ".max"...)
+			tx.name()
+			tx.b = w.useLimit(tx.b, lr, id, true)
+			tx.explained()
+			add(lr)
 		}
 		if c.stock.Limited() {
-			lr := LimitReport{Name: "avail." + id, Value: x * batch / 100, Bound: c.stock.Available, Binding: near(x, c.availPct)}
+			lr := LimitReport{Value: x * batch / 100, Bound: c.stock.Available, Binding: near(x, c.availPct)}
 			if atUp && !useTight && m.colUp[j] == c.availPct {
 				lr.ShadowPrice = -d * 100 / batch
 			}
-			lr.Explain = w.avail(lr, id, batch)
-			res.Limits = append(res.Limits, lr)
+			tx.b = append(append(tx.b, "avail."...), id...)
+			tx.name()
+			tx.b = w.avail(tx.b, lr, id, batch)
+			tx.explained()
+			add(lr)
 		}
 	}
 	if choice != nil && l.rules.MinIfUsed > 0 {
 		if math.IsInf(minUsed, 1) {
 			minUsed = 0
 		}
-		lr := LimitReport{Name: "min_if_used", Value: minUsed, Bound: l.rules.MinIfUsed, Binding: near(minUsed, l.rules.MinIfUsed), ShadowPrice: -minDose}
-		lr.Explain = w.minIfUsed(lr)
-		res.Limits = append(res.Limits, lr)
+		lr := LimitReport{Value: minUsed, Bound: l.rules.MinIfUsed, Binding: near(minUsed, l.rules.MinIfUsed), ShadowPrice: -minDose}
+		tx.b = append(tx.b, "min_if_used"...)
+		tx.name()
+		tx.b = w.minIfUsed(tx.b, lr)
+		tx.explained()
+		add(lr)
 	}
+	tx.done(res.Limits)
 
 	// Cost ranging: objective coefficients are price/100, so a change δ
 	// of the coefficient is a price change of 100·δ.
@@ -295,7 +316,7 @@ func (l *layout) priceMaxStocks(eng engine, base *model, res *Result) error {
 		}
 	}
 	w := words{cur: l.cat.Currency, tiny: 1e-7 * math.Max(1, res.CostPerTonne)}
-	lr.Explain = w.maxStocks(lr)
+	lr.Explain = string(w.maxStocks(nil, lr))
 	res.Limits = append(res.Limits, lr)
 	return nil
 }
