@@ -91,6 +91,11 @@ func finiteNum(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 // bounds. Integer rules are added by withRules. Input faults are
 // catalogue.BadInput.
 func build(cat *catalogue.Catalogue, spec *catalogue.Spec) (*model, *layout, error) {
+	return buildWith(cat, spec, nil)
+}
+
+// buildWith is build taking the stocks' profiles from pc (nil: computed).
+func buildWith(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache) (*model, *layout, error) {
 	if cat == nil || len(cat.Stocks) == 0 {
 		return nil, nil, catalogue.Badf("the stock catalogue has no stocks; add [[stock]] entries")
 	}
@@ -190,7 +195,7 @@ func build(cat *catalogue.Catalogue, spec *catalogue.Spec) (*model, *layout, err
 	for j, c := range lay.cols {
 		var p blend.Properties
 		if needProfile {
-			p = blend.Profile(c.stock.FattyAcids)
+			p = pc.profile(j, c.stock)
 		}
 		for i, l := range active {
 			var v float64

@@ -74,10 +74,15 @@ func Plan(cat *catalogue.Catalogue, orders *catalogue.Orders) (*PlanResult, erro
 }
 
 func planWith(eng engine, cat *catalogue.Catalogue, orders *catalogue.Orders) (*PlanResult, error) {
+	return planIn(eng, &profileCache{}, cat, orders)
+}
+
+// planIn is planWith taking stock profiles from pc, shared by the orders.
+func planIn(eng engine, pc *profileCache, cat *catalogue.Catalogue, orders *catalogue.Orders) (*PlanResult, error) {
 	if orders == nil || len(orders.Orders) == 0 {
 		return nil, catalogue.Badf("the orders file has no [[order]]; add one with spec and tonnes")
 	}
-	m, pl, err := buildPlan(cat, orders)
+	m, pl, err := buildPlan(cat, orders, pc)
 	if err != nil {
 		return nil, err
 	}
@@ -88,7 +93,7 @@ func planWith(eng engine, cat *catalogue.Catalogue, orders *catalogue.Orders) (*
 	}
 	if sol.status != solOptimal {
 		res.Status = Infeasible
-		res.Relaxation, err = planDiagnosis(eng, cat, orders, m, pl)
+		res.Relaxation, err = planDiagnosis(eng, pc, cat, orders, m, pl)
 		return res, err
 	}
 	res.Status = Optimal
@@ -138,8 +143,9 @@ func planWith(eng engine, cat *catalogue.Catalogue, orders *catalogue.Orders) (*
 	return res, nil
 }
 
-// buildPlan assembles the joint programme from one base model per order.
-func buildPlan(cat *catalogue.Catalogue, orders *catalogue.Orders) (*model, *planLayout, error) {
+// buildPlan assembles the joint programme from one base model per order,
+// taking stock profiles from pc.
+func buildPlan(cat *catalogue.Catalogue, orders *catalogue.Orders, pc *profileCache) (*model, *planLayout, error) {
 	if cat == nil || len(cat.Stocks) == 0 {
 		return nil, nil, catalogue.Badf("the stock catalogue has no stocks; add [[stock]] entries")
 	}
@@ -160,7 +166,7 @@ func buildPlan(cat *catalogue.Catalogue, orders *catalogue.Orders) (*model, *pla
 		}
 		spec := o.Spec.Clone()
 		spec.Batch = o.Tonnes
-		m, lay, err := build(cat, spec)
+		m, lay, err := buildWith(cat, spec, pc)
 		if err != nil {
 			return nil, nil, fmt.Errorf("order #%d: %w", p+1, err)
 		}
@@ -240,7 +246,7 @@ func buildPlan(cat *catalogue.Catalogue, orders *catalogue.Orders) (*model, *pla
 }
 
 // planDiagnosis explains an impossible plan.
-func planDiagnosis(eng engine, cat *catalogue.Catalogue, orders *catalogue.Orders, m *model, pl *planLayout) ([]Relax, error) {
+func planDiagnosis(eng engine, pc *profileCache, cat *catalogue.Catalogue, orders *catalogue.Orders, m *model, pl *planLayout) ([]Relax, error) {
 	var out []Relax
 	alone := true
 	for p, o := range orders.Orders {
@@ -250,7 +256,7 @@ func planDiagnosis(eng engine, cat *catalogue.Catalogue, orders *catalogue.Order
 		for j := range big.Stocks {
 			big.Stocks[j].Available = math.Inf(1)
 		}
-		r, err := solveWith(eng, big, spec, Options{})
+		r, err := solveIn(eng, pc, big, spec, Options{})
 		if err != nil {
 			return nil, err
 		}
@@ -301,7 +307,7 @@ func PlanMPS(cat *catalogue.Catalogue, orders *catalogue.Orders) ([]byte, error)
 	if orders == nil || len(orders.Orders) == 0 {
 		return nil, catalogue.Badf("the orders file has no [[order]]; add one with spec and tonnes")
 	}
-	m, _, err := buildPlan(cat, orders)
+	m, _, err := buildPlan(cat, orders, &profileCache{})
 	if err != nil {
 		return nil, err
 	}

@@ -10,13 +10,14 @@ import (
 	"lipoplan/catalogue"
 )
 
-// solve runs one Solve in a Solver of its own, so that the LPs of one call
+// solve runs one Solve on an engine of its own, so that the LPs of one call
 // (the base LP, the LP after a MILP, an elastic programme) share one CLP
-// model, freed before it returns.
+// model, freed before it returns. Stocks are profiled once each, without a
+// cache (one build has nothing to share it with).
 func solve(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result, error) {
-	s := NewSolver()
-	defer s.Close()
-	return s.Solve(cat, spec, opt)
+	eng := reusableEngine()
+	defer eng.close()
+	return solveIn(eng, nil, cat, spec, opt)
 }
 
 // solveWith is Solve on a chosen engine.
@@ -28,7 +29,12 @@ func solve(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result
 // duals and ranging, the usual way to price a MILP answer. max_stocks is
 // priced by solving again with one stock more.
 func solveWith(eng engine, cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result, error) {
-	base, lay, err := build(cat, spec)
+	return solveIn(eng, nil, cat, spec, opt)
+}
+
+// solveIn is solveWith taking stock profiles from pc (nil: computed).
+func solveIn(eng engine, pc *profileCache, cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result, error) {
+	base, lay, err := buildWith(cat, spec, pc)
 	if err != nil {
 		return nil, err
 	}

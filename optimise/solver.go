@@ -9,15 +9,19 @@ import (
 // Solver solves one spec or plan after another with the same working
 // memory: in the COIN-OR build it keeps one CLP model (and the buffers that
 // fill it) between solves, which saves making a CLP model per solve, a
-// sizeable share of a small blend LP. Every solve starts afresh from the slack
-// basis, so a Solver gives exactly the answers of Solve and Plan, whatever
+// sizeable share of a small blend LP; and it keeps each stock's computed
+// fatty-acid properties (blend.Profile) for as long as that stock's fatty
+// acids stay the same, so that re-solving after an edit of limits, prices
+// or availability does not recompute them. Every solve starts afresh from
+// the slack basis, so a Solver gives the answers of Solve and Plan, whatever
 // it solved before.
 //
 // A Solver is for one goroutine at a time (a workspace session, a benchmark
 // loop); give each goroutine its own. Close frees its C memory; the zero
 // value is not usable, make one with NewSolver.
 type Solver struct {
-	eng engine
+	eng  engine
+	prof profileCache
 }
 
 // NewSolver makes a Solver. Call Close when done with it.
@@ -30,7 +34,7 @@ func (s *Solver) Solve(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Optio
 	if s == nil || s.eng == nil {
 		return nil, errSolverClosed
 	}
-	return solveWith(s.eng, cat, spec, opt)
+	return solveIn(s.eng, &s.prof, cat, spec, opt)
 }
 
 // Plan is Plan with the Solver's working memory.
@@ -38,7 +42,7 @@ func (s *Solver) Plan(cat *catalogue.Catalogue, orders *catalogue.Orders) (*Plan
 	if s == nil || s.eng == nil {
 		return nil, errSolverClosed
 	}
-	return planWith(s.eng, cat, orders)
+	return planIn(s.eng, &s.prof, cat, orders)
 }
 
 // Close frees the Solver's C memory. It is safe to call more than once;
@@ -46,6 +50,6 @@ func (s *Solver) Plan(cat *catalogue.Catalogue, orders *catalogue.Orders) (*Plan
 func (s *Solver) Close() {
 	if s != nil && s.eng != nil {
 		s.eng.close()
-		s.eng = nil
+		s.eng, s.prof = nil, profileCache{}
 	}
 }
