@@ -102,9 +102,8 @@ func buildWith(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache)
 	if spec == nil {
 		return nil, nil, catalogue.Badf("no spec given")
 	}
-	where := specWhere(spec)
 	if !finiteNum(spec.Batch) || spec.Batch <= 0 {
-		return nil, nil, catalogue.Badf("%s: batch = %v t; give the batch size in tonnes, above zero", where, spec.Batch)
+		return nil, nil, catalogue.Badf("%s: batch = %v t; give the batch size in tonnes, above zero", specWhere(spec), spec.Batch)
 	}
 	n := len(cat.Stocks)
 	lay := &layout{cat: cat, spec: spec, cols: make([]colInfo, n), rules: spec.Rules}
@@ -129,10 +128,10 @@ func buildWith(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache)
 	for _, u := range spec.Use {
 		j, ok := index[u.Stock]
 		if !ok {
-			return nil, nil, catalogue.Badf("%s: [use] names stock %q, which is not in the catalogue; check the id", where, u.Stock)
+			return nil, nil, catalogue.Badf("%s: [use] names stock %q, which is not in the catalogue; check the id", specWhere(spec), u.Stock)
 		}
 		if u.Min > u.Max || math.IsNaN(u.Min) || math.IsNaN(u.Max) || u.Min < 0 && u.HasMin() {
-			return nil, nil, catalogue.Badf("%s: [use] %q = { min = %v, max = %v } is not a range within 0..100 %%", where, u.Stock, u.Min, u.Max)
+			return nil, nil, catalogue.Badf("%s: [use] %q = { min = %v, max = %v } is not a range within 0..100 %%", specWhere(spec), u.Stock, u.Min, u.Max)
 		}
 		lay.cols[j].use = u.Bound
 	}
@@ -169,22 +168,26 @@ func buildWith(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache)
 	// stock (only when a property limit needs it) gives that stock's value
 	// of every limited quantity at once; fatty-acid limits read the profile
 	// directly. The rows are written straight into the flat matrix.
-	var active []catalogue.Limit
-	var isFA []bool
+	active := make([]catalogue.Limit, 0, len(spec.Limits))
+	rank := make([]int, 0, len(spec.Limits)) // reference-table rank of a fatty-acid limit, -1 for a property
 	needProfile := false
 	for _, l := range spec.Limits {
 		if !l.HasMin() && !l.HasMax() {
 			continue // an empty limit constrains nothing
 		}
 		if math.IsNaN(l.Min) || math.IsNaN(l.Max) || l.Min > l.Max {
-			return nil, nil, catalogue.Badf("%s: limit %q = { min = %v, max = %v }: min must not exceed max", where, l.Name, l.Min, l.Max)
+			return nil, nil, catalogue.Badf("%s: limit %q = { min = %v, max = %v }: min must not exceed max", specWhere(spec), l.Name, l.Min, l.Max)
 		}
 		_, fa := catalogue.Lookup(l.Name)
 		if !fa && !catalogue.IsProperty(l.Name) {
-			return nil, nil, catalogue.Badf("%s: limit %q is neither a property (%s) nor a fatty-acid key such as \"C18:2\"", where, l.Name, strings.Join(catalogue.Properties, ", "))
+			return nil, nil, catalogue.Badf("%s: limit %q is neither a property (%s) nor a fatty-acid key such as \"C18:2\"", specWhere(spec), l.Name, strings.Join(catalogue.Properties, ", "))
 		}
 		active = append(active, l)
-		isFA = append(isFA, fa)
+		if fa {
+			rank = append(rank, catalogue.Rank(l.Name))
+		} else {
+			rank = append(rank, -1)
+		}
 		needProfile = needProfile || !fa
 	}
 	first := m.nRows
@@ -193,15 +196,24 @@ func buildWith(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache)
 	}
 	m.a = m.a[:m.nRows*n]
 	for j, c := range lay.cols {
-		var p blend.Properties
-		if needProfile {
-			p = pc.profile(j, c.stock)
+		var p *blend.Properties
+		var share []float64 // wt% by rank, from the cache
+		switch {
+		case pc != nil && len(active) > 0:
+			e := pc.profile(j, c.stock)
+			p, share = &e.props, e.share
+		case needProfile:
+			pp := blend.Profile(c.stock.FattyAcids)
+			p = &pp
 		}
 		for i, l := range active {
 			var v float64
-			if isFA[i] {
+			switch {
+			case rank[i] >= 0 && share != nil:
+				v = share[rank[i]]
+			case rank[i] >= 0:
 				v = c.stock.FattyAcids[l.Name]
-			} else {
+			default:
 				// As blend.Coefficient: every property is linear in mass share.
 				v, _ = p.Value(l.Name)
 			}
@@ -223,7 +235,7 @@ func buildWith(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache)
 			continue
 		}
 		if math.IsNaN(l.Min) || math.IsNaN(l.Max) || l.Min > l.Max {
-			return nil, nil, catalogue.Badf("%s: limit sfc %q = { min = %v, max = %v }: min must not exceed max", where, catalogue.TempKey(l.Temp), l.Min, l.Max)
+			return nil, nil, catalogue.Badf("%s: limit sfc %q = { min = %v, max = %v }: min must not exceed max", specWhere(spec), catalogue.TempKey(l.Temp), l.Min, l.Max)
 		}
 		var lacking []string
 		for j, c := range lay.cols {
@@ -244,13 +256,15 @@ func buildWith(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache)
 			sort.Strings(lacking)
 			t := catalogue.TempKey(l.Temp)
 			return nil, nil, catalogue.Badf("%s: limit sfc %q: stock %s has no measured SFC at %s °C; add \"%s\" under [stock.sfc] (within its measured range) or exclude it with [use] %s = { max = 0 }",
-				where, t, strings.Join(lacking, ", "), t, t, lacking[0])
+				specWhere(spec), t, strings.Join(lacking, ", "), t, t, lacking[0])
 		}
-		lay.rows = append(lay.rows, rowInfo{key: sfcKey(l.Temp), label: "SFC at " + catalogue.TempKey(l.Temp) + " °C", unit: " % solid", bound: l.Bound, scale: spread(coef, l.Bound)})
-		m.addRow(sfcKey(l.Temp), perPct(coef), l.Min, l.Max)
+		tk := catalogue.TempKey(l.Temp)
+		key := "sfc." + tk // as sfcKey
+		lay.rows = append(lay.rows, rowInfo{key: key, label: "SFC at " + tk + " °C", unit: " % solid", bound: l.Bound, scale: spread(coef, l.Bound)})
+		m.addRow(key, perPct(coef), l.Min, l.Max)
 	}
 	if r := spec.Rules; r.MaxStocks < 0 || math.IsNaN(r.MinIfUsed) || r.MinIfUsed < 0 || r.MinIfUsed > 100 {
-		return nil, nil, catalogue.Badf("%s: [rules] max_stocks = %d, min_if_used = %v: give max_stocks >= 1 and min_if_used within 0..100 %%", where, r.MaxStocks, r.MinIfUsed)
+		return nil, nil, catalogue.Badf("%s: [rules] max_stocks = %d, min_if_used = %v: give max_stocks >= 1 and min_if_used within 0..100 %%", specWhere(spec), r.MaxStocks, r.MinIfUsed)
 	}
 	return m, lay, nil
 }

@@ -5,49 +5,64 @@ import (
 	"lipoplan/catalogue"
 )
 
-// profileCache keeps blend.Profile of the stock at each position of the
-// catalogue last built, with a copy of the fatty acids it was computed
-// from, so that a stock whose fatty acids are unchanged is not profiled
-// again. blend.Profile is about half the time of building a 30-stock model
-// (it copies the profile's map and looks every fatty acid up in the
-// reference table); comparing a stock's few fatty acids with the copy is a
+// profileCache keeps, for the stock at each position of the catalogue last
+// built, what the model needs of its fatty acids: blend.Profile of them and
+// their wt% laid out by the reference table's order (catalogue.Rank), with
+// the fatty acids they were computed from, so that a stock whose fatty
+// acids are unchanged is neither profiled nor looked up again.
+// blend.Profile is about half the time of building a 30-stock model (it
+// copies the profile's map and looks every fatty acid up in the reference
+// table); comparing a stock's few fatty acids with the kept ones is a
 // fraction of that. A Solver keeps one across its solves, Plan one for all
 // its orders. Not safe for concurrent use.
 type profileCache struct {
-	fa    []map[string]float64
-	props []blend.Properties
+	stocks []stockProfile
 }
 
-// profile is blend.Profile(s.FattyAcids) for the stock at position j,
-// taken from the cache when the stock's fatty acids equal those it was
-// computed from. A nil cache computes it every time.
-func (c *profileCache) profile(j int, s *catalogue.Stock) blend.Properties {
-	if c == nil {
-		return blend.Profile(s.FattyAcids)
+// stockProfile is what the cache keeps of one stock.
+type stockProfile struct {
+	keys  []string  // the fatty acids it was computed from ...
+	vals  []float64 // ... and their values
+	share []float64 // wt% by catalogue.Rank; nil when a key is not in the table
+	props blend.Properties
+}
+
+// profile is the kept entry of the stock at position j, computed afresh
+// unless the stock's fatty acids equal those it was computed from.
+func (c *profileCache) profile(j int, s *catalogue.Stock) *stockProfile {
+	for len(c.stocks) <= j {
+		c.stocks = append(c.stocks, stockProfile{})
 	}
-	if j < len(c.fa) && c.fa[j] != nil && sameProfile(c.fa[j], s.FattyAcids) {
-		return c.props[j]
+	e := &c.stocks[j]
+	if e.keys != nil && e.same(s.FattyAcids) {
+		return e
 	}
-	for len(c.fa) <= j {
-		c.fa = append(c.fa, nil)
-		c.props = append(c.props, blend.Properties{})
+	nref := len(catalogue.Keys())
+	*e = stockProfile{
+		keys:  make([]string, 0, len(s.FattyAcids)+1), // never nil once computed
+		vals:  make([]float64, 0, len(s.FattyAcids)),
+		share: make([]float64, nref),
+		props: blend.Profile(s.FattyAcids),
 	}
-	cp := make(map[string]float64, len(s.FattyAcids))
 	for k, v := range s.FattyAcids {
-		cp[k] = v
+		e.keys, e.vals = append(e.keys, k), append(e.vals, v)
+		if r := catalogue.Rank(k); r >= 0 && e.share != nil {
+			e.share[r] = v
+		} else {
+			e.share = nil
+		}
 	}
-	c.fa[j], c.props[j] = cp, blend.Profile(s.FattyAcids)
-	return c.props[j]
+	return e
 }
 
-// sameProfile reports whether two fatty-acid profiles have the same keys
-// and values (a NaN never matches, so it is profiled, and rejected, anew).
-func sameProfile(a, b map[string]float64) bool {
-	if len(a) != len(b) {
+// same reports whether fa has exactly the kept keys and values (a NaN
+// never matches, so it is computed, and rejected, anew).
+func (e *stockProfile) same(fa map[string]float64) bool {
+	if len(fa) != len(e.keys) {
 		return false
 	}
-	for k, v := range a {
-		if w, ok := b[k]; !ok || w != v {
+	for i, k := range e.keys {
+		if v, ok := fa[k]; !ok || v != e.vals[i] {
 			return false
 		}
 	}

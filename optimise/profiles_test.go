@@ -13,9 +13,9 @@ import (
 )
 
 // TestProfileCacheFollowsEdits: the cache hands out blend.Profile of the
-// stock as it is now, after the stock's fatty acids are changed in place
-// (a value, a new key, a key removed), after the catalogue is replaced by
-// another, and for a nil cache.
+// stock as it is now, and its fatty acids by reference-table rank, after
+// the stock's fatty acids are changed in place (a value, a new key, a key
+// removed) and after the catalogue is replaced by another.
 func TestProfileCacheFollowsEdits(t *testing.T) {
 	r := rand.New(rand.NewPCG(8, 8))
 	cat := genStocks(r, 6)
@@ -24,7 +24,12 @@ func TestProfileCacheFollowsEdits(t *testing.T) {
 		t.Helper()
 		for j := range cat.Stocks {
 			want := blend.Profile(cat.Stocks[j].FattyAcids)
-			got := pc.profile(j, &cat.Stocks[j])
+			e := pc.profile(j, &cat.Stocks[j])
+			got := e.props
+			require.NotNil(t, e.share, "%s: stock %d uses table keys only", what, j)
+			for i, key := range catalogue.Keys() {
+				assert.Equal(t, cat.Stocks[j].FattyAcids[key], e.share[i], "%s: stock %d %s", what, j, key)
+			}
 			assert.InDelta(t, want.IV, got.IV, 1e-9*want.IV, "%s: stock %d IV", what, j)
 			assert.InDelta(t, want.SV, got.SV, 1e-9*want.SV, "%s: stock %d SV", what, j)
 			assert.InDelta(t, want.SAFA, got.SAFA, 1e-9, "%s: stock %d SAFA", what, j)
@@ -49,8 +54,9 @@ func TestProfileCacheFollowsEdits(t *testing.T) {
 	check("key removed")
 	cat = genStocks(r, 9)
 	check("another catalogue")
-	var none *profileCache
-	assert.InDelta(t, blend.Profile(cat.Stocks[0].FattyAcids).IV, none.profile(0, &cat.Stocks[0]).IV, 1e-12)
+	cat.Stocks[1].FattyAcids["C99:9"] = 1 // not in the reference table
+	e := pc.profile(1, &cat.Stocks[1])
+	assert.Nil(t, e.share, "a key outside the table: read the map instead")
 }
 
 // TestSolverSeesFattyAcidEdits: a Solver that has solved a catalogue gives
