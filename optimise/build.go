@@ -38,6 +38,12 @@ type layout struct {
 	cols  []colInfo // stock columns 0..n-1
 	rows  []rowInfo // one per base-model row
 	rules catalogue.Rules
+	// prof[j] is blend.Profile of stock j when build computed it (nil
+	// otherwise), share[j] its fatty acids by catalogue.Rank when taken
+	// from a profileCache (nil otherwise); both serve the report's blend
+	// properties (mix) and stay valid until the cache's next build.
+	prof  []*blend.Properties
+	share [][]float64
 	// filled by withRules:
 	used     []int // binary column of each stock, -1 when none
 	milpRows []rowInfo
@@ -195,6 +201,12 @@ func buildWith(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache)
 		m.addRow(l.Name, coef[:0], l.Min, l.Max) // coefficients follow
 	}
 	m.a = m.a[:m.nRows*n]
+	lay.prof, lay.share = make([]*blend.Properties, n), make([][]float64, n)
+	var own []blend.Properties // profiles computed without a cache
+	if pc == nil && needProfile {
+		own = make([]blend.Properties, n)
+	}
+	pc.reserve(n) // entries stay put while this layout uses them
 	for j, c := range lay.cols {
 		var p *blend.Properties
 		var share []float64 // wt% by rank, from the cache
@@ -203,9 +215,10 @@ func buildWith(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache)
 			e := pc.profile(j, c.stock)
 			p, share = &e.props, e.share
 		case needProfile:
-			pp := blend.Profile(c.stock.FattyAcids)
-			p = &pp
+			own[j] = blend.Profile(c.stock.FattyAcids)
+			p = &own[j]
 		}
+		lay.prof[j], lay.share[j] = p, share
 		for i, l := range active {
 			var v float64
 			switch {

@@ -27,12 +27,18 @@ type stockProfile struct {
 	props blend.Properties
 }
 
+// reserve makes room for n stocks, so that entries do not move while a
+// build hands out pointers to them. A nil cache does nothing.
+func (c *profileCache) reserve(n int) {
+	if c != nil && len(c.stocks) < n {
+		c.stocks = append(c.stocks, make([]stockProfile, n-len(c.stocks))...)
+	}
+}
+
 // profile is the kept entry of the stock at position j, computed afresh
 // unless the stock's fatty acids equal those it was computed from.
 func (c *profileCache) profile(j int, s *catalogue.Stock) *stockProfile {
-	for len(c.stocks) <= j {
-		c.stocks = append(c.stocks, stockProfile{})
-	}
+	c.reserve(j + 1)
 	e := &c.stocks[j]
 	if e.keys != nil && e.same(s.FattyAcids) {
 		return e

@@ -154,6 +154,7 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 	res.Limits = make([]LimitReport, 0, nl)
 	res.Ranging = make([]Range, 0, n)
 	parts := make([]blend.Part, 0, m.nRows)
+	idx := make([]int, 0, m.nRows)
 	var cost float64
 	for j := 0; j < n; j++ {
 		x := math.Max(sol.x[j], 0)
@@ -162,6 +163,7 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 		if x > usedTol {
 			res.Blend = append(res.Blend, Line{Stock: s.ID, Name: s.Name, Pct: x, Tonnes: x * batch / 100})
 			parts = append(parts, blend.Part{Stock: s, Pct: x})
+			idx = append(idx, j)
 		}
 	}
 	sort.SliceStable(res.Blend, func(a, b int) bool { return res.Blend[a].Pct > res.Blend[b].Pct })
@@ -175,7 +177,7 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 		}
 		temps = blend.Temps(extra...)
 	}
-	props, err := blend.Mix(parts, temps)
+	props, err := l.mix(parts, idx, temps)
 	if err != nil {
 		return fmt.Errorf("optimise %s: properties of the blend: %w", specWhere(l.spec), err)
 	}

@@ -64,7 +64,7 @@ func TestSolverMatchesFreshSolves(t *testing.T) {
 	for _, i := range order {
 		got, err := s.Solve(jobs[i].cat, jobs[i].spec, Options{})
 		require.NoError(t, err, "job %d", i)
-		assertSameResult(t, want[i], got, fmt.Sprintf("job %d", i))
+		assertClose(t, want[i], got, 1e-9, fmt.Sprintf("job %d", i))
 	}
 }
 
@@ -81,16 +81,16 @@ func TestSolverAfterClose(t *testing.T) {
 	assert.ErrorIs(t, err, errSolverClosed)
 }
 
-// assertSameResult compares two values field by field: floats to 1e-9
-// relative (equal infinities), everything else exactly.
-func assertSameResult(t *testing.T, want, got any, where string) {
+// assertClose compares two values field by field: floats to rel relative
+// (equal infinities, NaN with NaN), everything else exactly.
+func assertClose(t *testing.T, want, got any, rel float64, where string) {
 	t.Helper()
 	var walk func(path string, a, b reflect.Value)
 	walk = func(path string, a, b reflect.Value) {
 		switch a.Kind() {
 		case reflect.Float64:
 			x, y := a.Float(), b.Float()
-			if !(x == y || relClose(x, y, 1e-9) || math.IsNaN(x) && math.IsNaN(y)) {
+			if !(x == y || relClose(x, y, rel) || math.IsNaN(x) && math.IsNaN(y)) {
 				t.Errorf("%s%s: %v, want %v", where, path, y, x)
 			}
 		case reflect.Pointer, reflect.Interface:
