@@ -44,6 +44,7 @@ type layout struct {
 	// properties (mix) and stay valid until the cache's next build.
 	prof  []*blend.Properties
 	share [][]float64
+	sc    *scratch // buffers for the report; nil: allocate
 	// filled by withRules:
 	used     []int // binary column of each stock, -1 when none
 	milpRows []rowInfo
@@ -97,11 +98,17 @@ func finiteNum(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 // bounds. Integer rules are added by withRules. Input faults are
 // catalogue.BadInput.
 func build(cat *catalogue.Catalogue, spec *catalogue.Spec) (*model, *layout, error) {
-	return buildWith(cat, spec, nil)
+	return buildIn(cat, spec, nil, nil)
 }
 
 // buildWith is build taking the stocks' profiles from pc (nil: computed).
 func buildWith(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache) (*model, *layout, error) {
+	return buildIn(cat, spec, pc, nil)
+}
+
+// buildIn is buildWith taking its arrays from sc (nil: allocated); the
+// model and layout it returns live in sc until sc's next build.
+func buildIn(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache, sc *scratch) (*model, *layout, error) {
 	if cat == nil || len(cat.Stocks) == 0 {
 		return nil, nil, catalogue.Badf("the stock catalogue has no stocks; add [[stock]] entries")
 	}
@@ -112,8 +119,9 @@ func buildWith(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache)
 		return nil, nil, catalogue.Badf("%s: batch = %v t; give the batch size in tonnes, above zero", specWhere(spec), spec.Batch)
 	}
 	n := len(cat.Stocks)
-	lay := &layout{cat: cat, spec: spec, cols: make([]colInfo, n), rules: spec.Rules}
-	index := make(map[string]int, n)
+	lay := sc.newLayout()
+	*lay = layout{cat: cat, spec: spec, cols: sc.colInfos(n), rules: spec.Rules, sc: sc}
+	index := sc.stockIndex(n)
 	for j := range cat.Stocks {
 		s := &cat.Stocks[j]
 		if _, dup := index[s.ID]; dup {
@@ -142,13 +150,20 @@ func buildWith(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache)
 		lay.cols[j].use = u.Bound
 	}
 
-	m := newModel(n)
+	// One block of floats and one of names hold every array of the model.
 	rows := 1 + len(spec.Limits) + len(spec.SFC)
-	m.a = make([]float64, 0, rows*n)
-	m.rowName = make([]string, 0, rows)
-	m.rowLo = make([]float64, 0, rows)
-	m.rowUp = make([]float64, 0, rows)
-	lay.rows = make([]rowInfo, 0, rows)
+	fl := sc.floats(4*n + 2*rows + rows*n)
+	str := sc.strings(n + rows)
+	m := sc.newModel()
+	*m = model{nCols: n, colName: str[:n:n], rowName: str[n : n : n+rows]}
+	m.obj, m.colLo, m.colUp, fl = fl[:n:n], fl[n:2*n:2*n], fl[2*n:3*n:3*n], fl[3*n:]
+	m.rowLo, m.rowUp, fl = fl[:0:rows], fl[rows:rows:2*rows], fl[2*rows:]
+	coef, fl := fl[:n:n], fl[n:]
+	m.a = fl[: 0 : rows*n]
+	for j := range m.colUp {
+		m.colUp[j] = math.Inf(1)
+	}
+	lay.rows = sc.rowInfos(rows)
 	for j, c := range lay.cols {
 		m.colName[j] = c.stock.ID
 		m.obj[j] = c.stock.Price / 100
@@ -163,7 +178,6 @@ func buildWith(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache)
 		}
 	}
 
-	coef := make([]float64, n)
 	for j := range coef {
 		coef[j] = 1
 	}
@@ -174,8 +188,8 @@ func buildWith(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache)
 	// stock (only when a property limit needs it) gives that stock's value
 	// of every limited quantity at once; fatty-acid limits read the profile
 	// directly. The rows are written straight into the flat matrix.
-	active := make([]catalogue.Limit, 0, len(spec.Limits))
-	rank := make([]int, 0, len(spec.Limits)) // reference-table rank of a fatty-acid limit, -1 for a property
+	active := sc.limits(len(spec.Limits))
+	rank := sc.intSlice(len(spec.Limits))[:0] // reference-table rank of a fatty-acid limit, -1 for a property
 	needProfile := false
 	for _, l := range spec.Limits {
 		if !l.HasMin() && !l.HasMax() {
@@ -201,7 +215,7 @@ func buildWith(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache)
 		m.addRow(l.Name, coef[:0], l.Min, l.Max) // coefficients follow
 	}
 	m.a = m.a[:m.nRows*n]
-	lay.prof, lay.share = make([]*blend.Properties, n), make([][]float64, n)
+	lay.prof, lay.share = sc.profiles(n)
 	var own []blend.Properties // profiles computed without a cache
 	if pc == nil && needProfile {
 		own = make([]blend.Properties, n)

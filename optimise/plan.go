@@ -166,7 +166,7 @@ func buildPlan(cat *catalogue.Catalogue, orders *catalogue.Orders, pc *profileCa
 		}
 		spec := o.Spec.Clone()
 		spec.Batch = o.Tonnes
-		m, lay, err := buildWith(cat, spec, pc)
+		m, lay, err := buildWith(cat, spec, pc) // every order's model stays alive: no scratch
 		if err != nil {
 			return nil, nil, fmt.Errorf("order #%d: %w", p+1, err)
 		}
@@ -256,7 +256,7 @@ func planDiagnosis(eng engine, pc *profileCache, cat *catalogue.Catalogue, order
 		for j := range big.Stocks {
 			big.Stocks[j].Available = math.Inf(1)
 		}
-		r, err := solveIn(eng, pc, big, spec, Options{})
+		r, err := solveIn(eng, pc, nil, big, spec, Options{})
 		if err != nil {
 			return nil, err
 		}

@@ -40,7 +40,7 @@ type ranger struct {
 // newRanger prepares cost ranging for the optimal basis of m with reduced
 // costs d and row duals y. It fails when the basis does not have one basic
 // variable per row or A_TS is singular.
-func newRanger(m *model, basis []varState, d, y []float64) (*ranger, error) {
+func newRanger(m *model, basis []varState, d, y []float64, sc *scratch) (*ranger, error) {
 	n, r := m.nCols, m.nRows
 	var nbs, ns, nl, nbl int
 	for k, s := range basis {
@@ -58,11 +58,11 @@ func newRanger(m *model, basis []varState, d, y []float64) (*ranger, error) {
 	if ns+nl != r {
 		return nil, fmt.Errorf("%w: %d basic variables for %d rows", errBasis, ns+nl, r)
 	}
-	rg := &ranger{basis: basis, d: d, pos: make([]int, n)}
-	ints := make([]int, r+2*(nbs+nbl)) // tpos, off, tix
-	tpos := ints[:r]                   // position of each row in T, -1 on L
-	rg.off, rg.tix = ints[r:r+nbs+nbl:r+nbs+nbl], ints[r+nbs+nbl:]
-	rg.off, rg.tix = rg.off[:0], rg.tix[:0]
+	fl, ints, st := sc.rangerArrays(ns*ns+nbs*ns+3*ns+nbs+nbl, n+r+2*(nbs+nbl), nbs+nbl)
+	rg := &ranger{basis: basis, d: d, pos: ints[:n:n], st: st}
+	ints = ints[n:]
+	tpos := ints[:r:r] // position of each row in T, -1 on L
+	rg.off, rg.tix = ints[r:r:r+nbs+nbl], ints[r+nbs+nbl:r+nbs+nbl]
 	t := 0
 	for i := 0; i < r; i++ {
 		tpos[i] = -1
@@ -71,12 +71,10 @@ func newRanger(m *model, basis []varState, d, y []float64) (*ranger, error) {
 			t++
 		}
 	}
-	fl := make([]float64, ns*ns+nbs*ns+3*ns+nbs+nbl)
 	a, fl := fl[:ns*ns], fl[ns*ns:]
 	rg.colT, fl = fl[:0:nbs*ns], fl[nbs*ns:]
 	rg.rho, rg.e, rg.w, fl = fl[:ns], fl[ns:2*ns], fl[2*ns:3*ns], fl[3*ns:]
 	rg.dk = fl[:0]
-	rg.st = make([]varState, 0, nbs+nbl)
 	p := 0
 	for j := 0; j < n; j++ {
 		rg.pos[j] = -1

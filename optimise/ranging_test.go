@@ -91,7 +91,7 @@ func TestRangerMatchesFullBasis(t *testing.T) {
 			if s.status != solOptimal {
 				continue
 			}
-			rg, err := newRanger(m, s.basis, s.d, s.y)
+			rg, err := newRanger(m, s.basis, s.d, s.y, nil)
 			require.NoError(t, err, "case %d %s", k, eng.name())
 			if len(rg.rho) > m.nRows/2 {
 				big++

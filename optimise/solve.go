@@ -17,7 +17,7 @@ import (
 func solve(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result, error) {
 	eng := reusableEngine()
 	defer eng.close()
-	return solveIn(eng, nil, cat, spec, opt)
+	return solveIn(eng, nil, nil, cat, spec, opt)
 }
 
 // solveWith is Solve on a chosen engine.
@@ -29,12 +29,13 @@ func solve(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result
 // duals and ranging, the usual way to price a MILP answer. max_stocks is
 // priced by solving again with one stock more.
 func solveWith(eng engine, cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result, error) {
-	return solveIn(eng, nil, cat, spec, opt)
+	return solveIn(eng, nil, nil, cat, spec, opt)
 }
 
-// solveIn is solveWith taking stock profiles from pc (nil: computed).
-func solveIn(eng engine, pc *profileCache, cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result, error) {
-	base, lay, err := buildWith(cat, spec, pc)
+// solveIn is solveWith taking stock profiles from pc (nil: computed) and
+// working buffers from sc (nil: allocated).
+func solveIn(eng engine, pc *profileCache, sc *scratch, cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result, error) {
+	base, lay, err := buildIn(cat, spec, pc, sc)
 	if err != nil {
 		return nil, err
 	}
@@ -153,8 +154,7 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 	}
 	res.Limits = make([]LimitReport, 0, nl)
 	res.Ranging = make([]Range, 0, n)
-	parts := make([]blend.Part, 0, m.nRows)
-	idx := make([]int, 0, m.nRows)
+	parts, idx := l.sc.blendParts(m.nRows)
 	var cost float64
 	for j := 0; j < n; j++ {
 		x := math.Max(sol.x[j], 0)
@@ -184,7 +184,7 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 	res.Properties = props
 
 	w := words{cur: l.cat.Currency, tiny: 1e-7 * math.Max(1, cost)}
-	tx := texts{b: make([]byte, 0, 64*nl), at: make([]int, 0, 2*nl)}
+	tx := l.sc.texts(nl)
 	add := func(lr LimitReport) { res.Limits = append(res.Limits, lr) }
 	for i := 1; i < m.nRows; i++ { // row 0 is the sum
 		ri := &l.rows[i]
@@ -276,10 +276,11 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 		add(lr)
 	}
 	tx.done(res.Limits)
+	l.sc.keepTexts(tx)
 
 	// Cost ranging: objective coefficients are price/100, so a change δ
 	// of the coefficient is a price change of 100·δ.
-	rg, ferr := newRanger(m, sol.basis, sol.d, sol.y)
+	rg, ferr := newRanger(m, sol.basis, sol.d, sol.y, l.sc)
 	for j := 0; j < n; j++ {
 		s := l.cols[j].stock
 		r := Range{Stock: s.ID, InBlend: sol.x[j] > usedTol, Price: s.Price, PriceLow: math.Inf(-1), PriceHigh: math.Inf(1)}

@@ -22,6 +22,7 @@ import (
 type Solver struct {
 	eng  engine
 	prof profileCache
+	sc   scratch
 }
 
 // NewSolver makes a Solver. Call Close when done with it.
@@ -34,7 +35,7 @@ func (s *Solver) Solve(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Optio
 	if s == nil || s.eng == nil {
 		return nil, errSolverClosed
 	}
-	return solveIn(s.eng, &s.prof, cat, spec, opt)
+	return solveIn(s.eng, &s.prof, &s.sc, cat, spec, opt)
 }
 
 // Plan is Plan with the Solver's working memory.
@@ -50,6 +51,6 @@ func (s *Solver) Plan(cat *catalogue.Catalogue, orders *catalogue.Orders) (*Plan
 func (s *Solver) Close() {
 	if s != nil && s.eng != nil {
 		s.eng.close()
-		s.eng, s.prof = nil, profileCache{}
+		s.eng, s.prof, s.sc = nil, profileCache{}, scratch{}
 	}
 }

@@ -22,7 +22,8 @@ import (
 // in reference_test.go), made impossible in every fifth case (the elastic
 // programme then runs in the same model), the demo specs, and in the
 // COIN-OR build a spec with integer rules (MILP, then the LP with the
-// choices fixed); they are solved in two different orders.
+// choices fixed); they are solved in two different orders, and every Result
+// is checked again after all the later solves.
 func TestSolverMatchesFreshSolves(t *testing.T) {
 	type job struct {
 		cat  *catalogue.Catalogue
@@ -61,10 +62,16 @@ func TestSolverMatchesFreshSolves(t *testing.T) {
 	s := NewSolver()
 	defer s.Close()
 	order := append(rand.New(rand.NewPCG(1, 2)).Perm(len(jobs)), rand.New(rand.NewPCG(3, 4)).Perm(len(jobs))...)
+	kept := make([]*Result, len(jobs))
 	for _, i := range order {
 		got, err := s.Solve(jobs[i].cat, jobs[i].spec, Options{})
 		require.NoError(t, err, "job %d", i)
 		assertClose(t, want[i], got, 1e-9, fmt.Sprintf("job %d", i))
+		kept[i] = got
+	}
+	// The Solver reuses its working buffers; no Result may point into them.
+	for i, got := range kept {
+		assertClose(t, want[i], got, 1e-9, fmt.Sprintf("job %d, after later solves", i))
 	}
 }
 
