@@ -11,8 +11,9 @@ import (
 )
 
 // TestConcurrentSolves: Solve keeps no shared state, so parallel solves
-// (several workspace sessions) must each get the answer a lone solve gets,
-// for LPs and, in the COIN-OR build, for MILPs through CBC.
+// (several workspace sessions, each with Solve or a Solver of its own) must
+// each get the answer a lone solve gets, for LPs and, in the COIN-OR build,
+// for MILPs through CBC.
 func TestConcurrentSolves(t *testing.T) {
 	if testing.Short() {
 		t.Skip("skipped in -short mode")
@@ -38,9 +39,16 @@ func TestConcurrentSolves(t *testing.T) {
 		wg.Add(1)
 		go func(g int) {
 			defer wg.Done()
+			// Half the goroutines use Solve, half a Solver of their own.
+			solve := Solve
+			if g%2 == 1 {
+				s := NewSolver()
+				defer s.Close()
+				solve = s.Solve
+			}
 			for k := 0; k < 10; k++ {
 				i := (g + k) % len(specs)
-				r, err := Solve(cat, specs[i], Options{})
+				r, err := solve(cat, specs[i], Options{})
 				if err != nil {
 					errs <- err
 					return
