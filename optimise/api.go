@@ -94,13 +94,17 @@ type Result struct {
 	Properties   blend.Properties
 	Limits       []LimitReport
 	Ranging      []Range
-	Relaxation   []Relax  // when Infeasible: smallest relaxation that would make the spec feasible
-	Notes        []string // what the answer leaves out, in plain words (e.g. an unmodelled [process] step)
+	Relaxation   []Relax        // when Infeasible: smallest relaxation that would make the spec feasible
+	Notes        []string       // what the answer leaves out, in plain words (e.g. an unmodelled [process] step)
+	Process      *ProcessReport // the [process] step as solved; nil when the spec has none
 }
 
 // Solve finds the cheapest blend of cat's stocks that meets spec.
 // Errors caused by the inputs are catalogue.BadInput (the CLI exits 2); an
 // impossible spec is not an error: Status is Infeasible and Relaxation is set.
 func Solve(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result, error) {
+	if spec != nil && spec.Process != nil {
+		return solveProcess(cat, spec, opt)
+	}
 	return solve(cat, spec, opt)
 }

@@ -1,0 +1,386 @@
+package optimise
+
+import (
+	"math"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"lipoplan/blend"
+	"lipoplan/blend/sle"
+	"lipoplan/catalogue"
+	"lipoplan/randomise"
+)
+
+// procStock copies a demo stock (invented demo data) with unlimited supply.
+func procStock(t testing.TB, id string) catalogue.Stock {
+	t.Helper()
+	s, ok := catalogue.DemoStocks().Find(id)
+	require.True(t, ok, id)
+	c := *s
+	c.Available = math.Inf(1)
+	return c
+}
+
+func procLimit(t *testing.T, r *Result, name string) LimitReport {
+	t.Helper()
+	for _, l := range r.Limits {
+		if l.Name == name {
+			return l
+		}
+	}
+	require.Failf(t, "no limit", "%q in %+v", name, r.Limits)
+	return LimitReport{}
+}
+
+func sfcMin(temp, v float64) catalogue.SFCLimit {
+	return catalogue.SFCLimit{Temp: temp, Bound: catalogue.Bound{Min: v, Max: math.Inf(1)}}
+}
+
+func sfcMax(temp, v float64) catalogue.SFCLimit {
+	return catalogue.SFCLimit{Temp: temp, Bound: catalogue.Bound{Min: math.Inf(-1), Max: v}}
+}
+
+// paperStocks: a hardstock, a liquid oil and a lauric oil with one measured
+// SFC point each (made-up round numbers for a hand-solved LP).
+func paperStocks() *catalogue.Catalogue {
+	inf := math.Inf(1)
+	return &catalogue.Catalogue{File: "paper.toml", Currency: "EUR", Stocks: []catalogue.Stock{
+		{ID: "hard", Name: "stearic hardstock", Price: 1500, Available: inf,
+			FattyAcids: map[string]float64{"C16:0": 5, "C18:0": 95}, SFC: catalogue.Curve{{Temp: 10, Solid: 96}}},
+		{ID: "liquid", Name: "oleic oil", Price: 1100, Available: inf,
+			FattyAcids: map[string]float64{"C16:0": 5, "C18:1": 70, "C18:2": 25}, SFC: catalogue.Curve{{Temp: 10, Solid: 0}}},
+		{ID: "lauric", Name: "lauric oil", Price: 1600, Available: inf,
+			FattyAcids: map[string]float64{"C12:0": 50, "C14:0": 20, "C16:0": 10, "C18:1": 20}, SFC: catalogue.Curve{{Temp: 10, Solid: 55}}},
+	}}
+}
+
+func paperSpec(cost float64) *catalogue.Spec {
+	return &catalogue.Spec{Name: "paper", Batch: 10, SFC: []catalogue.SFCLimit{sfcMin(10, 20)},
+		Process: &catalogue.Process{Interesterify: []string{"hard", "liquid"}, Method: "chemical", Cost: cost, SFC: "measured"}}
+}
+
+// (1) With measured SFC the process model is one LP in which each reactor
+// column is a copy of its stock priced at price + cost. Worked example,
+// solved by hand: SFC 10 °C >= 20 from hard (96 % solid, 1500 EUR/t) and
+// liquid (0 %, 1100): hard = 20/0.96 = 20.8333 %, cost = 1100 + 400 x
+// 0.208333 = 1183.33 EUR/t. With hard capped at 2 t of a 10 t batch (20 %),
+// hard gives 19.2 % solid, the lauric oil (55 %) the other 0.8: 1.4545 %,
+// cost = 0.2 x 1500 + 0.014545 x 1600 + 0.785455 x 1100 = 1187.27 EUR/t;
+// the cap holds for hard blended and hard reacted together.
+func TestProcessMeasuredIsOneLP(t *testing.T) {
+	for _, cost := range []float64{0, 30} {
+		cat := paperStocks()
+		r, err := Solve(cat, paperSpec(cost), Options{})
+		require.NoError(t, err)
+		require.Equal(t, Optimal, r.Status)
+		assert.InDelta(t, 1100+400*20/96.0, r.CostPerTonne, 1e-6, "cost %v", cost)
+		assert.Equal(t, 1, r.Process.Iterations)
+		if cost > 0 {
+			assert.Empty(t, r.Process.Feed, "measured curves see no gain from the reactor, so it only costs")
+		}
+
+		cat.Stocks[0].Available = 2
+		r, err = Solve(cat, paperSpec(cost), Options{})
+		require.NoError(t, err)
+		assert.InDelta(t, 0.2*1500+0.8/55*1600+(1-0.2-0.8/55)*1100, r.CostPerTonne, 1e-6, "cost %v", cost)
+		assert.InDelta(t, 2, procLimit(t, r, "avail.hard").Value, 1e-9, "blended + reacted hard within the 2 t on hand")
+	}
+
+	// The same LP built by hand: virtual stocks "hard-ie" and "liquid-ie"
+	// (the feed stocks' data, price + cost) in a plain solve. Cost 0 makes
+	// both paths tie, so the reactor may be used; optimum and the SFC
+	// limit's shadow price must agree.
+	for _, cost := range []float64{0, 25} {
+		cat := paperStocks()
+		virt := cat.Clone()
+		for _, id := range []string{"hard", "liquid"} {
+			s, _ := cat.Find(id)
+			v := *s
+			v.ID, v.Price = id+"-ie", s.Price+cost
+			virt.Stocks = append(virt.Stocks, v)
+		}
+		plain := paperSpec(cost)
+		plain.Process = nil
+		want, err := Solve(virt, plain, Options{})
+		require.NoError(t, err)
+		got, err := Solve(cat, paperSpec(cost), Options{})
+		require.NoError(t, err)
+		assert.InDelta(t, want.CostPerTonne, got.CostPerTonne, 1e-9)
+		assert.InDelta(t, procLimit(t, want, "sfc.10.min").ShadowPrice, procLimit(t, got, "sfc.10.min").ShadowPrice, 1e-9)
+	}
+}
+
+// Interesterification conserves the fatty-acid composition (first
+// principle: acyl groups move between positions, none is made or lost): the
+// reacted feed's profile from randomise.Distribute equals the physical mix
+// of the feed, and the product's reported properties are those of the
+// physical mix of every stock used (blend.Mix).
+func TestProcessConservesFattyAcids(t *testing.T) {
+	cat := catalogue.DemoStocks()
+	spec := margarineSpec(t, cat)
+	r, err := Solve(cat, spec, Options{})
+	require.NoError(t, err)
+	require.Equal(t, Optimal, r.Status)
+	require.NotEmpty(t, r.Process.Feed)
+
+	var feed, all []blend.Part
+	for _, l := range r.Process.Feed {
+		s, _ := cat.Find(l.Stock)
+		feed = append(feed, blend.Part{Stock: s, Pct: l.Pct})
+	}
+	for _, l := range r.Blend {
+		s, _ := cat.Find(l.Stock)
+		all = append(all, blend.Part{Stock: s, Pct: l.Pct})
+	}
+	d, err := randomise.Distribute(feed, randomise.Chemical, 1)
+	require.NoError(t, err)
+	phys, err := blend.Mix(feed, nil)
+	require.NoError(t, err)
+	// randomise goes from wt% FAME to TAG moles through each stock's mean
+	// TAG molar mass and back; the round trip agrees to 0.02 wt%.
+	for k, v := range phys.FattyAcids {
+		assert.InDelta(t, v, d.FattyAcids()[k], 0.02, k)
+	}
+	whole, err := blend.Mix(all, nil)
+	require.NoError(t, err)
+	for k, v := range whole.FattyAcids {
+		assert.InDelta(t, v, r.Properties.FattyAcids[k], 1e-9, k)
+	}
+	assert.InDelta(t, whole.IV, r.Properties.IV, 1e-9)
+	assert.InDelta(t, whole.SAFA, r.Properties.SAFA, 1e-9)
+	assert.InDelta(t, procLimit(t, r, "safa.max").Value, r.Properties.SAFA, 1e-6)
+}
+
+// hardLiquidLauric: fully hardened rapeseed, rapeseed oil and coconut oil
+// from the demo catalogue; the spec asks for solid at 10 °C but little at
+// 40 °C. The physical blends cannot get that from the hardstock (its solid
+// hardly melts between 10 and 40 °C), so without the reactor the dearer
+// coconut oil supplies the 10 °C solid. Random interesterification of the
+// hardstock with liquid oil lowers the high-temperature SFC (common
+// practice: the trisaturates are diluted into mixed TAGs that melt lower).
+func hardLiquidLauric(t testing.TB, cost float64) (*catalogue.Catalogue, *catalogue.Spec) {
+	cat := &catalogue.Catalogue{Currency: "EUR", Stocks: []catalogue.Stock{
+		procStock(t, "fh-rapeseed"), procStock(t, "rapeseed"), procStock(t, "coconut")}}
+	spec := &catalogue.Spec{Name: "hardstock trial", Batch: 10, SFC: []catalogue.SFCLimit{sfcMin(10, 15), sfcMax(40, 3)},
+		Process: &catalogue.Process{Interesterify: []string{"fh-rapeseed", "rapeseed"}, Method: "chemical", Cost: cost, SFC: "predicted"}}
+	return cat, spec
+}
+
+// (2) The reactor pays only when its SFC advantage is worth its cost. By
+// hand: a plan that feeds F % of the batch costs its cost at process cost
+// 0 plus c·F/100; so below the break-even c* = (plain - cost0)/(F0/100) the
+// reactor plan found at cost 0 beats every plan without reactor (whose
+// best is the plain LP), and far above it the reactor is left idle.
+func TestProcessCostDecidesReactor(t *testing.T) {
+	cat, spec := hardLiquidLauric(t, 0)
+	plainSpec := spec.Clone()
+	plainSpec.Process = nil
+	plain, err := Solve(cat, plainSpec, Options{})
+	require.NoError(t, err)
+	require.Equal(t, Optimal, plain.Status)
+
+	free, err := Solve(cat, spec, Options{})
+	require.NoError(t, err)
+	require.Equal(t, Optimal, free.Status)
+	require.NotEmpty(t, free.Process.Feed, "at no process cost the reactor is worth using")
+	assert.Less(t, free.CostPerTonne, plain.CostPerTonne-10)
+	F0 := 100 * free.Process.Tonnes / spec.Batch
+	breakEven := (plain.CostPerTonne - free.CostPerTonne) / (F0 / 100)
+	t.Logf("plain %.2f, reactor at cost 0 %.2f with %.1f %% fed; break-even %.1f EUR/t processed", plain.CostPerTonne, free.CostPerTonne, F0, breakEven)
+
+	// IE lowers the 40 °C SFC against the physical mix of the same feed.
+	var feed []blend.Part
+	for _, l := range free.Process.Feed {
+		s, _ := cat.Find(l.Stock)
+		feed = append(feed, blend.Part{Stock: s, Pct: l.Pct})
+	}
+	phys, _ := blend.SFC(feed, []float64{40})
+	assert.Less(t, free.Process.SFC[40], phys[40]-10)
+
+	_, spec = hardLiquidLauric(t, breakEven/2)
+	half, err := Solve(cat, spec, Options{})
+	require.NoError(t, err)
+	require.NotEmpty(t, half.Process.Feed)
+	assert.LessOrEqual(t, half.CostPerTonne, free.CostPerTonne+breakEven/2*F0/100+0.05)
+	assert.Less(t, half.CostPerTonne, plain.CostPerTonne)
+	assert.InDelta(t, half.Process.Cost, half.Process.Tonnes*breakEven/2, 1e-9)
+
+	_, spec = hardLiquidLauric(t, 3*breakEven)
+	dear, err := Solve(cat, spec, Options{})
+	require.NoError(t, err)
+	require.Equal(t, Optimal, dear.Status)
+	assert.Empty(t, dear.Process.Feed, "a dear reactor is left idle")
+	assert.Zero(t, dear.Process.Tonnes)
+	assert.InDelta(t, plain.CostPerTonne, dear.CostPerTonne, 1e-6)
+}
+
+// trueSFCOf recomputes a process answer's SFC at temp independently of the
+// solver: measured curves (catalogue.Curve.At) for the directly blended
+// part, randomise.Distribute + sle.Predict for the reacted feed, weighted
+// by mass.
+func trueSFCOf(t *testing.T, cat *catalogue.Catalogue, r *Result, method randomise.Method, temp float64) float64 {
+	t.Helper()
+	fed := map[string]float64{}
+	var feed []blend.Part
+	var Z float64
+	for _, l := range r.Process.Feed {
+		s, _ := cat.Find(l.Stock)
+		feed = append(feed, blend.Part{Stock: s, Pct: l.Pct})
+		fed[l.Stock] = l.Pct
+		Z += l.Pct
+	}
+	var v float64
+	for _, l := range r.Blend {
+		s, _ := cat.Find(l.Stock)
+		m, ok := s.SFC.At(temp)
+		require.True(t, ok)
+		v += (l.Pct - fed[l.Stock]) * m / 100
+	}
+	if Z > 0 {
+		d, err := randomise.Distribute(feed, method, 1)
+		require.NoError(t, err)
+		p, err := sle.Predict(d, []float64{temp}, sle.DefaultOptions())
+		require.NoError(t, err)
+		v += Z * p[temp] / 100
+	}
+	return v
+}
+
+// (3) The answer's true predicted SFC, recomputed with sle.Predict, meets
+// every SFC limit within the successive LP's tolerance of 0.05 % solid, and
+// is what the report says.
+func TestProcessPredictedSFCMeetsLimits(t *testing.T) {
+	type tc struct {
+		name string
+		cat  *catalogue.Catalogue
+		spec *catalogue.Spec
+	}
+	cat, spec := hardLiquidLauric(t, 0)
+	demo := catalogue.DemoStocks()
+	enz := margarineSpec(t, demo)
+	enz.Process.Method = "enzymatic"
+	cases := []tc{{"hardstock trial", cat, spec}, {"margarine chemical", demo, margarineSpec(t, demo)}, {"margarine enzymatic", demo, enz}}
+	for _, c := range cases {
+		r, err := Solve(c.cat, c.spec, Options{})
+		require.NoError(t, err, c.name)
+		require.Equal(t, Optimal, r.Status, c.name)
+		require.NotEmpty(t, r.Process.Feed, c.name)
+		for _, l := range c.spec.SFC {
+			v := trueSFCOf(t, c.cat, r, randomise.Method(c.spec.Process.Method), l.Temp)
+			if l.HasMin() {
+				assert.GreaterOrEqual(t, v, l.Min-0.05, "%s sfc %v min", c.name, l.Temp)
+			}
+			if l.HasMax() {
+				assert.LessOrEqual(t, v, l.Max+0.05, "%s sfc %v max", c.name, l.Temp)
+			}
+			assert.InDelta(t, v, r.Properties.SFC[l.Temp], 1e-6, c.name)
+		}
+	}
+}
+
+func margarineSpec(t testing.TB, cat *catalogue.Catalogue) *catalogue.Spec {
+	t.Helper()
+	spec, ps := catalogue.LoadSpec("../testdata/process-margarine.toml", cat)
+	require.Empty(t, ps.Errors())
+	return spec
+}
+
+// (4) The successive LP converges within its cap on the demo stocks, and
+// the batch cost adds the processing cost to the stocks' cost.
+func TestProcessMargarineConverges(t *testing.T) {
+	cat := catalogue.DemoStocks()
+	spec := margarineSpec(t, cat)
+	r, err := Solve(cat, spec, Options{})
+	require.NoError(t, err)
+	require.Equal(t, Optimal, r.Status)
+	assert.True(t, r.Process.Converged)
+	assert.LessOrEqual(t, r.Process.Iterations, 50)
+	assert.Len(t, r.Process.Feed, 2, "hard palm stearin and palm kernel oil both go through the reactor")
+
+	var stocks float64
+	for _, l := range r.Blend {
+		s, _ := cat.Find(l.Stock)
+		stocks += l.Tonnes * s.Price
+	}
+	assert.InDelta(t, stocks+r.Process.Tonnes*spec.Process.Cost, r.BatchCost, 1e-6)
+	assert.InDelta(t, r.Process.Cost, r.Process.Tonnes*spec.Process.Cost, 1e-9)
+
+	plain := spec.Clone()
+	plain.Process = nil
+	p, err := Solve(cat, plain, Options{})
+	require.NoError(t, err)
+	assert.Less(t, r.CostPerTonne, p.CostPerTonne, "the interesterified hardstock beats the physical blend here")
+	assert.NotEmpty(t, r.Notes)
+}
+
+// (5) Bad input is catalogue.BadInput naming the stock or field.
+func TestProcessBadInput(t *testing.T) {
+	cat := catalogue.DemoStocks()
+	cases := map[string]struct {
+		edit func(s *catalogue.Spec)
+		want string
+	}{
+		"feed excluded": {func(s *catalogue.Spec) {
+			s.Use = append(s.Use, catalogue.Use{Stock: "pko", Bound: catalogue.Bound{Min: math.Inf(-1), Max: 0}})
+			s.SortLimits()
+		}, `"pko"`},
+		"unknown stock": {func(s *catalogue.Spec) { s.Process.Interesterify = []string{"palm-st-hard", "lard"} }, `"lard"`},
+		"twice":         {func(s *catalogue.Spec) { s.Process.Interesterify = []string{"pko", "pko"} }, "twice"},
+		"empty":         {func(s *catalogue.Spec) { s.Process.Interesterify = nil }, "empty"},
+		"method":        {func(s *catalogue.Spec) { s.Process.Method = "glycerolysis" }, "glycerolysis"},
+		"sfc model":     {func(s *catalogue.Spec) { s.Process.SFC = "guessed" }, "guessed"},
+		"negative cost": {func(s *catalogue.Spec) { s.Process.Cost = -1 }, "cost"},
+		"not a number":  {func(s *catalogue.Spec) { s.Process.Cost = math.NaN() }, "cost"},
+		"integer rules": {func(s *catalogue.Spec) { s.Rules.MaxStocks = 3 }, "[rules]"},
+		"zero batch":    {func(s *catalogue.Spec) { s.Batch = 0 }, "batch"},
+	}
+	for name, c := range cases {
+		spec := margarineSpec(t, cat)
+		c.edit(spec)
+		_, err := Solve(cat, spec, Options{})
+		require.Error(t, err, name)
+		assert.True(t, catalogue.IsBadInput(err), "%s: %v", name, err)
+		assert.Contains(t, err.Error(), c.want, name)
+	}
+}
+
+// An impossible process spec is answered with the plain model's relaxation.
+func TestProcessInfeasible(t *testing.T) {
+	cat, spec := hardLiquidLauric(t, 10)
+	spec.SFC = append(spec.SFC, sfcMin(30, 60)) // no blend of these is 60 % solid at 30 °C and <= 3 % at 40 °C
+	spec.SortLimits()
+	r, err := Solve(cat, spec, Options{})
+	require.NoError(t, err)
+	require.Equal(t, Infeasible, r.Status)
+	assert.NotEmpty(t, r.Relaxation)
+	assert.Empty(t, r.Process.Feed)
+}
+
+// BenchmarkSolveProcessPredicted is the successive LP with predicted SFC on
+// the demo margarine spec (DESIGN section 7: < 200 ms);
+// BenchmarkSolveProcessPlainReference is the same spec without [process]
+// in the same run, for the ratio.
+func BenchmarkSolveProcessPredicted(b *testing.B) {
+	cat := catalogue.DemoStocks()
+	spec := margarineSpec(b, cat)
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := Solve(cat, spec, Options{}); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+func BenchmarkSolveProcessPlainReference(b *testing.B) {
+	cat := catalogue.DemoStocks()
+	spec := margarineSpec(b, cat)
+	spec.Process = nil
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := Solve(cat, spec, Options{}); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
