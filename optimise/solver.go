@@ -35,6 +35,9 @@ func (s *Solver) Solve(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Optio
 	if s == nil || s.eng == nil {
 		return nil, errSolverClosed
 	}
+	if spec != nil && spec.Process != nil {
+		return solveProcess(cat, spec, opt) // as Solve: its own successive LP
+	}
 	return solveIn(s.eng, &s.prof, &s.sc, cat, spec, opt)
 }
 

@@ -75,6 +75,21 @@ func TestSolverMatchesFreshSolves(t *testing.T) {
 	}
 }
 
+// TestSolverProcessSpec: a spec with a [process] step goes through the
+// process model from a Solver too (the hand-solved LP of
+// TestProcessMeasuredIsOneLP: hard = 20/0.96 % of the batch, 1183.33 EUR/t).
+func TestSolverProcessSpec(t *testing.T) {
+	s := NewSolver()
+	defer s.Close()
+	want, err := Solve(paperStocks(), paperSpec(10), Options{})
+	require.NoError(t, err)
+	got, err := s.Solve(paperStocks(), paperSpec(10), Options{})
+	require.NoError(t, err)
+	require.NotNil(t, got.Process)
+	assert.InDelta(t, 1100+400*20/0.96/100, got.CostPerTonne, 1e-6)
+	assertClose(t, want, got, 1e-9, "process spec")
+}
+
 func TestSolverAfterClose(t *testing.T) {
 	s := NewSolver()
 	r, err := s.Solve(twoStocks(), &catalogue.Spec{Batch: 1, Limits: []catalogue.Limit{{Name: "C18:1", Bound: bound(30, inf())}}}, Options{})

@@ -44,9 +44,13 @@ func Sweep(cat *catalogue.Catalogue, spec *catalogue.Spec, id string, from, to f
 	}
 	work := cat.Clone()
 	st, _ := work.Find(id)
+	// One Solver for every price: only a price changes between solves, so
+	// its CLP model and the stocks' profiles serve them all.
+	sv := NewSolver()
+	defer sv.Close()
 	at := func(p float64) (*Result, error) {
 		st.Price = p
-		r, err := Solve(work, spec, opt)
+		r, err := sv.Solve(work, spec, opt)
 		if err != nil {
 			return nil, fmt.Errorf("sweep %s at price %g: %w", id, p, err)
 		}
