@@ -51,8 +51,8 @@ const (
 // (the first principle of the reaction; randomise.Distribute conserves it),
 // so every [limits] row (fatty acids, IV, SV, SAFA, trans, Cox ...) is linear
 // in x and z with the stock's own coefficient in both. Availability and [use]
-// bounds apply to the total inclusion x_k + z_k (a row "feed.<id>" per feed
-// stock that has one). SFC rows: the directly blended stocks contribute their
+// bounds apply to the total inclusion x_k + z_k. (The LP is solved in an
+// equivalent total form, see procModel.lp.) SFC rows: the directly blended stocks contribute their
 // measured curves linearly (as the plain model); the interesterified product
 // contributes g(z) = Z·S(z/Z), with Z = Σ z_k and S(q) the SFC of the reacted
 // feed of proportions q; the final blend's SFC is the mass-weighted sum of
@@ -307,11 +307,8 @@ type procModel struct {
 	cost     float64   // process cost per tonne processed
 	feed     []int     // stock column of each feed stock
 	isFeed   []int     // feed index of each stock column, -1 when not fed
-	up       []float64 // upper bound of x_k + z_k, % of batch (+Inf when none)
-	lo       []float64 // lower bound of x_k + z_k (use min), % of batch
 	sfcRows  []int     // base rows that are SFC limits
 	sfcTemps []float64 // their temperatures
-	totRow   []int     // row of x_k + z_k per feed stock in lp(), -1 when none
 }
 
 // newProcModel checks the [process] table against the model and lays out
@@ -358,15 +355,6 @@ func newProcModel(base *model, lay *layout) (*procModel, error) {
 		}
 		pm.isFeed[j] = len(pm.feed)
 		pm.feed = append(pm.feed, j)
-		up := math.Min(c.availPct, math.Inf(1))
-		if c.use.HasMax() {
-			up = math.Min(up, c.use.Max)
-		}
-		lo := 0.0
-		if c.use.HasMin() {
-			lo = c.use.Min
-		}
-		pm.up, pm.lo = append(pm.up, up), append(pm.lo, lo)
 	}
 	for i := 1; i < base.nRows; i++ {
 		key := lay.rows[i].key
@@ -406,6 +394,16 @@ func (pm *procModel) measuredCoef() []float64 {
 // lp is the process LP with reactor SFC coefficients sfc (per % of batch,
 // as measuredCoef), the reactor feed boxed to ±delta around at.z when at is
 // non-nil.
+//
+// It is written in total form: the column of a feed stock is its total
+// inclusion t_k = x_k + z_k (cost price/100, [use] and availability as its
+// column bounds, as in the plain model), and the reactor column z_k costs
+// the process alone, cost/100, with coefficients (reacted - as blended):
+// zero in the sum and every fatty-acid-linear row, S'_k - S_k in an SFC
+// row; a row "direct.<id>" t_k - z_k >= 0 keeps x_k >= 0. It is the model
+// of solveProcess's doc comment with x_k = t_k - z_k substituted, so that
+// each stock's price sits in one column (exact cost ranging) and its
+// bounds stay column bounds (shadow prices as the plain report's).
 func (pm *procModel) lp(sfc []float64, at *procPoint, delta float64) *model {
 	b, n, K := pm.base, pm.lay.n(), len(pm.feed)
 	m := newModel(n + K)
@@ -416,8 +414,7 @@ func (pm *procModel) lp(sfc []float64, at *procPoint, delta float64) *model {
 	for k, j := range pm.feed {
 		c := n + k
 		m.colName[c] = "ie." + b.colName[j]
-		m.obj[c] = b.obj[j] + pm.cost/100
-		m.colLo[j] = 0 // use min applies to x + z, in its row
+		m.obj[c] = pm.cost / 100
 		m.colLo[c], m.colUp[c] = 0, b.colUp[j]
 		if at != nil {
 			m.colLo[c] = math.Max(0, at.z[k]-delta)
@@ -434,27 +431,17 @@ func (pm *procModel) lp(sfc []float64, at *procPoint, delta float64) *model {
 		copy(coef, b.row(i))
 		r, isSFC := sfcAt[i]
 		for k, j := range pm.feed {
+			coef[n+k] = 0 // interesterification keeps the fatty acids
 			if isSFC {
-				coef[n+k] = sfc[r*K+k]
-			} else {
-				coef[n+k] = b.at(i, j)
+				coef[n+k] = sfc[r*K+k] - b.at(i, j)
 			}
 		}
 		m.addRow(b.rowName[i], coef, b.rowLo[i], b.rowUp[i])
 	}
-	pm.totRow = make([]int, K)
 	for k, j := range pm.feed {
-		pm.totRow[k] = -1
-		if math.IsInf(pm.up[k], 1) && pm.lo[k] <= 0 {
-			continue
-		}
 		clear(coef)
-		coef[j], coef[n+k] = 1, 1
-		lo := pm.lo[k]
-		if lo <= 0 {
-			lo = math.Inf(-1)
-		}
-		pm.totRow[k] = m.addRow("feed."+b.colName[j], coef, lo, pm.up[k])
+		coef[j], coef[n+k] = 1, -1
+		m.addRow("direct."+b.colName[j], coef, 0, math.Inf(1))
 	}
 	return m
 }
@@ -483,8 +470,9 @@ func (pm *procModel) point(sol []float64) *procPoint {
 	for j := range p.x {
 		p.x[j] = math.Max(sol[j], 0)
 	}
-	for k := range p.z {
+	for k, j := range pm.feed {
 		p.z[k] = math.Max(sol[n+k], 0)
+		p.x[j] = math.Max(p.x[j]-p.z[k], 0)
 	}
 	return p
 }
@@ -495,7 +483,7 @@ func (pm *procModel) startProportions(x []float64) []float64 {
 	q := make([]float64, len(pm.feed))
 	var s float64
 	for k, j := range pm.feed {
-		q[k] = math.Max(x[j], 0) + math.Max(x[pm.lay.n()+k], 0)
+		q[k] = math.Max(x[j], 0) // the feed stock's total inclusion
 		s += q[k]
 	}
 	for k := range q {
@@ -837,22 +825,12 @@ func (pm *procModel) finish(res *Result, m *model, sol *solution, temps []float6
 		c := &lay.cols[j]
 		id := c.stock.ID
 		x := total[j]
-		// shadow prices of the stock's use and availability bounds: of its
-		// column bound for a direct stock, of its feed row for a feed stock.
-		var dUp, dLo float64 // d(objective)/d(bound), the column's or row's
-		atLo, atUp := false, false
-		if k := pm.isFeed[j]; k >= 0 {
-			if r := pm.totRow[k]; r >= 0 {
-				yr := sol.y[r]
-				atLo, atUp = yr > 0 && near(sol.act[r], m.rowLo[r]), yr < 0 && near(sol.act[r], m.rowUp[r])
-				dLo, dUp = yr, yr
-			}
-		} else {
-			d := sol.d[j]
-			atLo = sol.basis[j] == stLower || sol.basis[j] == stFixed && d > 0
-			atUp = sol.basis[j] == stUpper || sol.basis[j] == stFixed && d < 0
-			dLo, dUp = d, d
-		}
+		// [use] and availability are column bounds (of the total
+		// inclusion for a feed stock), as in the plain report.
+		d := sol.d[j]
+		atLo := sol.basis[j] == stLower || sol.basis[j] == stFixed && d > 0
+		atUp := sol.basis[j] == stUpper || sol.basis[j] == stFixed && d < 0
+		dLo, dUp := d, d
 		if c.use.HasMin() {
 			lr := LimitReport{Name: "use." + id + ".min", Value: x, Bound: c.use.Min, Binding: near(x, c.use.Min)}
 			if atLo && lr.Binding {
@@ -880,25 +858,17 @@ func (pm *procModel) finish(res *Result, m *model, sol *solution, temps []float6
 		}
 	}
 
-	// Cost ranging of the stocks blended only directly; a feed stock's
-	// price enters two columns, which one ratio test does not range.
+	// Cost ranging: in the total form each stock's price is the cost of
+	// one column, so the plain ratio test applies to every stock.
 	rg, ferr := newRanger(m, sol.basis, sol.d, sol.y, nil)
-	var skipped []string
+	if ferr != nil {
+		return nil, fmt.Errorf("optimise %s: ranging: %w", specWhere(spec), ferr)
+	}
 	for j := 0; j < n; j++ {
 		s := lay.cols[j].stock
-		if pm.isFeed[j] >= 0 {
-			skipped = append(skipped, s.ID)
-			continue
-		}
-		if ferr != nil {
-			return nil, fmt.Errorf("optimise %s: ranging: %w", specWhere(spec), ferr)
-		}
 		lo, hi := rg.costRange(j)
 		res.Ranging = append(res.Ranging, Range{Stock: s.ID, InBlend: sol.x[j] > usedTol, Price: s.Price,
 			PriceLow: s.Price + 100*lo, PriceHigh: s.Price + 100*hi})
-	}
-	if len(skipped) > 0 {
-		note += " No cost ranging for the reactor-feed stocks (" + strings.Join(skipped, ", ") + "): each one's price enters both its direct and its reactor column."
 	}
 	res.Notes = append([]string{note}, res.Notes...)
 	return res, nil

@@ -86,6 +86,33 @@ func TestProcessMeasuredIsOneLP(t *testing.T) {
 		require.NoError(t, err)
 		assert.InDelta(t, 0.2*1500+0.8/55*1600+(1-0.2-0.8/55)*1100, r.CostPerTonne, 1e-6, "cost %v", cost)
 		assert.InDelta(t, 2, procLimit(t, r, "avail.hard").Value, 1e-9, "blended + reacted hard within the 2 t on hand")
+
+		// An idle reactor leaves the plain LP's shadow prices and cost
+		// ranging as they are, feed stocks included (the process model
+		// prices each stock in one column).
+		if cost > 0 {
+			plainSpec := paperSpec(cost)
+			plainSpec.Process = nil
+			p, err := Solve(cat, plainSpec, Options{})
+			require.NoError(t, err)
+			require.Len(t, r.Ranging, len(p.Ranging))
+			for i, g := range p.Ranging {
+				assert.Equal(t, g.Stock, r.Ranging[i].Stock)
+				assert.InDelta(t, g.Price, r.Ranging[i].Price, 1e-9, g.Stock)
+				if math.IsInf(g.PriceLow, 0) {
+					assert.Equal(t, g.PriceLow, r.Ranging[i].PriceLow, g.Stock)
+				} else {
+					assert.InDelta(t, g.PriceLow, r.Ranging[i].PriceLow, 1e-6, g.Stock)
+				}
+				if math.IsInf(g.PriceHigh, 0) {
+					assert.Equal(t, g.PriceHigh, r.Ranging[i].PriceHigh, g.Stock)
+				} else {
+					assert.InDelta(t, g.PriceHigh, r.Ranging[i].PriceHigh, 1e-6, g.Stock)
+				}
+			}
+			assert.InDelta(t, procLimit(t, p, "avail.hard").ShadowPrice, procLimit(t, r, "avail.hard").ShadowPrice, 1e-9)
+			assert.InDelta(t, procLimit(t, p, "sfc.10.min").ShadowPrice, procLimit(t, r, "sfc.10.min").ShadowPrice, 1e-9)
+		}
 	}
 
 	// The same LP built by hand: virtual stocks "hard-ie" and "liquid-ie"
@@ -383,4 +410,43 @@ func BenchmarkSolveProcessPlainReference(b *testing.B) {
 			b.Fatal(err)
 		}
 	}
+}
+
+// Cost ranging of a reactor-feed stock, checked by solving again: inside
+// the reported range the answer is still a stationary point of the
+// linearised model (the same basis stays optimal), so the successive LP
+// returns the same blend; well outside it the blend changes.
+func TestProcessFeedRanging(t *testing.T) {
+	cat, spec := hardLiquidLauric(t, 20)
+	r, err := Solve(cat, spec, Options{})
+	require.NoError(t, err)
+	require.NotEmpty(t, r.Process.Feed)
+	var g Range
+	for _, x := range r.Ranging {
+		if x.Stock == "fh-rapeseed" {
+			g = x
+		}
+	}
+	require.True(t, g.InBlend)
+	require.False(t, math.IsInf(g.PriceHigh, 1))
+	pct := func(r *Result, id string) float64 {
+		for _, l := range r.Blend {
+			if l.Stock == id {
+				return l.Pct
+			}
+		}
+		return 0
+	}
+	inside := cat.Clone()
+	inside.Stocks[0].Price = g.Price + 0.5*(g.PriceHigh-g.Price)
+	ri, err := Solve(inside, spec, Options{})
+	require.NoError(t, err)
+	assert.InDelta(t, pct(r, "fh-rapeseed"), pct(ri, "fh-rapeseed"), 0.05)
+	assert.InDelta(t, pct(r, "coconut"), pct(ri, "coconut"), 0.05)
+
+	outside := cat.Clone()
+	outside.Stocks[0].Price = g.PriceHigh + 200
+	ro, err := Solve(outside, spec, Options{})
+	require.NoError(t, err)
+	assert.Greater(t, math.Abs(pct(r, "fh-rapeseed")-pct(ro, "fh-rapeseed"))+math.Abs(pct(r, "coconut")-pct(ro, "coconut")), 0.05)
 }
