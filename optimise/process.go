@@ -74,7 +74,12 @@ const (
 // (SLP; e.g. Griffith & Stewart, Management Science 7 (1961) 379, and the
 // trust-region form in Nocedal & Wright, Numerical Optimization (2006),
 // ch. 4 and 18, references from memory) starts from the LP with measured
-// curves for the product; each iteration linearises at the current point
+// curves for the product (which leaves the reactor idle unless it is free),
+// linearised first at the feed stocks' proportions in that blend and then,
+// in a second run, at equal proportions (the SLP finds a local optimum, and
+// from a feed poor in hardstock the reaction's effect looks negligible); the
+// cheaper answer that meets the limits wins, the two runs sharing the cap of
+// 50 LP solves. Each iteration linearises at the current point
 // and solves the LP with the feed boxed to ±Δ around it. The merit of a
 // point is cost + μ·(Σ violation of the SFC limits by the true predicted
 // SFC, % solid), μ ten times the largest SFC shadow price seen (an exact

@@ -450,3 +450,48 @@ func TestProcessFeedRanging(t *testing.T) {
 	require.NoError(t, err)
 	assert.Greater(t, math.Abs(pct(r, "fh-rapeseed")-pct(ro, "fh-rapeseed"))+math.Abs(pct(r, "coconut")-pct(ro, "coconut")), 0.05)
 }
+
+// Every pair of hardstock and softer demo stock through either reactor on
+// both demo specs: no panic, an answer or a clear bad-input error, and every
+// optimal answer meets its SFC limits by the TAG model recomputed directly.
+func TestProcessDemoPairs(t *testing.T) {
+	cat := catalogue.DemoStocks()
+	hard := []string{"palm-st-hard", "fh-rapeseed", "pk-stearin", "palm"}
+	soft := []string{"pko", "rapeseed", "coconut", "palm-olein"}
+	for _, id := range catalogue.DemoSpecIDs() {
+		base, ok := catalogue.DemoSpec(id)
+		require.True(t, ok)
+		for _, h := range hard {
+			for _, s := range soft {
+				for _, method := range []string{"chemical", "enzymatic"} {
+					spec := base.Clone()
+					spec.Process = &catalogue.Process{Interesterify: []string{h, s}, Method: method, Cost: 40, SFC: "predicted"}
+					var r *Result
+					var err error
+					require.NotPanics(t, func() { r, err = Solve(cat, spec, Options{}) })
+					name := id + " " + h + "+" + s + " " + method
+					if err != nil {
+						assert.True(t, catalogue.IsBadInput(err), "%s: %v", name, err)
+						continue
+					}
+					require.NotNil(t, r.Process, name)
+					if r.Status != Optimal {
+						assert.NotEmpty(t, r.Relaxation, name)
+						continue
+					}
+					assert.LessOrEqual(t, r.Process.Iterations, slpMaxIter, name)
+					t.Logf("%s: %.2f EUR/t, %.1f t fed, %d LPs, converged %v", name, r.CostPerTonne, r.Process.Tonnes, r.Process.Iterations, r.Process.Converged)
+					for _, l := range spec.SFC {
+						v := trueSFCOf(t, cat, r, randomise.Method(method), l.Temp)
+						if l.HasMin() {
+							assert.GreaterOrEqual(t, v, l.Min-slpSFCTol-1e-9, "%s sfc %v", name, l.Temp)
+						}
+						if l.HasMax() {
+							assert.LessOrEqual(t, v, l.Max+slpSFCTol+1e-9, "%s sfc %v", name, l.Temp)
+						}
+					}
+				}
+			}
+		}
+	}
+}
