@@ -74,7 +74,8 @@ const (
 // (SLP; e.g. Griffith & Stewart, Management Science 7 (1961) 379, and the
 // trust-region form in Nocedal & Wright, Numerical Optimization (2006),
 // ch. 4 and 18, references from memory) starts from the LP with measured
-// curves for the product (which leaves the reactor idle unless it is free),
+// curves for the product (which leaves the reactor idle unless it is free;
+// when that LP is infeasible, from the LP linearised at equal proportions),
 // linearised first at the feed stocks' proportions in that blend and then,
 // in a second run, at equal proportions (the SLP finds a local optimum, and
 // from a feed poor in hardstock the reaction's effect looks negligible); the
@@ -123,7 +124,7 @@ func solveProcess(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (
 	if sol.status == solUnbounded {
 		return nil, fmt.Errorf("optimise %s: the process programme is unbounded, which a blend with shares adding to 100 %% cannot be", specWhere(spec))
 	}
-	if sol.status != solOptimal {
+	if sol.status != solOptimal && pm.mode == "measured" {
 		return pm.infeasible(eng, res, base, "")
 	}
 	if pm.mode == "measured" {
@@ -138,7 +139,26 @@ func solveProcess(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (
 	ev := newReactor(pm.feedStocks(), randomise.Method(pr.Method), pm.sfcTemps)
 	var best *slpRun
 	linInfeasible := false
-	for _, q0 := range pm.starts(sol.x) {
+	starts := pm.starts(sol.x)
+	if sol.status != solOptimal {
+		// No physical blend meets the limits; the reaction may. Start
+		// from the LP linearised at equal feed proportions instead.
+		q0 := starts[len(starts)-1]
+		starts = starts[len(starts)-1:]
+		coef, err := ev.gradient(q0)
+		if err != nil {
+			return nil, fmt.Errorf("optimise %s: %w", specWhere(spec), err)
+		}
+		m = pm.lp(coef, nil, 0)
+		if sol, err = eng.solveLP(m); err != nil {
+			return nil, fmt.Errorf("optimise %s: process LP: %w", specWhere(spec), err)
+		}
+		rep.Iterations++
+		if sol.status != solOptimal {
+			return pm.infeasible(eng, res, base, "neither the physical blends nor the linearised model of the reacted fat (at equal feed proportions) meet the limits; ")
+		}
+	}
+	for _, q0 := range starts {
 		run, err := pm.slp(eng, ev, m, sol, q0, slpMaxIter-rep.Iterations)
 		if err != nil {
 			return nil, fmt.Errorf("optimise %s: %w", specWhere(spec), err)
@@ -295,6 +315,9 @@ func (pm *procModel) starts(x []float64) [][]float64 {
 	eq := make([]float64, K)
 	for k := range eq {
 		eq[k] = 1 / float64(K)
+	}
+	if len(x) < pm.lay.n() { // no start blend
+		return [][]float64{eq}
 	}
 	q := pm.startProportions(x)
 	if K == 1 || maxDiff(q, eq) < 1e-6 {

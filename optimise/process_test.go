@@ -495,3 +495,34 @@ func TestProcessDemoPairs(t *testing.T) {
 		}
 	}
 }
+
+// Where no physical blend can meet the spec the reactor can: fully hardened
+// rapeseed and rapeseed oil alone cannot give 15 % solid at 10 °C with at
+// most 3 % at 40 °C (measured curves: the hardstock keeps 88 of its 96 %
+// solid at 40 °C), but their random interesterification can (common
+// practice for trans-free hardstock blends).
+func TestProcessOnlyReactorMeetsSpec(t *testing.T) {
+	cat, spec := hardLiquidLauric(t, 45)
+	cat.Stocks = cat.Stocks[:2] // no coconut oil
+	plain := spec.Clone()
+	plain.Process = nil
+	p, err := Solve(cat, plain, Options{})
+	require.NoError(t, err)
+	require.Equal(t, Infeasible, p.Status)
+
+	r, err := Solve(cat, spec, Options{})
+	require.NoError(t, err)
+	require.Equal(t, Optimal, r.Status, "%v", r.Notes)
+	require.NotEmpty(t, r.Process.Feed)
+	assert.True(t, r.Process.Converged)
+	for _, l := range spec.SFC {
+		v := trueSFCOf(t, cat, r, randomise.Chemical, l.Temp)
+		if l.HasMin() {
+			assert.GreaterOrEqual(t, v, l.Min-slpSFCTol, "sfc %v", l.Temp)
+		}
+		if l.HasMax() {
+			assert.LessOrEqual(t, v, l.Max+slpSFCTol, "sfc %v", l.Temp)
+		}
+	}
+	t.Logf("%.2f EUR/t, %.1f t of %v t fed, %d LPs", r.CostPerTonne, r.Process.Tonnes, spec.Batch, r.Process.Iterations)
+}
