@@ -167,6 +167,11 @@ func writeJSON(w io.Writer, v any) error {
 
 // writeProperties prints the property block shared by mix, demo and solve.
 func writeProperties(w io.Writer, p blend.Properties, temps []float64) {
+	writePropertiesAs(w, p, temps, "SFC (% solid, linear in measured curves)")
+}
+
+// writePropertiesAs is writeProperties with the SFC row's heading given.
+func writePropertiesAs(w io.Writer, p blend.Properties, temps []float64, sfcHeading string) {
 	fmt.Fprintf(w, "  IV (calc., AOCS Cd 1c-85) %7.1f      SV %6.1f mg KOH/g\n", p.IV, p.SV)
 	fmt.Fprintf(w, "  SAFA %5.1f %%   MUFA %5.1f %%   PUFA %5.1f %%   trans %4.1f %%   omega-3 %4.1f %%   Cox %5.2f\n",
 		p.SAFA, p.MUFA, p.PUFA, p.Trans, p.Omega3, p.Cox)
@@ -181,7 +186,7 @@ func writeProperties(w io.Writer, p blend.Properties, temps []float64) {
 	}
 	fmt.Fprintln(w)
 	fmt.Fprintln(w)
-	fmt.Fprint(w, "  SFC (% solid, linear in measured curves)\n   ")
+	fmt.Fprint(w, "  "+sfcHeading+"\n   ")
 	for _, t := range temps {
 		fmt.Fprintf(w, " %5s C", catalogue.TempKey(t))
 	}

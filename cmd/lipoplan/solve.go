@@ -112,6 +112,9 @@ func solveJSON(r *optimise.Result) map[string]any {
 	out["blend"] = blendOut
 	out["limits"] = limits
 	out["ranging"] = ranging
+	if r.Process != nil {
+		out["process"] = processJSON(r.Process)
+	}
 	return out
 }
 
@@ -172,7 +175,7 @@ func writeSolveText(w io.Writer, r *optimise.Result, spec *catalogue.Spec, temps
 	engine := r.Engine
 	fmt.Fprintf(w, "Spec: %s (%g t batch)\n", title, r.Batch)
 	for _, n := range r.Notes {
-		fmt.Fprintf(w, "Note: %s\n", n)
+		fmt.Fprintln(w, wrapText("Note: "+n, 100, "      "))
 	}
 	if r.Status != optimise.Optimal {
 		writeDiagnosis(w, r, spec)
@@ -195,8 +198,15 @@ func writeSolveText(w io.Writer, r *optimise.Result, spec *catalogue.Spec, temps
 	fmt.Fprintf(w, "  %-14s %-34s %8.2f %9.3f\n\n", "total", "", sum, tonnes)
 	fmt.Fprintf(w, "  Cost: %s per tonne, %s per batch\n\n", money(r.CostPerTonne, r.Currency), money(r.BatchCost, r.Currency))
 
+	if r.Process != nil {
+		writeReactor(w, r, temps)
+	}
 	fmt.Fprintln(w, "Properties of the blend")
-	writeProperties(w, r.Properties, temps)
+	heading := "SFC (% solid, linear in measured curves)"
+	if r.Process != nil && r.Process.SFCModel == "predicted" && len(r.Process.Feed) > 0 {
+		heading = "SFC (% solid: reacted fat by the TAG model, the other stocks by their measured curves, mass-weighted)"
+	}
+	writePropertiesAs(w, r.Properties, temps, heading)
 	fmt.Fprintln(w)
 
 	fmt.Fprintln(w, "Limits (shadow price: what raising the bound by one unit saves per tonne; + saves, - costs)")
@@ -342,4 +352,78 @@ func relaxWords(x optimise.Relax) string {
 		return "lower the minimum by " + by
 	}
 	return "move by " + by
+}
+
+// writeReactor prints the interesterification step of a process spec: what
+// goes through the reactor, what it costs and the reacted fat's SFC.
+func writeReactor(w io.Writer, r *optimise.Result, temps []float64) {
+	p := r.Process
+	fmt.Fprintf(w, "Reactor (%s interesterification, SFC of the reacted fat %s)\n", p.Method, p.SFCModel)
+	if len(p.Feed) == 0 {
+		fmt.Fprintln(w, "  not used: blending the stocks as they are is cheaper")
+		fmt.Fprintln(w)
+		return
+	}
+	for _, l := range p.Feed {
+		fmt.Fprintf(w, "  %-14s %8.2f %% of batch %9.3f t\n", l.Stock, l.Pct, l.Tonnes)
+	}
+	fmt.Fprintf(w, "  %.3f t processed per batch, processing %s per batch", p.Tonnes, money(p.Cost, r.Currency))
+	if p.SFCModel == "predicted" {
+		state := "converged"
+		if !p.Converged {
+			state = "stopped at its iteration cap; treat the answer as approximate"
+		}
+		fmt.Fprintf(w, "; successive LP: %d LP solves, %s", p.Iterations, state)
+	}
+	fmt.Fprintln(w)
+	if len(p.SFC) > 0 {
+		fmt.Fprint(w, "  SFC of the reacted fat alone\n   ")
+		for _, t := range temps {
+			fmt.Fprintf(w, " %5s C", catalogue.TempKey(t))
+		}
+		fmt.Fprint(w, "\n   ")
+		for _, t := range temps {
+			if v, ok := p.SFC[t]; ok {
+				fmt.Fprintf(w, " %7.1f", v)
+			} else {
+				fmt.Fprintf(w, " %7s", "n/a")
+			}
+		}
+		fmt.Fprintln(w)
+	}
+	fmt.Fprintln(w)
+}
+
+// processJSON is the reactor step in JSON (additive to DESIGN section 4).
+func processJSON(p *optimise.ProcessReport) map[string]any {
+	feed := []map[string]any{}
+	for _, l := range p.Feed {
+		feed = append(feed, map[string]any{"stock": l.Stock, "pct": round(l.Pct, 6), "tonnes": round(l.Tonnes, 6)})
+	}
+	sfc := map[string]float64{}
+	for t, v := range p.SFC {
+		sfc[catalogue.TempKey(t)] = round(v, 3)
+	}
+	return map[string]any{"method": p.Method, "sfc_model": p.SFCModel, "feed": feed, "tonnes": round(p.Tonnes, 6),
+		"cost": round(p.Cost, 4), "iterations": p.Iterations, "converged": p.Converged, "sfc": sfc}
+}
+
+// wrapText folds s at spaces to lines of at most width runes, indenting
+// the continuation lines.
+func wrapText(s string, width int, indent string) string {
+	var b strings.Builder
+	line := 0
+	for i, word := range strings.Fields(s) {
+		n := len([]rune(word))
+		if i > 0 && line+1+n > width {
+			b.WriteString("\n" + indent)
+			line = len(indent)
+		} else if i > 0 {
+			b.WriteByte(' ')
+			line++
+		}
+		b.WriteString(word)
+		line += n
+	}
+	return b.String()
 }

@@ -194,3 +194,49 @@ func TestSolveBadInput(t *testing.T) {
 	assert.Equal(t, 2, code)
 	assert.Contains(t, errs, "--temps")
 }
+
+// A spec with a [process] step reports the reactor: the feed is taken from
+// the blend's own stocks (never more than the blend holds of each), the
+// processing cost is the spec's cost per tonne times the tonnes fed, and
+// the hazard caution is printed.
+func TestSolveReportsTheReactor(t *testing.T) {
+	spec := "../../testdata/process-margarine.toml"
+	code, out, errs := run(t, "solve", "--spec", spec, "--format", "json")
+	require.Equal(t, 0, code, errs)
+	var got struct {
+		Blend []struct {
+			Stock       string
+			Pct, Tonnes float64
+		} `json:"blend"`
+		Process struct {
+			Method string
+			Feed   []struct {
+				Stock       string
+				Pct, Tonnes float64
+			}
+			Tonnes float64
+			Cost   float64
+		} `json:"process"`
+	}
+	require.NoError(t, json.Unmarshal([]byte(out), &got))
+	require.NotEmpty(t, got.Process.Feed, "the demo margarine uses the reactor")
+	inBlend := map[string]float64{}
+	for _, l := range got.Blend {
+		inBlend[l.Stock] = l.Pct
+	}
+	var fed float64
+	for _, f := range got.Process.Feed {
+		assert.LessOrEqual(t, f.Pct, inBlend[f.Stock]+1e-6, f.Stock)
+		fed += f.Tonnes
+	}
+	assert.InDelta(t, fed, got.Process.Tonnes, 1e-4)
+	s, ps := catalogue.LoadSpec(spec, catalogue.DemoStocks())
+	require.Empty(t, ps.Errors())
+	assert.InDelta(t, s.Process.Cost*got.Process.Tonnes, got.Process.Cost, 1e-3)
+
+	code, text, _ := run(t, "solve", "--spec", spec)
+	require.Equal(t, 0, code)
+	assert.Contains(t, text, "Reactor (chemical interesterification")
+	assert.Contains(t, text, "SFC of the reacted fat alone")
+	assert.Contains(t, text, "sodium methoxide")
+}
