@@ -171,6 +171,10 @@ func (m *Model) sfcPanel(w, h int) []string {
 	}
 
 	sub := " · blend (linear in measured curves) and spec band"
+	if m.snap.Feasible() && m.snap.Result.Process != nil && len(m.snap.Result.Process.Feed) > 0 &&
+		m.snap.Result.Process.SFCModel == "predicted" {
+		sub = " · blend (reacted part by the TAG model) and spec band"
+	}
 	if m.overlay > 0 {
 		sub = " · measured-linear • and TAG model ∘ " + overlayTitle(overlayMethods[m.overlay-1])
 	}

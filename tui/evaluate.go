@@ -89,7 +89,11 @@ func Evaluate(sc *Scenario, rev int) (snap *Snapshot) {
 		snap.Took = time.Since(start)
 	}()
 	cat, spec := sc.Effective()
-	res, err := optimise.Solve(cat, spec, optimise.Options{})
+	lo, hi := chartTemps(spec)
+	// The solve reports SFC on the chart's 1 °C grid (plus the spec's own
+	// temperatures), so the chart shows exactly what the optimiser saw,
+	// including a reactor step's predicted SFC.
+	res, err := optimise.Solve(cat, spec, optimise.Options{Temps: gridTemps(spec, lo, hi)})
 	if err != nil {
 		snap.Err = err
 		return snap
@@ -99,8 +103,7 @@ func Evaluate(sc *Scenario, rev int) (snap *Snapshot) {
 		return snap
 	}
 	parts := blendParts(cat, res)
-	lo, hi := chartTemps(spec)
-	snap.Curve, snap.CurveGaps = curve(parts, lo, hi)
+	snap.Curve, snap.CurveGaps = resultCurve(res)
 	snap.TAG = tagView(parts, lo, hi)
 	return snap
 }
@@ -129,19 +132,29 @@ func chartTemps(spec *catalogue.Spec) (lo, hi float64) {
 	return lo, hi
 }
 
-func curve(parts []blend.Part, lo, hi float64) ([]catalogue.Point, map[float64][]string) {
-	if len(parts) == 0 {
-		return nil, nil
-	}
+// gridTemps is every whole degree from lo to hi and the spec's temperatures.
+func gridTemps(spec *catalogue.Spec, lo, hi float64) []float64 {
 	var temps []float64
 	for t := lo; t <= hi+1e-9; t++ {
 		temps = append(temps, t)
 	}
-	vals, gaps := blend.SFC(parts, temps)
-	out := make([]catalogue.Point, 0, len(vals))
-	for t, v := range vals {
+	for _, l := range spec.SFC {
+		if l.Temp != math.Trunc(l.Temp) {
+			temps = append(temps, l.Temp)
+		}
+	}
+	sort.Float64s(temps)
+	return temps
+}
+
+// resultCurve is the optimal blend's SFC as the solve reported it, sorted by
+// temperature, with the temperatures it could not report.
+func resultCurve(res *optimise.Result) ([]catalogue.Point, map[float64][]string) {
+	p := res.Properties
+	out := make([]catalogue.Point, 0, len(p.SFC))
+	for t, v := range p.SFC {
 		out = append(out, catalogue.Point{Temp: t, Solid: v})
 	}
 	sort.Slice(out, func(i, j int) bool { return out[i].Temp < out[j].Temp })
-	return out, gaps
+	return out, p.SFCMissing
 }

@@ -451,3 +451,22 @@ func TestPredictedOverlay(t *testing.T) {
 	assert.NotContains(t, d.screen(), "∘ predicted", "fourth p turns the overlay off")
 	assert.Equal(t, snap, d.m.Snapshot(), "the overlay never re-solves")
 }
+
+// A spec with a reactor step shows the reactor on 1 Blend, and the chart's
+// curve is the solve's own SFC (reacted part predicted), not a re-weighting
+// of measured curves.
+func TestReactorShownAndCharted(t *testing.T) {
+	spec, ps := catalogue.LoadSpec("../testdata/process-margarine.toml", catalogue.DemoStocks())
+	require.Empty(t, ps.Errors())
+	d := newDriver(t, New(catalogue.DemoStocks(), spec, "test", Files{}), 80, 24)
+	snap := d.m.Snapshot()
+	require.True(t, snap.Feasible(), "%v", snap.Err)
+	require.NotNil(t, snap.Result.Process)
+	assert.Contains(t, d.screen(), "Reactor")
+	for _, p := range snap.Curve {
+		if v, ok := snap.Result.Properties.SFC[p.Temp]; ok {
+			assert.InDelta(t, v, p.Solid, 1e-9)
+		}
+	}
+	d.requireFrame(80, 24)
+}

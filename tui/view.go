@@ -9,6 +9,7 @@ import (
 	tea "charm.land/bubbletea/v2"
 	"github.com/charmbracelet/x/ansi"
 
+	"lipoplan/blend"
 	"lipoplan/catalogue"
 	"lipoplan/optimise"
 )
@@ -247,15 +248,31 @@ func (m *Model) blendPanel(w, h int) []string {
 		}
 		out = append(out, " "+fit(l.Stock, 12)+" "+fit(l.Name, nameW)+rfit(f2(l.Pct), 8)+rfit(f2(l.Tonnes), 9)+rfit(f2(l.Pct/100*price), 12))
 	}
+	if pr := r.Process; pr != nil {
+		text := "not used: blending the stocks as they are is cheaper"
+		if len(pr.Feed) > 0 {
+			feed := make([]string, len(pr.Feed))
+			for i, f := range pr.Feed {
+				feed[i] = f.Stock + " " + f2(f.Pct) + " %"
+			}
+			text = fmt.Sprintf("%s IE of %s (%s t, %.0f %s per batch; SFC %s)",
+				pr.Method, strings.Join(feed, " + "), f2(pr.Tonnes), pr.Cost, cur, pr.SFCModel)
+		}
+		out = append(out, wrapped(w, st.head.Render("Reactor")+"  ", text)...)
+	}
 	p := r.Properties
 	out = append(out, "")
 	out = append(out, wrapped(w, st.head.Render("Properties")+"  ", keepTogether(
 		"IV "+f1(p.IV), "SV "+f1(p.SV), "SAFA "+f1(p.SAFA)+" %", "MUFA "+f1(p.MUFA)+" %",
 		"PUFA "+f1(p.PUFA)+" %", "trans "+f2(p.Trans)+" %", "Cox "+f2(p.Cox)))...)
 	if len(p.SFC) > 0 {
-		temps := make([]float64, 0, len(p.SFC))
-		for t := range p.SFC {
-			temps = append(temps, t)
+		// the report temperatures: the defaults and the spec's, not the
+		// chart's whole 1 °C grid
+		var temps []float64
+		for _, t := range reportTemps(m.sc.Spec) {
+			if _, ok := p.SFC[t]; ok {
+				temps = append(temps, t)
+			}
 		}
 		sort.Float64s(temps)
 		items := make([]string, len(temps))
@@ -611,4 +628,14 @@ func (m *Model) rowDetail(w int, r Row) []string {
 		b = " enter edits the value, [ ] nudge"
 	}
 	return []string{st.head.Render(fit(" "+a, w)), st.muted.Render(fit(b, w))}
+}
+
+// reportTemps are the SFC temperatures a report lists: the defaults plus the
+// spec's own (DESIGN section 4).
+func reportTemps(spec *catalogue.Spec) []float64 {
+	extra := make([]float64, len(spec.SFC))
+	for i, l := range spec.SFC {
+		extra[i] = l.Temp
+	}
+	return blend.Temps(extra...)
 }
