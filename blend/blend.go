@@ -67,24 +67,41 @@ type Properties struct {
 	SFCMissing map[float64][]string // temperature -> stock ids lacking data
 }
 
+// acidConst holds, per fatty acid, the constants Profile needs: derived once
+// from the reference table and never changed (a read-only lookup table).
+type acidConst struct {
+	fa       catalogue.FattyAcid
+	ivFactor float64
+	ester    float64 // FAME molar mass
+	acid     float64 // free acid molar mass
+}
+
+var acidConsts = func() map[string]acidConst {
+	m := map[string]acidConst{}
+	for _, f := range catalogue.FattyAcids() {
+		m[f.Key] = acidConst{fa: f, ivFactor: IVFactor(f), ester: f.EsterMolarMass(), acid: f.MolarMass()}
+	}
+	return m
+}()
+
 // Profile computes the properties of one fatty-acid profile (wt% FAME). The
 // SV and mean molar mass treat the profile as the fat it came from: the FAME
 // weight fractions are turned into mole fractions with the methyl ester molar
 // masses, and the mean TAG is glycerol + 3 mean acids - 3 water.
 func Profile(fa map[string]float64) Properties {
-	p := Properties{FattyAcids: map[string]float64{}}
-	var sum, moles, acidMass float64
+	p := Properties{FattyAcids: make(map[string]float64, len(fa))}
+	var moles, acidMass float64
 	for k, w := range fa {
 		if w == 0 {
 			continue
 		}
 		p.FattyAcids[k] = w
-		f, ok := catalogue.Lookup(k)
+		c, ok := acidConsts[k]
 		if !ok {
 			continue
 		}
-		sum += w
-		p.IV += w * IVFactor(f)
+		f := c.fa
+		p.IV += w * c.ivFactor
 		switch {
 		case f.Trans:
 			p.Trans += w
@@ -108,16 +125,15 @@ func Profile(fa map[string]float64) Properties {
 				p.Cox += coxLinolenic * w / 100
 			}
 		}
-		n := w / f.EsterMolarMass()
+		n := w / c.ester
 		moles += n
-		acidMass += n * f.MolarMass()
+		acidMass += n * c.acid
 	}
 	if moles > 0 {
 		meanAcid := acidMass / moles
 		p.MeanMolarMass = catalogue.Glycerol.Mass() + 3*meanAcid - 3*catalogue.Water.Mass()
 		p.SV = 3 * kohMilligramsPerMole / p.MeanMolarMass
 	}
-	_ = sum
 	return p
 }
 
