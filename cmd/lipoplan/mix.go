@@ -186,19 +186,7 @@ func writePropertiesAs(w io.Writer, p blend.Properties, temps []float64, sfcHead
 	}
 	fmt.Fprintln(w)
 	fmt.Fprintln(w)
-	fmt.Fprint(w, "  "+sfcHeading+"\n   ")
-	for _, t := range temps {
-		fmt.Fprintf(w, " %5s C", catalogue.TempKey(t))
-	}
-	fmt.Fprint(w, "\n   ")
-	for _, t := range temps {
-		if v, ok := p.SFC[t]; ok {
-			fmt.Fprintf(w, " %7.1f", v)
-		} else {
-			fmt.Fprintf(w, " %7s", "n/a")
-		}
-	}
-	fmt.Fprintln(w)
+	writeSFCRow(w, "  "+sfcHeading, p.SFC, temps)
 	if len(p.SFCMissing) > 0 {
 		var ts []float64
 		for t := range p.SFCMissing {
@@ -209,4 +197,22 @@ func writePropertiesAs(w io.Writer, p blend.Properties, temps []float64, sfcHead
 			fmt.Fprintf(w, "    n/a at %s C: no measured SFC for %s\n", catalogue.TempKey(t), strings.Join(p.SFCMissing[t], ", "))
 		}
 	}
+}
+
+// writeSFCRow prints a heading, then the temperatures and the % solid at
+// each ("n/a" where vals has none), as every report lays out an SFC curve.
+func writeSFCRow(w io.Writer, heading string, vals map[float64]float64, temps []float64) {
+	fmt.Fprint(w, heading+"\n   ")
+	for _, t := range temps {
+		fmt.Fprintf(w, " %5s C", catalogue.TempKey(t))
+	}
+	fmt.Fprint(w, "\n   ")
+	for _, t := range temps {
+		if v, ok := vals[t]; ok {
+			fmt.Fprintf(w, " %7.1f", v)
+		} else {
+			fmt.Fprintf(w, " %7s", "n/a")
+		}
+	}
+	fmt.Fprintln(w)
 }

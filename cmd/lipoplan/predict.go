@@ -85,15 +85,8 @@ func (p *predicted) addJSON(out map[string]any) {
 // writeText prints the predicted SFC row under the measured one, then the
 // model's error against the stocks' measured curves.
 func (p *predicted) writeText(w io.Writer, temps []float64) {
-	fmt.Fprintf(w, "\n  SFC (%% solid, predicted by the TAG model, %s)\n   ", processWords(p.process))
-	for _, t := range temps {
-		fmt.Fprintf(w, " %5s C", catalogue.TempKey(t))
-	}
-	fmt.Fprint(w, "\n   ")
-	for _, t := range temps {
-		fmt.Fprintf(w, " %7.1f", p.sfc[t])
-	}
 	fmt.Fprintln(w)
+	writeSFCRow(w, fmt.Sprintf("  SFC (%% solid, predicted by the TAG model, %s)", processWords(p.process)), p.sfc, temps)
 	fmt.Fprintf(w, "    Model: %s.\n", p.model())
 	if len(p.fits) == 0 {
 		fmt.Fprintln(w, "    Model error: no stock in this mix has a measured SFC curve to compare with.")

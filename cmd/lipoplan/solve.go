@@ -377,19 +377,7 @@ func writeReactor(w io.Writer, r *optimise.Result, temps []float64) {
 	}
 	fmt.Fprintln(w)
 	if len(p.SFC) > 0 {
-		fmt.Fprint(w, "  SFC of the reacted fat alone\n   ")
-		for _, t := range temps {
-			fmt.Fprintf(w, " %5s C", catalogue.TempKey(t))
-		}
-		fmt.Fprint(w, "\n   ")
-		for _, t := range temps {
-			if v, ok := p.SFC[t]; ok {
-				fmt.Fprintf(w, " %7.1f", v)
-			} else {
-				fmt.Fprintf(w, " %7s", "n/a")
-			}
-		}
-		fmt.Fprintln(w)
+		writeSFCRow(w, "  SFC of the reacted fat alone", p.SFC, temps)
 	}
 	fmt.Fprintln(w)
 }
