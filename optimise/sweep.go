@@ -26,7 +26,10 @@ type SweepResult struct {
 	// tonne is linear in the price (parametric LP: the optimal cost is a
 	// piecewise-linear concave function of one cost coefficient).
 	Breakpoints []float64
-	Tolerance   float64
+	// BreakpointCosts is the cost per tonne at each breakpoint (NaN where the
+	// spec cannot be met there).
+	BreakpointCosts []float64
+	Tolerance       float64
 }
 
 // Sweep solves spec at steps prices of stock id spaced evenly from `from` to
@@ -85,7 +88,17 @@ func Sweep(cat *catalogue.Catalogue, spec *catalogue.Spec, id string, from, to f
 				hi = mid
 			}
 		}
-		out.Breakpoints = append(out.Breakpoints, (lo+hi)/2)
+		bp := (lo + hi) / 2
+		r, err := at(bp)
+		if err != nil {
+			return nil, err
+		}
+		cost := math.NaN()
+		if r.Status == Optimal {
+			cost = r.CostPerTonne
+		}
+		out.Breakpoints = append(out.Breakpoints, bp)
+		out.BreakpointCosts = append(out.BreakpointCosts, cost)
 	}
 	return out, nil
 }

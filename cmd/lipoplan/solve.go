@@ -13,7 +13,7 @@ import (
 )
 
 func (a *app) solve(args []string) error {
-	fs := a.newFlags("solve", `[--stocks F] [--spec F] [--format text|json|csv] [--mps FILE] [--temps "5,10,37"]`,
+	fs := a.newFlags("solve", `[--stocks F] [--spec F] [--format text|json|csv] [--mps FILE] [--svg FILE] [--temps "5,10,37"]`,
 		"Cheapest blend of the stocks that meets the spec: a linear programme (COIN-OR CLP; integer rules\n"+
 			"max_stocks and min_if_used by CBC), with the cost of every binding limit, price ranging per stock\n"+
 			"and, when the spec cannot be met, the smallest relaxation that would make it feasible (exit 3).")
@@ -21,6 +21,7 @@ func (a *app) solve(args []string) error {
 	specPath := fs.String("spec", "", "product spec TOML (default: the embedded demo laminating spec)")
 	format := fs.String("format", "text", "text, json or csv")
 	mps := fs.String("mps", "", "also write the model to this file in free MPS format")
+	svg := fs.String("svg", "", "also draw the blend's SFC against the spec's bands into this SVG file")
 	temps := fs.String("temps", "", `SFC temperatures to report, deg C (default 10,15,...,45 plus the spec's)`)
 	if err := a.parse(fs, args); err != nil {
 		return err
@@ -51,6 +52,11 @@ func (a *app) solve(args []string) error {
 	res, err := optimise.Solve(cat, spec, optimise.Options{Temps: ts})
 	if err != nil {
 		return err
+	}
+	if *svg != "" && res.Status == optimise.Optimal {
+		if err := catalogue.WriteFileAtomic(*svg, sfcSVG(res, spec), 0o644); err != nil {
+			return fmt.Errorf("--svg: %w", err)
+		}
 	}
 	switch *format {
 	case "json":

@@ -240,3 +240,17 @@ func TestSolveReportsTheReactor(t *testing.T) {
 	assert.Contains(t, text, "SFC of the reacted fat alone")
 	assert.Contains(t, text, "sodium methoxide")
 }
+
+// --svg draws one point per reported temperature and one band per SFC limit.
+func TestSolveSVG(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "sfc.svg")
+	code, _, errs := run(t, "solve", "--svg", path)
+	require.Equal(t, 0, code, errs)
+	raw, err := os.ReadFile(path)
+	require.NoError(t, err)
+	svg := string(raw)
+	spec := catalogue.DemoSpecs()[0]
+	assert.Equal(t, len(specTemps(spec)), strings.Count(svg, "<circle"), "one point per report temperature")
+	assert.Equal(t, len(spec.SFC), strings.Count(svg, "fill-opacity"), "one band per SFC limit")
+	assert.True(t, strings.HasSuffix(svg, "</svg>\n"))
+}

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"sort"
 	"strconv"
 	"strings"
 
@@ -138,7 +139,7 @@ func joinFloats(vs []float64) string {
 // sweepSVG draws cost per tonne against the swept price, with the
 // breakpoints as dashed lines. Plain SVG 1.1, no scripts.
 func sweepSVG(r *optimise.SweepResult, spec *catalogue.Spec) []byte {
-	const W, H, L, R, T, B = 640.0, 400.0, 70.0, 20.0, 40.0, 50.0
+	const W, H, L, R, T, B = 640.0, 400.0, 70.0, 20.0, 60.0, 50.0
 	x0, x1 := r.Points[0].Value, r.Points[len(r.Points)-1].Value
 	if x0 > x1 {
 		x0, x1 = x1, x0
@@ -163,7 +164,7 @@ func sweepSVG(r *optimise.SweepResult, spec *catalogue.Spec) []byte {
 	fmt.Fprintf(&b, `<?xml version="1.0" encoding="UTF-8"?>`+"\n")
 	fmt.Fprintf(&b, `<svg xmlns="http://www.w3.org/2000/svg" width="%g" height="%g" viewBox="0 0 %g %g" font-family="sans-serif" font-size="12">`+"\n", W, H, W, H)
 	fmt.Fprintf(&b, `<rect width="100%%" height="100%%" fill="white"/>`+"\n")
-	fmt.Fprintf(&b, `<text x="%g" y="22" font-size="14">%s: cost per tonne against the price of %s</text>`+"\n", L, xmlEscape(spec.Name), xmlEscape(r.Stock))
+	svgTitle(&b, L, spec.Name, "blend cost per tonne against the price of "+r.Stock+"; dashed: the blend changes")
 	fmt.Fprintf(&b, `<line x1="%g" y1="%g" x2="%g" y2="%g" stroke="black"/>`+"\n", L, H-B, W-R, H-B)
 	fmt.Fprintf(&b, `<line x1="%g" y1="%g" x2="%g" y2="%g" stroke="black"/>`+"\n", L, T, L, H-B)
 	for i := 0; i <= 4; i++ {
@@ -178,11 +179,24 @@ func sweepSVG(r *optimise.SweepResult, spec *catalogue.Spec) []byte {
 		fmt.Fprintf(&b, `<line x1="%.1f" y1="%g" x2="%.1f" y2="%g" stroke="gray" stroke-dasharray="4 3"/>`+"\n", px(bp), T, px(bp), H-B)
 		fmt.Fprintf(&b, `<text x="%.1f" y="%g" text-anchor="middle" fill="gray">%.0f</text>`+"\n", px(bp), T-4, bp)
 	}
-	var pts []string
+	// the cost is linear between breakpoints, so the steps and the
+	// breakpoints together draw it exactly
+	type xy struct{ x, y float64 }
+	var line []xy
 	for _, p := range r.Points {
 		if p.Status == optimise.Optimal {
-			pts = append(pts, fmt.Sprintf("%.1f,%.1f", px(p.Value), py(p.CostPerTonne)))
+			line = append(line, xy{p.Value, p.CostPerTonne})
 		}
+	}
+	for i, bp := range r.Breakpoints {
+		if i < len(r.BreakpointCosts) && !math.IsNaN(r.BreakpointCosts[i]) {
+			line = append(line, xy{bp, r.BreakpointCosts[i]})
+		}
+	}
+	sort.Slice(line, func(i, j int) bool { return line[i].x < line[j].x })
+	var pts []string
+	for _, p := range line {
+		pts = append(pts, fmt.Sprintf("%.1f,%.1f", px(p.x), py(p.y)))
 	}
 	fmt.Fprintf(&b, `<polyline fill="none" stroke="#1f5f8b" stroke-width="2" points="%s"/>`+"\n", strings.Join(pts, " "))
 	b.WriteString("</svg>\n")
