@@ -514,6 +514,17 @@ func (c *collector) spec(md toml.MetaData, raw rawSpec, cat *Catalogue) *Spec {
 			s.Use = append(s.Use, Use{Stock: id, Bound: b})
 		}
 	}
+	var minSum float64
+	var mins []string
+	for _, u := range s.Use {
+		if u.HasMin() && u.Min > 0 {
+			minSum += u.Min
+			mins = append(mins, fmt.Sprintf("%s %g", u.Stock, u.Min))
+		}
+	}
+	if minSum > 100+1e-9 {
+		c.errf("[use]", "the minimum shares add up to %g %% of the batch (%s), more than 100 %%; lower some of them", minSum, strings.Join(mins, ", "))
+	}
 	if raw.Rules != nil {
 		s.Rules = c.rules(*raw.Rules)
 	}
