@@ -92,7 +92,7 @@ const tInfinity = 401.15
 // (doi:10.1201/b12883-10) and tabulated (42 parameters per polymorph) by
 // Moorthy et al. (2016), J. Am. Oil Chem. Soc. (doi:10.1007/s11746-016-2935-1).
 // We did not have the original papers; the values below were read from a
-// secondary public transcription of that table (three copies of it, rounded
+// secondary public copy of that table (three copies of it, rounded
 // table and unrounded saturated A/B constants, agree) and should be checked
 // against Moorthy et al. (2016), Table 1, when it is to hand. The 3-decimal
 // table values are used. Values the table gives in parentheses
