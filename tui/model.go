@@ -6,6 +6,7 @@ import (
 	"math"
 	"strconv"
 	"strings"
+	"time"
 
 	"charm.land/bubbles/v2/help"
 	"charm.land/bubbles/v2/key"
@@ -697,13 +698,24 @@ func (m *Model) save(name string) tea.Cmd {
 		m.fail(err)
 		return nil
 	}
-	if err := SaveScenario(path, m.sc); err != nil {
+	data, err := EncodeScenario(m.sc)
+	if err != nil {
 		m.fail(err)
+		return nil
+	}
+	// saving over an existing file keeps what was there as a backup
+	bak, err := replaceKeepingBackup(path, data, time.Now())
+	if err != nil {
+		m.fail(fmt.Errorf("saving scenario: %w", err))
 		return nil
 	}
 	m.lastPath = strings.TrimSpace(name)
 	m.dirty = false
-	m.info("Saved the scenario to " + m.shownPath(path) + ".")
+	if bak != "" {
+		m.info("Old file kept as " + m.shownPath(bak) + ". Saved the scenario to " + m.shownPath(path) + ".")
+	} else {
+		m.info("Saved the scenario to " + m.shownPath(path) + ".")
+	}
 	return nil
 }
 
@@ -730,24 +742,38 @@ func (m *Model) writeBack() tea.Cmd {
 		m.fail(err)
 		return nil
 	}
-	var wrote []string
+	var wrote, kept []string
+	now := time.Now()
 	if m.files.StocksPath != "" {
-		if err := writeStocksFile(m.files.StocksPath, m.sc.Catalogue); err != nil {
+		bak, err := writeStocksFile(m.files.StocksPath, m.sc.Catalogue, now)
+		if err != nil {
 			m.fail(err)
 			return nil
 		}
-		wrote = append(wrote, m.files.StocksPath)
+		wrote = append(wrote, m.shownPath(m.files.StocksPath))
+		if bak != "" {
+			kept = append(kept, m.shownPath(bak))
+		}
 	}
 	if m.files.SpecPath != "" {
 		_, spec := m.sc.Effective()
-		if err := writeSpecFile(m.files.SpecPath, spec); err != nil {
+		bak, err := writeSpecFile(m.files.SpecPath, spec, now)
+		if err != nil {
 			m.fail(err)
 			return nil
 		}
-		wrote = append(wrote, m.files.SpecPath)
+		wrote = append(wrote, m.shownPath(m.files.SpecPath))
+		if bak != "" {
+			kept = append(kept, m.shownPath(bak))
+		}
 	}
 	m.dirty = false
-	m.info("Wrote " + strings.Join(wrote, " and ") + " (left-out stocks are written as use max 0).")
+	msg := "Wrote " + strings.Join(wrote, " and ")
+	if len(kept) > 0 {
+		// the backup names come first: a narrow status line cuts the end
+		msg = "Old files kept as " + strings.Join(kept, " and ") + ". " + msg
+	}
+	m.info(msg + " (left-out stocks are written as use max 0).")
 	return nil
 }
 

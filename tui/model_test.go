@@ -7,6 +7,7 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+	"time"
 
 	tea "charm.land/bubbletea/v2"
 	"github.com/charmbracelet/x/ansi"
@@ -277,13 +278,39 @@ func TestWriteBack(t *testing.T) {
 	require.NoError(t, os.WriteFile(spec, files["laminating.toml"], 0o644))
 	d := newDriver(t, demoModel(t, "laminating", Files{StocksPath: stocks, SpecPath: spec}), 80, 24)
 	d.keys("2" + downs(stockIndex(t, d.m, "palm")) + "<enter><ctrl+u>999<enter>W")
-	assert.Contains(t, d.screen(), "Wrote")
+	assert.Contains(t, d.screen(), "Old files kept as")
 	cat, ps := catalogue.LoadStocks(stocks)
 	require.Empty(t, ps.Errors())
 	p, _ := cat.Find("palm")
 	assert.Equal(t, 999.0, p.Price)
 	_, ps = catalogue.LoadSpec(spec, cat)
 	require.Empty(t, ps.Errors())
+	// The files the user wrote (comments and all) are kept byte for byte
+	// beside the rewritten ones.
+	baks, err := filepath.Glob(stocks + ".*.bak")
+	require.NoError(t, err)
+	require.Len(t, baks, 1)
+	raw, err := os.ReadFile(baks[0])
+	require.NoError(t, err)
+	assert.Equal(t, files["stocks.toml"], raw)
+	baks, _ = filepath.Glob(spec + ".*.bak")
+	require.Len(t, baks, 1)
+	raw, _ = os.ReadFile(baks[0])
+	assert.Equal(t, files["laminating.toml"], raw)
+}
+
+// Writing back what is already on disk makes no backup.
+func TestReplaceKeepingBackupSkipsSameContent(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "f.toml")
+	require.NoError(t, os.WriteFile(path, []byte("a = 1\n"), 0o600))
+	bak, err := replaceKeepingBackup(path, []byte("a = 1\n"), time.Now())
+	require.NoError(t, err)
+	assert.Empty(t, bak)
+	bak, err = replaceKeepingBackup(path, []byte("a = 2\n"), time.Now())
+	require.NoError(t, err)
+	st, err := os.Stat(bak)
+	require.NoError(t, err)
+	assert.Equal(t, os.FileMode(0o600), st.Mode().Perm(), "the backup keeps the original's mode")
 }
 
 func TestQuitAsksWhileUnsaved(t *testing.T) {

@@ -2,11 +2,14 @@ package tui
 
 import (
 	"bytes"
+	"errors"
 	"fmt"
+	"io/fs"
 	"os"
 	"regexp"
 	"sort"
 	"strings"
+	"time"
 
 	"github.com/BurntSushi/toml"
 
@@ -182,18 +185,47 @@ func unwrapPathErr(err error) error {
 	return err
 }
 
-func writeStocksFile(path string, cat *catalogue.Catalogue) error {
+func writeStocksFile(path string, cat *catalogue.Catalogue, now time.Time) (backup string, err error) {
 	var b bytes.Buffer
 	if err := catalogue.WriteStocks(&b, cat); err != nil {
-		return err
+		return "", err
 	}
-	return catalogue.WriteFileAtomic(path, b.Bytes(), 0o644)
+	return replaceKeepingBackup(path, b.Bytes(), now)
 }
 
-func writeSpecFile(path string, spec *catalogue.Spec) error {
+func writeSpecFile(path string, spec *catalogue.Spec, now time.Time) (backup string, err error) {
 	var b bytes.Buffer
 	if err := catalogue.WriteSpec(&b, spec); err != nil {
-		return err
+		return "", err
 	}
-	return catalogue.WriteFileAtomic(path, b.Bytes(), 0o644)
+	return replaceKeepingBackup(path, b.Bytes(), now)
+}
+
+// replaceKeepingBackup writes data to path atomically. The file it replaces
+// (with the user's comments and layout, which the TOML writer cannot keep)
+// is first copied, also atomically, to a new backup beside it named by the
+// time, so nothing the user wrote is lost; backup is "" when path did not
+// exist or already held data.
+func replaceKeepingBackup(path string, data []byte, now time.Time) (backup string, err error) {
+	old, err := os.ReadFile(path)
+	switch {
+	case errors.Is(err, fs.ErrNotExist):
+	case err != nil:
+		return "", fmt.Errorf("reading %s before replacing it: %w", path, err)
+	case bytes.Equal(old, data):
+		return "", nil
+	default:
+		perm := fs.FileMode(0o644)
+		if st, err := os.Stat(path); err == nil {
+			perm = st.Mode().Perm()
+		}
+		backup = fmt.Sprintf("%s.%s.bak", path, now.UTC().Format("20060102T150405.000Z"))
+		if err := catalogue.WriteFileAtomic(backup, old, perm); err != nil {
+			return "", fmt.Errorf("keeping a backup of %s: %w", path, err)
+		}
+	}
+	if err := catalogue.WriteFileAtomic(path, data, 0o644); err != nil {
+		return "", err
+	}
+	return backup, nil
 }
