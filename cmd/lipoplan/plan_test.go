@@ -34,7 +34,7 @@ func TestPlanDemoJSON(t *testing.T) {
 	var got map[string]any
 	require.NoError(t, json.Unmarshal([]byte(out), &got))
 	// The keys of DESIGN section 4, exactly.
-	assert.Equal(t, []string{"products", "status", "stocks", "total_cost"}, keysOf(got))
+	assert.Equal(t, []string{"caution", "products", "status", "stocks", "total_cost"}, keysOf(got))
 	assert.Equal(t, "optimal", got["status"])
 	var total float64
 	for _, p := range got["products"].([]any) {

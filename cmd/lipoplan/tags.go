@@ -183,6 +183,7 @@ func (r tagReport) json() map[string]any {
 		hardened = []string{}
 	}
 	return map[string]any{
+		"caution":         cautionJSON,
 		"process":         string(r.dist.Method),
 		"degree":          r.dist.Degree,
 		"hardened":        hardened,
