@@ -35,6 +35,7 @@ type PlanResult struct {
 	Products   []PlanProduct
 	Stocks     []PlanStock
 	Relaxation []Relax // when Infeasible: "<spec>:<limit>" for a product impossible on its own, or "avail.<id>" (tonnes)
+	Notes      []string // what the plan leaves out, e.g. a spec's [process] step
 }
 
 // planLayout maps the joint programme.
@@ -87,6 +88,12 @@ func planIn(eng engine, pc *profileCache, cat *catalogue.Catalogue, orders *cata
 		return nil, err
 	}
 	res := &PlanResult{Engine: eng.name(), Currency: cat.Currency}
+	for p, o := range orders.Orders {
+		if o.Spec.Process != nil {
+			res.Notes = append(res.Notes, fmt.Sprintf("order %s: the spec's [process] step (interesterification) is not modelled by plan; "+
+				"its blend is of the stocks as they are, with SFC linear in their measured curves (use solve for the reactor)", pl.specs[p]))
+		}
+	}
 	sol, err := eng.solveLP(m)
 	if err != nil {
 		return nil, fmt.Errorf("optimise plan: %w", err)

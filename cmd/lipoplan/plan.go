@@ -103,10 +103,16 @@ func planJSON(r *optimise.PlanResult) map[string]any {
 	}
 	out["products"] = products
 	out["stocks"] = stocks
+	if len(r.Notes) > 0 {
+		out["notes"] = r.Notes
+	}
 	return out
 }
 
 func writePlanText(w io.Writer, r *optimise.PlanResult) {
+	for _, n := range r.Notes {
+		fmt.Fprintln(w, wrapText("Note: "+n, 100, "      "))
+	}
 	if r.Status != optimise.Optimal {
 		fmt.Fprintln(w, "The orders cannot all be met with these stocks.")
 		if len(r.Relaxation) > 0 {

@@ -98,3 +98,17 @@ func TestPlanBadOrders(t *testing.T) {
 	assert.Equal(t, 2, code)
 	assert.Contains(t, errs, "none.toml")
 }
+
+// plan does not model a reactor step; it says so instead of keeping quiet.
+func TestPlanNotesAnUnmodelledProcess(t *testing.T) {
+	spec, err := filepath.Abs("../../testdata/process-margarine.toml")
+	require.NoError(t, err)
+	orders := filepath.Join(t.TempDir(), "orders.toml")
+	require.NoError(t, os.WriteFile(orders, []byte("[[order]]\nspec = \""+spec+"\"\ntonnes = 50\n"), 0o644))
+	code, out, errs := run(t, "plan", "--orders", orders, "--format", "json")
+	require.Equal(t, 0, code, errs)
+	var got struct{ Notes []string }
+	require.NoError(t, json.Unmarshal([]byte(out), &got))
+	require.Len(t, got.Notes, 1)
+	assert.Contains(t, got.Notes[0], "[process] step")
+}
