@@ -34,7 +34,7 @@ type PlanResult struct {
 	TotalCost  float64
 	Products   []PlanProduct
 	Stocks     []PlanStock
-	Relaxation []Relax // when Infeasible: "<spec>:<limit>" for a product impossible on its own, or "avail.<id>" (tonnes)
+	Relaxation []Relax  // when Infeasible: "<spec>:<limit>" for a product impossible on its own, or "avail.<id>" (tonnes)
 	Notes      []string // what the plan leaves out, e.g. a spec's [process] step
 }
 
