@@ -262,3 +262,13 @@ func Temps(extra ...float64) []float64 {
 	sort.Float64s(out)
 	return out
 }
+
+// SpecTemps are the SFC temperatures a report on spec lists: the defaults
+// plus every temperature the spec limits (DESIGN section 4).
+func SpecTemps(spec *catalogue.Spec) []float64 {
+	extra := make([]float64, len(spec.SFC))
+	for i, l := range spec.SFC {
+		extra[i] = l.Temp
+	}
+	return Temps(extra...)
+}

@@ -697,16 +697,13 @@ func maxDiff(a, b []float64) float64 {
 	return d
 }
 
-// reportTemps are the SFC temperatures of the report (as report does).
+// reportTemps are the SFC temperatures of a report: opt.Temps, or the
+// defaults plus the spec's.
 func reportTemps(spec *catalogue.Spec, opt Options) []float64 {
 	if opt.Temps != nil {
 		return opt.Temps
 	}
-	extra := make([]float64, len(spec.SFC))
-	for i, s := range spec.SFC {
-		extra[i] = s.Temp
-	}
-	return blend.Temps(extra...)
+	return blend.SpecTemps(spec)
 }
 
 // infeasible reports an impossible process spec with the relaxation of the

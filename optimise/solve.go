@@ -169,15 +169,7 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 	sort.SliceStable(res.Blend, func(a, b int) bool { return res.Blend[a].Pct > res.Blend[b].Pct })
 	res.CostPerTonne = cost
 	res.BatchCost = cost * batch
-	temps := opt.Temps
-	if temps == nil {
-		extra := make([]float64, len(l.spec.SFC))
-		for i, s := range l.spec.SFC {
-			extra[i] = s.Temp
-		}
-		temps = blend.Temps(extra...)
-	}
-	props, err := l.mix(parts, idx, temps)
+	props, err := l.mix(parts, idx, reportTemps(l.spec, opt))
 	if err != nil {
 		return fmt.Errorf("optimise %s: properties of the blend: %w", specWhere(l.spec), err)
 	}

@@ -269,7 +269,7 @@ func (m *Model) blendPanel(w, h int) []string {
 		// the report temperatures: the defaults and the spec's, not the
 		// chart's whole 1 °C grid
 		var temps []float64
-		for _, t := range reportTemps(m.sc.Spec) {
+		for _, t := range blend.SpecTemps(m.sc.Spec) {
 			if _, ok := p.SFC[t]; ok {
 				temps = append(temps, t)
 			}
@@ -628,14 +628,4 @@ func (m *Model) rowDetail(w int, r Row) []string {
 		b = " enter edits the value, [ ] nudge"
 	}
 	return []string{st.head.Render(fit(" "+a, w)), st.muted.Render(fit(b, w))}
-}
-
-// reportTemps are the SFC temperatures a report lists: the defaults plus the
-// spec's own (DESIGN section 4).
-func reportTemps(spec *catalogue.Spec) []float64 {
-	extra := make([]float64, len(spec.SFC))
-	for i, l := range spec.SFC {
-		extra[i] = l.Temp
-	}
-	return blend.Temps(extra...)
 }

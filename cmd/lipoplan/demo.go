@@ -100,7 +100,7 @@ func (a *app) writeDemo(dir string) error {
 func (a *app) demoSolve(cat *catalogue.Catalogue) error {
 	infeasible := false
 	for i, spec := range catalogue.DemoSpecs() {
-		ts := specTemps(spec)
+		ts := blend.SpecTemps(spec)
 		res, err := optimise.Solve(cat, spec, optimise.Options{Temps: ts})
 		if err != nil {
 			return fmt.Errorf("demo spec %q: %w", spec.Name, err)

@@ -134,13 +134,3 @@ func dedupe(ts []float64) []float64 {
 	}
 	return out
 }
-
-// specTemps is the default SFC report temperatures plus every temperature
-// the spec limits (DESIGN section 4).
-func specTemps(spec *catalogue.Spec) []float64 {
-	extra := make([]float64, len(spec.SFC))
-	for i, l := range spec.SFC {
-		extra[i] = l.Temp
-	}
-	return blend.Temps(extra...)
-}

@@ -8,6 +8,7 @@ import (
 	"strconv"
 	"strings"
 
+	"lipoplan/blend"
 	"lipoplan/catalogue"
 	"lipoplan/optimise"
 )
@@ -42,7 +43,7 @@ func (a *app) solve(args []string) error {
 		return err
 	}
 	if ts == nil {
-		ts = specTemps(spec)
+		ts = blend.SpecTemps(spec)
 	}
 	if *mps != "" {
 		if err := optimise.WriteMPS(*mps, cat, spec); err != nil {

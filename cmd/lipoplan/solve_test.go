@@ -16,6 +16,7 @@ import (
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
+	"lipoplan/blend"
 	"lipoplan/catalogue"
 	"lipoplan/optimise"
 )
@@ -250,7 +251,7 @@ func TestSolveSVG(t *testing.T) {
 	require.NoError(t, err)
 	svg := string(raw)
 	spec := catalogue.DemoSpecs()[0]
-	assert.Equal(t, len(specTemps(spec)), strings.Count(svg, "<circle"), "one point per report temperature")
+	assert.Equal(t, len(blend.SpecTemps(spec)), strings.Count(svg, "<circle"), "one point per report temperature")
 	assert.Equal(t, len(spec.SFC), strings.Count(svg, "fill-opacity"), "one band per SFC limit")
 	assert.True(t, strings.HasSuffix(svg, "</svg>\n"))
 }

@@ -9,6 +9,7 @@ import (
 	"strconv"
 	"strings"
 
+	"lipoplan/blend"
 	"lipoplan/catalogue"
 	"lipoplan/optimise"
 )
@@ -41,7 +42,7 @@ func (a *app) sweep(args []string) error {
 	if err != nil {
 		return err
 	}
-	r, err := optimise.Sweep(cat, spec, id, from, to, steps, optimise.Options{Temps: specTemps(spec)})
+	r, err := optimise.Sweep(cat, spec, id, from, to, steps, optimise.Options{Temps: blend.SpecTemps(spec)})
 	if err != nil {
 		return err
 	}
