@@ -142,24 +142,7 @@ func (m *Model) sfcPanel(w, h int) []string {
 		}
 	}
 	plot(c, pred, cellPred)
-	// blend curve, joined with vertical strokes where it falls steeply
-	prev := -1
-	for x := 0; x < c.w; x++ {
-		t := lo + float64(x)/float64(max(1, c.w-1))*(hi-lo)
-		v, ok := interp(pts, t)
-		if !ok {
-			prev = -1
-			continue
-		}
-		y := c.row(v)
-		c.set(x, y, cellCurve)
-		if prev >= 0 {
-			for yy := min(prev, y) + 1; yy < max(prev, y); yy++ {
-				c.set(x, yy, cellCurve)
-			}
-		}
-		prev = y
-	}
+	plot(c, pts, cellCurve) // the blend, drawn over the prediction
 	for _, l := range spec.SFC {
 		if v, ok := interp(pts, l.Temp); ok {
 			k := cellOut
@@ -225,11 +208,9 @@ func (m *Model) sfcPanel(w, h int) []string {
 	return out
 }
 
-// plot draws a curve on the canvas, joined with vertical strokes.
+// plot draws a curve on the canvas, joined with vertical strokes where it
+// falls steeply.
 func plot(c *sfcChart, pts []catalogue.Point, k cellKind) {
-	if len(pts) == 0 {
-		return
-	}
 	prev := -1
 	for x := 0; x < c.w; x++ {
 		t := c.lo + float64(x)/float64(max(1, c.w-1))*(c.hi-c.lo)

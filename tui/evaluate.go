@@ -93,7 +93,8 @@ func Evaluate(sc *Scenario, rev int) (snap *Snapshot) {
 	// The solve reports SFC on the chart's 1 °C grid (plus the spec's own
 	// temperatures), so the chart shows exactly what the optimiser saw,
 	// including a reactor step's predicted SFC.
-	res, err := optimise.Solve(cat, spec, optimise.Options{Temps: gridTemps(spec, lo, hi)})
+	grid := gridTemps(spec, lo, hi)
+	res, err := optimise.Solve(cat, spec, optimise.Options{Temps: grid})
 	if err != nil {
 		snap.Err = err
 		return snap
@@ -104,7 +105,7 @@ func Evaluate(sc *Scenario, rev int) (snap *Snapshot) {
 	}
 	parts := blendParts(cat, res)
 	snap.Curve, snap.CurveGaps = resultCurve(res)
-	snap.TAG = tagView(parts, lo, hi)
+	snap.TAG = tagView(parts, grid)
 	return snap
 }
 
@@ -150,11 +151,15 @@ func gridTemps(spec *catalogue.Spec, lo, hi float64) []float64 {
 // resultCurve is the optimal blend's SFC as the solve reported it, sorted by
 // temperature, with the temperatures it could not report.
 func resultCurve(res *optimise.Result) ([]catalogue.Point, map[float64][]string) {
-	p := res.Properties
-	out := make([]catalogue.Point, 0, len(p.SFC))
-	for t, v := range p.SFC {
+	return pointsOf(res.Properties.SFC), res.Properties.SFCMissing
+}
+
+// pointsOf turns SFC values by temperature into a curve sorted by temperature.
+func pointsOf(vals map[float64]float64) []catalogue.Point {
+	out := make([]catalogue.Point, 0, len(vals))
+	for t, v := range vals {
 		out = append(out, catalogue.Point{Temp: t, Solid: v})
 	}
 	sort.Slice(out, func(i, j int) bool { return out[i].Temp < out[j].Temp })
-	return out, p.SFCMissing
+	return out
 }

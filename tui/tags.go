@@ -2,7 +2,6 @@ package tui
 
 import (
 	"fmt"
-	"sort"
 
 	"lipoplan/blend"
 	"lipoplan/blend/sle"
@@ -33,14 +32,10 @@ type TAGView struct {
 // topSpecies is how many species (positional isomers merged) each column keeps.
 const topSpecies = 6
 
-// tagView distributes the blend three ways and predicts each one's SFC from
-// lo to hi °C. Each method fails on its own (e.g. an acid with no letter
-// code) without hiding the others.
-func tagView(parts []blend.Part, lo, hi float64) TAGView {
-	var temps []float64
-	for t := lo; t <= hi+1e-9; t++ {
-		temps = append(temps, t)
-	}
+// tagView distributes the blend three ways and predicts each one's SFC at
+// temps (the chart's grid). Each method fails on its own (e.g. an acid with
+// no letter code) without hiding the others.
+func tagView(parts []blend.Part, temps []float64) TAGView {
 	var v TAGView
 	for _, m := range []randomise.Method{randomise.Native, randomise.Chemical, randomise.Enzymatic} {
 		c := TAGColumn{Method: m}
@@ -66,12 +61,7 @@ func predicted(d *randomise.Distribution, temps []float64) ([]catalogue.Point, e
 	if err != nil {
 		return nil, err
 	}
-	out := make([]catalogue.Point, 0, len(vals))
-	for t, v := range vals {
-		out = append(out, catalogue.Point{Temp: t, Solid: v})
-	}
-	sort.Slice(out, func(i, j int) bool { return out[i].Temp < out[j].Temp })
-	return out, nil
+	return pointsOf(vals), nil
 }
 
 // Column returns the column of method m.
