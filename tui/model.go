@@ -661,14 +661,8 @@ func (m *Model) undoEdit() tea.Cmd {
 		m.info("Nothing to undo.")
 		return nil
 	}
-	m.redo = append(m.redo, m.sc)
-	m.sc = m.undo[len(m.undo)-1]
-	m.undo = m.undo[:len(m.undo)-1]
-	m.rev++
-	m.dirty = true
-	m.move(0)
+	m.step(&m.undo, &m.redo)
 	m.info(fmt.Sprintf("Undone (%d more to undo).", len(m.undo)))
-	m.editNote = true
 	return m.evaluate()
 }
 
@@ -677,15 +671,21 @@ func (m *Model) redoEdit() tea.Cmd {
 		m.info("Nothing to redo.")
 		return nil
 	}
-	m.undo = append(m.undo, m.sc)
-	m.sc = m.redo[len(m.redo)-1]
-	m.redo = m.redo[:len(m.redo)-1]
+	m.step(&m.redo, &m.undo)
+	m.info("Redone.")
+	return m.evaluate()
+}
+
+// step makes the last scenario of from current, pushing the current one on
+// to: undo and redo are the same move in opposite directions.
+func (m *Model) step(from, to *[]*Scenario) {
+	*to = append(*to, m.sc)
+	m.sc = (*from)[len(*from)-1]
+	*from = (*from)[:len(*from)-1]
 	m.rev++
 	m.dirty = true
 	m.move(0)
-	m.info("Redone.")
 	m.editNote = true
-	return m.evaluate()
 }
 
 func (m *Model) save(name string) tea.Cmd {
