@@ -661,8 +661,7 @@ func (m *Model) undoEdit() tea.Cmd {
 		m.info("Nothing to undo.")
 		return nil
 	}
-	m.step(&m.undo, &m.redo)
-	m.info(fmt.Sprintf("Undone (%d more to undo).", len(m.undo)))
+	m.step(&m.undo, &m.redo, fmt.Sprintf("Undone (%d more to undo).", len(m.undo)-1))
 	return m.evaluate()
 }
 
@@ -671,20 +670,21 @@ func (m *Model) redoEdit() tea.Cmd {
 		m.info("Nothing to redo.")
 		return nil
 	}
-	m.step(&m.redo, &m.undo)
-	m.info("Redone.")
+	m.step(&m.redo, &m.undo, "Redone.")
 	return m.evaluate()
 }
 
 // step makes the last scenario of from current, pushing the current one on
-// to: undo and redo are the same move in opposite directions.
-func (m *Model) step(from, to *[]*Scenario) {
+// to (undo and redo are the same move in opposite directions), and says
+// note; the note is then costed when the re-solve lands.
+func (m *Model) step(from, to *[]*Scenario, note string) {
 	*to = append(*to, m.sc)
 	m.sc = (*from)[len(*from)-1]
 	*from = (*from)[:len(*from)-1]
 	m.rev++
 	m.dirty = true
 	m.move(0)
+	m.info(note)
 	m.editNote = true
 }
 
