@@ -144,12 +144,29 @@ type Part struct {
 }
 
 // Mix computes the properties of a physical mix. Shares are % by mass and need
-// not sum to 100: they are normalised. The FA profile is mass-weighted; IV,
-// SAFA, MUFA, PUFA, trans and Cox follow linearly from it. SV is the
-// mass-weighted SV of the stocks (moles of ester per gram are additive by
-// mass), so it matches what an LP sees. SFC is evaluated at temps by linear
-// weighting of measured curves.
+// not sum to 100: they are normalised. Every property but the SFC is linear in
+// mass share (the FA profile, IV, SAFA, MUFA, PUFA, trans, omega-3 and Cox by
+// the mass balance of the FAME profile; SV because moles of ester per gram
+// are additive by mass), so each is the mass-weighted sum of the stocks'
+// own values, which is what an LP row sees. SFC is evaluated at temps by
+// linear weighting of measured curves.
 func Mix(parts []Part, temps []float64) (Properties, error) {
+	profiles := make([]*Properties, len(parts))
+	for k, pt := range parts {
+		p := Profile(pt.Stock.FattyAcids)
+		profiles[k] = &p
+	}
+	return MixProfiles(parts, profiles, temps)
+}
+
+// MixProfiles is Mix for stocks whose profiles are already known:
+// profiles[k] must be Profile(parts[k].Stock.FattyAcids). It lets a caller
+// that profiled its stocks once (the optimiser) report a blend without
+// profiling them again.
+func MixProfiles(parts []Part, profiles []*Properties, temps []float64) (Properties, error) {
+	if len(profiles) != len(parts) {
+		return Properties{}, fmt.Errorf("mix: %d profiles for %d stocks", len(profiles), len(parts))
+	}
 	var total float64
 	for _, pt := range parts {
 		if pt.Pct < 0 || math.IsNaN(pt.Pct) || math.IsInf(pt.Pct, 0) {
@@ -160,22 +177,32 @@ func Mix(parts []Part, temps []float64) (Properties, error) {
 	if total <= 0 {
 		return Properties{}, fmt.Errorf("mix has no stock with a share above zero")
 	}
-	fa := map[string]float64{}
-	var sv float64
-	for _, pt := range parts {
+	out := Properties{FattyAcids: map[string]float64{}}
+	for k, pt := range parts {
 		w := pt.Pct / total
-		for k, v := range pt.Stock.FattyAcids {
-			fa[k] += w * v
+		p := profiles[k]
+		for key, v := range p.FattyAcids {
+			out.FattyAcids[key] += w * v
 		}
-		sv += w * Profile(pt.Stock.FattyAcids).SV
+		out.IV += w * p.IV
+		out.SV += w * p.SV
+		out.SAFA += w * p.SAFA
+		out.MUFA += w * p.MUFA
+		out.PUFA += w * p.PUFA
+		out.Trans += w * p.Trans
+		out.Omega3 += w * p.Omega3
+		out.Cox += w * p.Cox
 	}
-	p := Profile(fa)
-	p.SV = sv
-	if p.SV > 0 {
-		p.MeanMolarMass = 3 * kohMilligramsPerMole / p.SV
+	for key, v := range out.FattyAcids {
+		if v == 0 {
+			delete(out.FattyAcids, key) // as Profile: zero weights are left out
+		}
 	}
-	p.SFC, p.SFCMissing = SFC(parts, temps)
-	return p, nil
+	if out.SV > 0 {
+		out.MeanMolarMass = 3 * kohMilligramsPerMole / out.SV
+	}
+	out.SFC, out.SFCMissing = SFC(parts, temps)
+	return out, nil
 }
 
 // SFC weights measured curves linearly by mass share (the usual first estimate;
