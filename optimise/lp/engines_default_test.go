@@ -1,0 +1,8 @@
+//go:build !coin
+
+package lp_test
+
+import "lipoplan/optimise/lp"
+
+// coinEngines are the COIN-OR engines of the coin build; none here.
+func coinEngines() []lp.Engine { return nil }

@@ -1,0 +1,299 @@
+package lp
+
+import "math"
+
+// factor is a sparse LU factorisation of a basis matrix B (m x m) with a
+// product-form update file.
+//
+// Factorisation. Gaussian elimination column by column (the left-looking
+// form, Gilbert & Peierls, SIAM J. Sci. Stat. Comput. 9 (1988) 862), the
+// columns taken in order of increasing count of nonzeros so that the slack
+// (logical) columns and other singletons come first and cost nothing, and
+// the remaining "nucleus" is what is really eliminated (Maros 2003,
+// Computational Techniques of the Simplex Method, ch. 8 on the LU
+// factorisation of the basis). Each column's pivot row is chosen by
+// threshold partial pivoting: among the rows not yet pivoted whose entry is
+// at least luThreshold times the largest, the one with the fewest nonzeros
+// in the basis (a Markowitz-type count; Suhl & Suhl, ORSA J. Computing 2
+// (1990) 325, on threshold pivoting in simplex bases).
+//
+// Step t pivots basis position pcol[t] on row prow[t]. With B̃ = B·Q (the
+// columns in step order) B̃ = L̃·Ũ: L̃ has a unit entry at (prow[t], t) and
+// multipliers in rows pivoted later; Ũ is upper triangular in steps. L̃'s
+// columns are stored by step (rows, multipliers), Ũ's by step (earlier
+// steps, values) with the diagonal apart.
+//
+// Updates. After a basis change at position r with entering column
+// α = B⁻¹a_q, B' = B·E with E = I + (α - e_r)e_rᵀ, so B'⁻¹ = E⁻¹B⁻¹: each
+// update appends one eta column (α, r) that FTRAN applies after the LU
+// solve and BTRAN before it, in reverse (the product form of the inverse,
+// Dantzig & Orchard-Hays, Math. Tables Aids Comput. 8 (1954) 64; Maros
+// 2003, ch. 8). The basis is factorised afresh after maxEtas updates or
+// when the eta file outgrows the factors.
+type factor struct {
+	m                  int
+	prow, pcol         []int
+	rowStep            []int // step of each row, -1 before it is pivoted
+	diag               []float64
+	lStart, lIdx       []int
+	lVal               []float64
+	lSteps             []int // steps whose L̃ column has multipliers, in order
+	uStart, uIdx       []int
+	uVal               []float64
+	nnz                int // nonzeros of L̃ and Ũ (off the diagonal)
+	eStart, eIdx, ePos []int
+	eVal, ePiv         []float64
+	work               []float64
+	// factorisation scratch
+	count, order, touched, rc []int
+	mark                      []bool
+}
+
+// Tolerances of the factorisation (Maros 2003, ch. 8, recommends a
+// threshold between 0.01 and 0.1; the bases here are small, so stability
+// comes first).
+const (
+	luThreshold = 0.1   // relative partial-pivoting threshold
+	luSingular  = 1e-11 // a column whose largest remaining entry is below this (relative) is dependent
+	luDrop      = 1e-14 // entries below this (absolute, the matrix is scaled) are dropped
+	maxEtas     = 64    // updates before a fresh factorisation
+)
+
+// factorize computes the LU factors of the m x m matrix whose column p is
+// given in compressed sparse column form (bStart, bIdx, bVal). It returns
+// the positions whose columns turned out linearly dependent on the others
+// and the rows left without a pivot (equally many). When any column is
+// dependent the factors are incomplete: the caller repairs the basis (a
+// row's logical for each dependent column) and factorises again.
+func (f *factor) factorize(m int, bStart, bIdx []int, bVal []float64) (bad, freeRows []int) {
+	f.m = m
+	f.prow = resize(f.prow, m)
+	f.pcol = resize(f.pcol, m)
+	f.rowStep = resize(f.rowStep, m)
+	f.diag = resize(f.diag, m)
+	f.lStart = resize(f.lStart, m+1)[:1]
+	f.uStart = resize(f.uStart, m+1)[:1]
+	f.lStart[0], f.uStart[0] = 0, 0
+	f.lIdx, f.lVal, f.uIdx, f.uVal = f.lIdx[:0], f.lVal[:0], f.uIdx[:0], f.uVal[:0]
+	f.lSteps = f.lSteps[:0]
+	if cap(f.eIdx) < 8*m {
+		f.eIdx, f.eVal = make([]int, 0, 8*m), make([]float64, 0, 8*m)
+		f.eStart, f.ePos, f.ePiv = make([]int, 0, maxEtas+1), make([]int, 0, maxEtas), make([]float64, 0, maxEtas)
+	}
+	f.eStart = append(f.eStart[:0], 0)
+	f.eIdx, f.eVal, f.ePos, f.ePiv = f.eIdx[:0], f.eVal[:0], f.ePos[:0], f.ePiv[:0]
+	f.work = resize(f.work, m)
+	f.mark = resize(f.mark, m)
+	clear(f.work)
+	clear(f.mark)
+
+	// Row counts, and the column order by count (a counting sort, so
+	// stable: equal counts keep position order).
+	f.rc = resize(f.rc, m)
+	clear(f.rc)
+	for _, i := range bIdx[:bStart[m]] {
+		f.rc[i]++
+	}
+	f.count = resize(f.count, m+2)
+	clear(f.count)
+	for p := 0; p < m; p++ {
+		f.count[min(bStart[p+1]-bStart[p], m)+1]++
+	}
+	for c := 1; c <= m+1; c++ {
+		f.count[c] += f.count[c-1]
+	}
+	f.order = resize(f.order, m)
+	for p := 0; p < m; p++ {
+		c := min(bStart[p+1]-bStart[p], m)
+		f.order[f.count[c]] = p
+		f.count[c]++
+	}
+	rc := f.rc
+	for i := range f.rowStep {
+		f.rowStep[i] = -1
+	}
+	touched := f.touched[:0]
+	w, mark := f.work, f.mark
+	steps := 0
+	f.nnz = 0
+	for _, p := range f.order {
+		touched = touched[:0]
+		colMax := 0.0
+		for k := bStart[p]; k < bStart[p+1]; k++ {
+			i := bIdx[k]
+			w[i] = bVal[k]
+			mark[i] = true
+			touched = append(touched, i)
+			colMax = max(colMax, math.Abs(bVal[k]))
+		}
+		for _, t := range f.lSteps {
+			v := w[f.prow[t]]
+			if v == 0 {
+				continue
+			}
+			for k := f.lStart[t]; k < f.lStart[t+1]; k++ {
+				i := f.lIdx[k]
+				if !mark[i] {
+					mark[i] = true
+					touched = append(touched, i)
+				}
+				w[i] -= f.lVal[k] * v
+			}
+		}
+		big := 0.0
+		for _, i := range touched {
+			if f.rowStep[i] < 0 {
+				big = max(big, math.Abs(w[i]))
+			}
+		}
+		if big <= luSingular*max(1, colMax) {
+			bad = append(bad, p)
+			for _, i := range touched {
+				w[i], mark[i] = 0, false
+			}
+			continue
+		}
+		piv, pivCount, pivAbs := -1, 0, 0.0
+		for _, i := range touched {
+			if f.rowStep[i] >= 0 {
+				continue
+			}
+			a := math.Abs(w[i])
+			if a < luThreshold*big {
+				continue
+			}
+			if piv < 0 || rc[i] < pivCount || rc[i] == pivCount && (a > pivAbs || a == pivAbs && i < piv) {
+				piv, pivCount, pivAbs = i, rc[i], a
+			}
+		}
+		t := steps
+		steps++
+		d := w[piv]
+		f.prow[t], f.pcol[t], f.diag[t] = piv, p, d
+		f.rowStep[piv] = t
+		for _, i := range touched {
+			v := w[i]
+			w[i], mark[i] = 0, false
+			if i == piv || math.Abs(v) <= luDrop {
+				continue
+			}
+			if s := f.rowStep[i]; s >= 0 {
+				f.uIdx = append(f.uIdx, s)
+				f.uVal = append(f.uVal, v)
+			} else {
+				f.lIdx = append(f.lIdx, i)
+				f.lVal = append(f.lVal, v/d)
+			}
+		}
+		f.uStart = append(f.uStart, len(f.uIdx))
+		if len(f.lIdx) > f.lStart[t] {
+			f.lSteps = append(f.lSteps, t)
+		}
+		f.lStart = append(f.lStart, len(f.lIdx))
+	}
+	f.touched = touched
+	f.nnz = len(f.lIdx) + len(f.uIdx)
+	if len(bad) > 0 {
+		for i, s := range f.rowStep {
+			if s < 0 {
+				freeRows = append(freeRows, i)
+			}
+		}
+	}
+	return bad, freeRows
+}
+
+// ftran solves B z = a. a is indexed by row and is overwritten; z, indexed
+// by basis position, receives the solution.
+func (f *factor) ftran(a, z []float64) {
+	for _, t := range f.lSteps {
+		v := a[f.prow[t]]
+		if v == 0 {
+			continue
+		}
+		for k := f.lStart[t]; k < f.lStart[t+1]; k++ {
+			a[f.lIdx[k]] -= f.lVal[k] * v
+		}
+	}
+	y := f.work
+	for t := 0; t < f.m; t++ {
+		y[t] = a[f.prow[t]]
+	}
+	for t := f.m - 1; t >= 0; t-- {
+		v := y[t]
+		if v == 0 {
+			continue
+		}
+		v /= f.diag[t]
+		y[t] = v
+		for k := f.uStart[t]; k < f.uStart[t+1]; k++ {
+			y[f.uIdx[k]] -= f.uVal[k] * v
+		}
+	}
+	for t := 0; t < f.m; t++ {
+		z[f.pcol[t]] = y[t]
+	}
+	for e, r := range f.ePos {
+		v := z[r]
+		if v == 0 {
+			continue
+		}
+		v /= f.ePiv[e]
+		z[r] = v
+		for k := f.eStart[e]; k < f.eStart[e+1]; k++ {
+			z[f.eIdx[k]] -= f.eVal[k] * v
+		}
+	}
+}
+
+// btran solves Bᵀ π = e. e is indexed by basis position and is
+// overwritten; π, indexed by row, receives the solution.
+func (f *factor) btran(e, pi []float64) {
+	for k := len(f.ePos) - 1; k >= 0; k-- {
+		r := f.ePos[k]
+		s := e[r]
+		for q := f.eStart[k]; q < f.eStart[k+1]; q++ {
+			s -= f.eVal[q] * e[f.eIdx[q]]
+		}
+		e[r] = s / f.ePiv[k]
+	}
+	y := f.work
+	for t := 0; t < f.m; t++ {
+		s := e[f.pcol[t]]
+		for k := f.uStart[t]; k < f.uStart[t+1]; k++ {
+			s -= f.uVal[k] * y[f.uIdx[k]]
+		}
+		y[t] = s / f.diag[t]
+	}
+	for t := f.m - 1; t >= 0; t-- {
+		s := y[t]
+		for k := f.lStart[t]; k < f.lStart[t+1]; k++ {
+			s -= f.lVal[k] * pi[f.lIdx[k]]
+		}
+		pi[f.prow[t]] = s
+	}
+}
+
+// update records the basis change at position r whose entering column is
+// alpha = B⁻¹a_q (indexed by position).
+func (f *factor) update(r int, alpha []float64) {
+	f.ePos = append(f.ePos, r)
+	f.ePiv = append(f.ePiv, alpha[r])
+	for i, v := range alpha {
+		if i != r && math.Abs(v) > luDrop {
+			f.eIdx = append(f.eIdx, i)
+			f.eVal = append(f.eVal, v)
+		}
+	}
+	f.eStart = append(f.eStart, len(f.eIdx))
+}
+
+// updates is the number of updates since the last factorisation.
+func (f *factor) updates() int { return len(f.ePos) }
+
+// due reports whether the basis should be factorised afresh: after maxEtas
+// updates, or once the eta file holds several times the nonzeros of the
+// factors (solves then cost more than a new factorisation saves).
+func (f *factor) due() bool {
+	return len(f.ePos) >= maxEtas || len(f.eIdx) > max(8*(f.nnz+f.m), 32*f.m)
+}

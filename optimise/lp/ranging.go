@@ -1,0 +1,251 @@
+package lp
+
+import (
+	"errors"
+	"fmt"
+	"math"
+)
+
+// ErrBasis is wrapped when a basis does not have one basic variable per
+// row or its matrix is singular.
+var ErrBasis = errors.New("basis is not square and nonsingular")
+
+// basisLU factorises the basis matrix of a basis of p as given (unscaled):
+// the basic columns of [A -I].
+type basisLU struct {
+	p          *Problem
+	head       []int // basic variable at each position
+	pos        []int // position of each variable, -1 when nonbasic
+	f          factor
+	start, idx []int
+	val        []float64
+}
+
+func newBasisLU(p *Problem, basis []VarStatus) (*basisLU, error) {
+	n, m := p.Cols, p.Rows
+	if len(basis) != n+m {
+		return nil, fmt.Errorf("%w: %d statuses for %d columns and %d rows", ErrBasis, len(basis), n, m)
+	}
+	b := &basisLU{p: p, pos: make([]int, n+m)}
+	for k, st := range basis {
+		b.pos[k] = -1
+		if st == Basic {
+			b.pos[k] = len(b.head)
+			b.head = append(b.head, k)
+		}
+	}
+	if len(b.head) != m {
+		return nil, fmt.Errorf("%w: %d basic variables for %d rows", ErrBasis, len(b.head), m)
+	}
+	b.start = make([]int, m+1)
+	for r, k := range b.head {
+		b.start[r] = len(b.idx)
+		if k >= n {
+			b.idx = append(b.idx, k-n)
+			b.val = append(b.val, -1)
+			continue
+		}
+		b.idx = append(b.idx, p.Index[p.Start[k]:p.Start[k+1]]...)
+		b.val = append(b.val, p.Value[p.Start[k]:p.Start[k+1]]...)
+	}
+	b.start[m] = len(b.idx)
+	if bad, _ := b.f.factorize(m, b.start, b.idx, b.val); len(bad) > 0 {
+		return nil, fmt.Errorf("%w: %d dependent basic columns", ErrBasis, len(bad))
+	}
+	return b, nil
+}
+
+// solve returns z with B z = rhs (rhs by row, not modified; z by position).
+func (b *basisLU) solve(rhs []float64) []float64 {
+	a := append([]float64(nil), rhs...)
+	z := make([]float64, len(rhs))
+	b.f.ftran(a, z)
+	return z
+}
+
+// solveT returns y with Bᵀ y = rhs (rhs by position, not modified; y by row).
+func (b *basisLU) solveT(rhs []float64) []float64 {
+	e := append([]float64(nil), rhs...)
+	y := make([]float64, len(rhs))
+	b.f.btran(e, y)
+	return y
+}
+
+// column writes variable k's column of [A -I] into w (by row, cleared first).
+func (b *basisLU) column(k int, w []float64) {
+	clear(w)
+	p := b.p
+	if k >= p.Cols {
+		w[k-p.Cols] = -1
+		return
+	}
+	for q := p.Start[k]; q < p.Start[k+1]; q++ {
+		w[p.Index[q]] = p.Value[q]
+	}
+}
+
+// Ranging is sensitivity analysis on an optimal basis: over which changes
+// of one cost, or of one row or column bound, the basis stays optimal.
+// These are the textbook ratio tests on the final tableau (Chvátal 1983,
+// Linear Programming, ch. 10 on sensitivity analysis; Bazaraa, Jarvis &
+// Sherali, Linear Programming and Network Flows, on cost and right-hand
+// side ranging), on the computational form with bounded variables.
+type Ranging struct {
+	p      *Problem
+	sol    *Solution
+	b      *basisLU
+	w, rho []float64
+	row    []float64
+}
+
+// NewRanging prepares ranging for an optimal solution of p that has a
+// basis.
+func NewRanging(p *Problem, sol *Solution) (*Ranging, error) {
+	if sol == nil || sol.Status != Optimal || sol.Basis == nil {
+		return nil, fmt.Errorf("%w: no optimal basis to range", ErrBasis)
+	}
+	b, err := newBasisLU(p, sol.Basis)
+	if err != nil {
+		return nil, err
+	}
+	m := p.Rows
+	return &Ranging{p: p, sol: sol, b: b, w: make([]float64, m), rho: make([]float64, m), row: make([]float64, p.Cols+m)}, nil
+}
+
+// reduced is the reduced cost of variable k (a row logical's is its dual).
+func (g *Ranging) reduced(k int) float64 {
+	if k >= g.p.Cols {
+		return g.sol.Y[k-g.p.Cols]
+	}
+	return g.sol.D[k]
+}
+
+// CostRange is the interval [lo, hi] of changes δ to column j's cost over
+// which the basis stays optimal (±Inf when unlimited). A nonbasic column
+// at its lower bound stays out while d_j + δ >= 0, at its upper bound
+// while d_j + δ <= 0. For a basic column at position p every nonbasic k
+// must keep the sign of d_k - δ·α_pk, α_p = e_pᵀB⁻¹[A -I].
+func (g *Ranging) CostRange(j int) (lo, hi float64) {
+	const eps = 1e-9
+	lo, hi = math.Inf(-1), math.Inf(1)
+	switch g.sol.Basis[j] {
+	case AtLower:
+		return -g.sol.D[j], hi
+	case AtUpper:
+		return lo, -g.sol.D[j]
+	case Fixed:
+		return lo, hi
+	case Free:
+		return 0, 0
+	}
+	clear(g.w)
+	g.w[g.b.pos[j]] = 1
+	g.b.f.btran(g.w, g.rho)
+	p := g.p
+	for k, st := range g.sol.Basis {
+		if st == Basic || st == Fixed {
+			continue
+		}
+		var a float64
+		if k >= p.Cols {
+			a = -g.rho[k-p.Cols]
+		} else {
+			for q := p.Start[k]; q < p.Start[k+1]; q++ {
+				a += g.rho[p.Index[q]] * p.Value[q]
+			}
+		}
+		if math.Abs(a) <= eps {
+			continue
+		}
+		ratio := g.reduced(k) / a
+		switch st {
+		case AtLower: // need d_k - δa >= 0
+			if a > 0 {
+				hi = min(hi, ratio)
+			} else {
+				lo = max(lo, ratio)
+			}
+		case AtUpper: // need d_k - δa <= 0
+			if a > 0 {
+				lo = max(lo, ratio)
+			} else {
+				hi = min(hi, ratio)
+			}
+		case Free: // need d_k - δa = 0
+			lo, hi = max(lo, 0), min(hi, 0)
+		}
+	}
+	// A degenerate basis can hand a tiny wrong-signed ratio; never exclude
+	// the current cost itself.
+	return min(lo, 0), max(hi, 0)
+}
+
+// RowBoundRange is the interval of values of row i's lower bound (upper
+// false) or upper bound (upper true) over which the basis stays optimal,
+// so that the row's dual Y[i] prices every change within it. When the
+// row sits at that bound (its logical nonbasic there, or fixed), moving
+// it moves the basic variables along B⁻¹e_i and the interval ends where
+// the first of them reaches a bound (the right-hand-side ranging ratio
+// test). When the bound is not the one the row sits at, it is free to
+// move away from the activity: [-Inf, activity] for a lower bound,
+// [activity, +Inf] for an upper bound.
+func (g *Ranging) RowBoundRange(i int, upper bool) (lo, hi float64) {
+	return g.boundRange(g.p.Cols+i, upper, g.sol.RowAct[i], g.p.RowLo[i], g.p.RowUp[i])
+}
+
+// ColBoundRange is RowBoundRange for column j's bounds.
+func (g *Ranging) ColBoundRange(j int, upper bool) (lo, hi float64) {
+	return g.boundRange(j, upper, g.sol.X[j], g.p.ColLo[j], g.p.ColUp[j])
+}
+
+func (g *Ranging) boundRange(k int, upper bool, v, blo, bup float64) (lo, hi float64) {
+	st := g.sol.Basis[k]
+	active := st == Fixed || upper && st == AtUpper || !upper && st == AtLower
+	if !active {
+		if upper {
+			return v, math.Inf(1)
+		}
+		return math.Inf(-1), v
+	}
+	cur := blo
+	if upper {
+		cur = bup
+	}
+	// Raising the nonbasic variable k by t changes x_B by -t·B⁻¹a_k.
+	g.b.column(k, g.w)
+	z := g.b.solve(g.w)
+	tlo, thi := math.Inf(-1), math.Inf(1)
+	p := g.p
+	for r, kb := range g.b.head {
+		a := z[r]
+		if math.Abs(a) <= 1e-12 {
+			continue
+		}
+		var x, l, u float64
+		if kb >= p.Cols {
+			x, l, u = g.sol.RowAct[kb-p.Cols], p.RowLo[kb-p.Cols], p.RowUp[kb-p.Cols]
+		} else {
+			x, l, u = g.sol.X[kb], p.ColLo[kb], p.ColUp[kb]
+		}
+		// x - t·a within [l, u]
+		if a > 0 {
+			thi = min(thi, (x-l)/a)
+			tlo = max(tlo, (x-u)/a)
+		} else {
+			thi = min(thi, (x-u)/a)
+			tlo = max(tlo, (x-l)/a)
+		}
+	}
+	tlo, thi = min(tlo, 0), max(thi, 0)
+	lo, hi = cur+tlo, cur+thi
+	// The other bound caps the move unless the variable is fixed (both
+	// bounds move together then).
+	if st != Fixed {
+		if upper {
+			lo = max(lo, blo)
+		} else {
+			hi = min(hi, bup)
+		}
+	}
+	return lo, hi
+}

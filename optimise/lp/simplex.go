@@ -1,0 +1,748 @@
+package lp
+
+import (
+	"errors"
+	"fmt"
+	"math"
+)
+
+// Simplex is lipoplan's own LP engine: a bounded-variable simplex method
+// on the computational form [A -I]·(x, r) = 0 (see the package comment),
+// in pure Go. Its parts and their sources:
+//
+//   - Dual simplex (dual.go) with dual steepest-edge pricing (Forrest &
+//     Goldfarb, Math. Programming 57 (1992) 341, the dual algorithm of
+//     their section 3) and the bound-flipping ("long-step") ratio test with
+//     Harris' tolerances (Koberstein 2005, ch. 3, algorithms 4 and 7;
+//     Harris, Math. Programming 5 (1973) 1). It is the method for warm
+//     starts after bound and limit edits and for cold starts: the slack
+//     basis of a blend is dual feasible, and otherwise boxed variables are
+//     flipped and the remaining dual infeasibilities removed by shifting
+//     their costs (Koberstein 2005, ch. 4, "cost modification"), the
+//     shifts being taken out again at the end and cleaned up by the
+//     primal simplex.
+//   - Primal simplex (primal.go) with Devex pricing (Harris 1973; the
+//     reference-framework weights as in Forrest & Goldfarb 1992, section
+//     2) and Harris' two-pass ratio test, with a phase 1 that minimises
+//     the sum of infeasibilities (Maros 2003, ch. 9). It finishes a warm
+//     start after cost edits (the basis stays primal feasible) and the
+//     cleanup after the dual's cost shifts; Options.Method = Primal makes
+//     it the method for cold starts too.
+//   - LU factorisation of the basis with product-form updates and a fresh
+//     factorisation every 64 updates (lu.go); scaling (scale.go).
+//   - Anti-cycling: a run of degenerate iterations switches on a small
+//     random perturbation of the costs (dual) or of the basic variables'
+//     bounds (primal), removed at the end (Koberstein 2005, ch. 5; Maros
+//     2003, ch. 9, on perturbation against stalling); if the run
+//     continues, Bland's smallest-index rule, which cannot cycle (Bland,
+//     Math. Oper. Res. 2 (1977) 103; Chvátal 1983, Linear Programming,
+//     ch. 3), until progress resumes.
+//
+// Tolerances (scaled problem): primal feasibility tolPrimal, dual
+// feasibility tolDual, the least pivot tolPivot, documented at their
+// declarations. Every optimum is confirmed on a fresh factorisation with
+// primal and dual values recomputed from scratch before it is reported.
+//
+// A Simplex keeps its basis, factors and pricing weights between solves:
+// Load of a problem of the same shape keeps the basis (and the factors
+// when the matrix is unchanged), so the next Solve is warm.
+type Simplex struct {
+	opt    Options
+	loaded bool
+	prob   Problem // as loaded, unscaled (an own copy)
+	m, n   int
+	rs, cs []float64 // row and column scale factors
+
+	// scaled matrix by columns and by rows
+	cStart, cIdx []int
+	cVal         []float64
+	rStart, rIdx []int
+	rVal         []float64
+
+	// per variable k: columns 0..n-1 then the logicals n..n+m-1 (scaled)
+	cost     []float64 // the problem's costs (0 for logicals)
+	shift    []float64 // cost shifts in force (perturbation, Harris, dual phase 1)
+	lo0, up0 []float64 // the problem's bounds
+	lo, up   []float64 // working bounds (lo0, up0 unless the primal perturbs)
+	stat     []VarStatus
+	pos      []int // basis position, -1 when nonbasic
+	x, d     []float64
+	head     []int     // variable at each basis position
+	y        []float64 // row duals of the last pricing (scaled)
+	dse      []float64 // dual steepest-edge weights by position
+	devex    []float64 // primal Devex weights by variable
+
+	lu                   factor
+	haveBasis, luOK      bool
+	dseOK                bool
+	shifted, perturbedUp bool // costs shifted / bounds perturbed
+	bland                bool
+	degenerate, iters    int
+	maxIter, troubles    int
+	rnd                  uint64
+	farkasU, rayX        []float64 // certificates of the last solve
+	bStart, bIdx         []int
+	bVal                 []float64
+	wRow, wPos, rho, tau []float64
+	alphaQ, alphaR       []float64
+	cand                 []candidate
+	flips                []int
+	rowMark              []int
+	scaleWork            []float64
+	seen                 []int
+}
+
+// Options tune a Simplex. The zero value is the default.
+type Options struct {
+	Method Method
+	// Dantzig prices by the largest infeasibility (dual) or reduced cost
+	// (primal) instead of steepest edge / Devex; for tests of the
+	// anti-cycling fallback.
+	Dantzig bool
+	// NoPerturbation leaves out the perturbation against stalling, so that
+	// only Bland's rule guards against cycling; for tests.
+	NoPerturbation bool
+	// NoScaling solves the problem as given.
+	NoScaling bool
+	// MaxIter caps the iterations of one Solve; 0 means
+	// 10000 + 20·(rows+columns).
+	MaxIter int
+}
+
+// Method chooses the simplex variant for a solve.
+type Method int
+
+// Methods. Auto runs the primal simplex when the start basis is primal
+// feasible and the dual simplex otherwise (cleaning up with the other as
+// needed); Dual and Primal force the method for the first phase.
+const (
+	Auto Method = iota
+	Dual
+	Primal
+)
+
+// Tolerances of the simplex method, on the scaled problem. 1e-9 is
+// tighter than the 1e-7 of CLP and GLPK: lipoplan's models are small and
+// well scaled, and answers are compared with those solvers to 1e-7
+// relative.
+const (
+	tolPrimal = 1e-9  // a basic variable may violate a bound by this much
+	tolDual   = 1e-9  // a reduced cost may have the wrong sign by this much
+	tolPivot  = 1e-9  // entries of a pivot row or column below this are not pivots
+	tolCheck  = 1e-8  // relative disagreement of a pivot computed two ways that forces a new factorisation
+	perturbEp = 5e-7  // relative size of the anti-stalling perturbation
+	stallRun  = 40    // degenerate iterations in a row before perturbing
+	blandRun  = 400   // ... and before Bland's rule
+	minWeight = 1e-10 // floor of steepest-edge weights
+)
+
+// ErrIterationLimit is returned when a solve needs more iterations than
+// Options.MaxIter allows.
+var ErrIterationLimit = errors.New("simplex: iteration limit reached")
+
+// errTrouble is numerical trouble a fresh start may cure.
+var errTrouble = errors.New("simplex: numerical trouble")
+
+// New makes lipoplan's simplex engine with default options.
+func New() *Simplex { return NewWith(Options{}) }
+
+// NewWith makes a simplex engine with the given options.
+func NewWith(opt Options) *Simplex { return &Simplex{opt: opt} }
+
+// Name is "lipoplan-simplex".
+func (s *Simplex) Name() string { return "lipoplan-simplex" }
+
+// Close frees nothing the garbage collector would not; it is there for the
+// Engine interface.
+func (s *Simplex) Close() {}
+
+// Load copies p in. When p has the shape of the problem loaded before, the
+// basis is kept as the start of the next Solve (and the factorisation and
+// weights with it when the matrix is the same too).
+func (s *Simplex) Load(p *Problem) error {
+	if err := p.check(&s.seen); err != nil {
+		return err
+	}
+	sameMatrix := s.loaded && s.prob.sameMatrix(p)
+	sameShape := s.loaded && s.m == p.Rows && s.n == p.Cols
+	p.copyInto(&s.prob)
+	s.loaded = true
+	s.m, s.n = p.Rows, p.Cols
+	if !sameShape {
+		s.allocShape()
+	}
+	if !sameMatrix {
+		s.setMatrix()
+		s.luOK, s.dseOK = false, false
+	}
+	if !sameShape {
+		s.haveBasis = false
+	}
+	clear(s.shift)
+	for j := 0; j < s.n; j++ {
+		s.setCol(j)
+	}
+	for i := 0; i < s.m; i++ {
+		s.setRow(i)
+	}
+	return nil
+}
+
+// setMatrix scales the loaded matrix and lays it out by columns and rows.
+func (s *Simplex) setMatrix() {
+	p := &s.prob
+	m, n := s.m, s.n
+	if s.opt.NoScaling {
+		for i := range s.rs {
+			s.rs[i] = 1
+		}
+		for j := range s.cs {
+			s.cs[j] = 1
+		}
+	} else {
+		scaleFactors(p, s.rs, s.cs, &s.scaleWork)
+	}
+	nz := len(p.Value)
+	s.cStart, s.cIdx = p.Start, p.Index // the own copy of the problem
+	s.cVal = resize(s.cVal, nz)
+	for j := 0; j < n; j++ {
+		for k := p.Start[j]; k < p.Start[j+1]; k++ {
+			s.cVal[k] = s.rs[p.Index[k]] * p.Value[k] * s.cs[j]
+		}
+	}
+	s.rStart = resize(s.rStart, m+1)
+	clear(s.rStart)
+	for _, i := range p.Index {
+		s.rStart[i+1]++
+	}
+	for i := 0; i < m; i++ {
+		s.rStart[i+1] += s.rStart[i]
+	}
+	s.rIdx, s.rVal = resize(s.rIdx, nz), resize(s.rVal, nz)
+	fill := resize(s.rowMark, m)
+	copy(fill, s.rStart[:m])
+	for j := 0; j < n; j++ {
+		for k := s.cStart[j]; k < s.cStart[j+1]; k++ {
+			i := s.cIdx[k]
+			s.rIdx[fill[i]], s.rVal[fill[i]] = j, s.cVal[k]
+			fill[i]++
+		}
+	}
+	s.rowMark = fill
+}
+
+// setCol scales column j's cost and bounds.
+func (s *Simplex) setCol(j int) {
+	c := s.cs[j]
+	s.cost[j] = s.prob.Obj[j] * c
+	s.lo0[j], s.up0[j] = s.prob.ColLo[j]/c, s.prob.ColUp[j]/c
+	s.lo[j], s.up[j] = s.lo0[j], s.up0[j]
+}
+
+// setRow scales row i's bounds (its logical's).
+func (s *Simplex) setRow(i int) {
+	k := s.n + i
+	r := s.rs[i]
+	s.cost[k] = 0
+	s.lo0[k], s.up0[k] = s.prob.RowLo[i]*r, s.prob.RowUp[i]*r
+	s.lo[k], s.up[k] = s.lo0[k], s.up0[k]
+}
+
+// SetObj sets column j's cost.
+func (s *Simplex) SetObj(j int, c float64) {
+	s.prob.Obj[j] = c
+	s.setCol(j)
+}
+
+// SetColBounds sets column j's bounds.
+func (s *Simplex) SetColBounds(j int, lo, up float64) {
+	s.prob.ColLo[j], s.prob.ColUp[j] = lo, up
+	s.setCol(j)
+}
+
+// SetRowBounds sets row i's range.
+func (s *Simplex) SetRowBounds(i int, lo, up float64) {
+	s.prob.RowLo[i], s.prob.RowUp[i] = lo, up
+	s.setRow(i)
+}
+
+// SetBasis makes the next Solve start from b (nil: the slack basis). A
+// basis equal to the one held keeps the factorisation.
+func (s *Simplex) SetBasis(b []VarStatus) error {
+	if b == nil {
+		s.haveBasis = false
+		return nil
+	}
+	if !s.loaded || len(b) != s.n+s.m {
+		return fmt.Errorf("simplex: basis of %d statuses for %d columns and %d rows", len(b), s.n, s.m)
+	}
+	nb := 0
+	for _, st := range b {
+		if st == Basic {
+			nb++
+		}
+	}
+	if nb != s.m {
+		return fmt.Errorf("simplex: basis has %d basic variables for %d rows", nb, s.m)
+	}
+	if s.haveBasis && len(s.stat) == len(b) {
+		same := true
+		for k, st := range b {
+			if (st == Basic) != (s.stat[k] == Basic) {
+				same = false
+				break
+			}
+		}
+		if same {
+			copy(s.stat, b) // nonbasic bounds may differ; the basis is the same
+			return nil
+		}
+	}
+	copy(s.stat, b)
+	r := 0
+	for k, st := range b {
+		s.pos[k] = -1
+		if st == Basic {
+			s.head[r], s.pos[k] = k, r
+			r++
+		}
+	}
+	s.haveBasis, s.luOK, s.dseOK = true, false, false
+	return nil
+}
+
+// Basis returns the statuses of the basis held (Cols then Rows), or nil.
+func (s *Simplex) Basis() []VarStatus {
+	if !s.haveBasis {
+		return nil
+	}
+	return append([]VarStatus(nil), s.stat...)
+}
+
+// allocShape lays out every array whose size depends only on the shape,
+// floats in one block and integers in another.
+func (s *Simplex) allocShape() {
+	m, n := s.m, s.n
+	nm := n + m
+	const perVar, perRow = 10, 8
+	f := make([]float64, perVar*nm+perRow*m+n)
+	take := func(k int) []float64 {
+		v := f[:k:k]
+		f = f[k:]
+		return v
+	}
+	s.cost, s.shift, s.lo0, s.up0, s.lo = take(nm), take(nm), take(nm), take(nm), take(nm)
+	s.up, s.x, s.d, s.devex, s.alphaR = take(nm), take(nm), take(nm), take(nm), take(nm)
+	s.y, s.dse, s.wRow, s.wPos = take(m), take(m), take(m), take(m)
+	s.rho, s.tau, s.alphaQ, s.rs = take(m), take(m), take(m), take(m)
+	s.cs = take(n)
+	ints := make([]int, nm+m)
+	s.pos, s.head = ints[:nm:nm], ints[nm:]
+	s.stat = make([]VarStatus, nm)
+}
+
+// slackBasis makes every logical basic and puts each column at a bound:
+// the lower one when finite (the upper one for a boxed column of negative
+// cost, which keeps its reduced cost dual feasible), else the upper one,
+// else zero.
+func (s *Simplex) slackBasis() {
+	n := s.n
+	for j := 0; j < n; j++ {
+		s.pos[j] = -1
+		lo, up := s.lo0[j], s.up0[j]
+		switch {
+		case lo == up:
+			s.stat[j] = Fixed
+		case !math.IsInf(lo, -1) && !math.IsInf(up, 1) && s.cost[j] < 0:
+			s.stat[j] = AtUpper
+		case !math.IsInf(lo, -1):
+			s.stat[j] = AtLower
+		case !math.IsInf(up, 1):
+			s.stat[j] = AtUpper
+		default:
+			s.stat[j] = Free
+		}
+	}
+	for i := 0; i < s.m; i++ {
+		s.stat[n+i], s.pos[n+i], s.head[i] = Basic, i, n+i
+	}
+	for i := range s.dse {
+		s.dse[i] = 1 // B = -I: every row of B⁻¹ has norm 1
+	}
+	s.haveBasis, s.luOK, s.dseOK = true, false, true
+}
+
+// placeNonbasic makes each nonbasic variable's status agree with its
+// bounds and sets its value to the bound it sits at.
+func (s *Simplex) placeNonbasic() {
+	for k, st := range s.stat {
+		if st == Basic {
+			continue
+		}
+		lo, up := s.lo[k], s.up[k]
+		loF, upF := !math.IsInf(lo, -1), !math.IsInf(up, 1)
+		switch {
+		case lo == up:
+			st = Fixed
+		case st == AtUpper && upF, st == AtLower && loF:
+		case st == AtUpper && loF, st == Fixed && loF, st == Free && loF:
+			st = AtLower
+		case upF:
+			st = AtUpper
+		case loF:
+			st = AtLower
+		default:
+			st = Free
+		}
+		s.stat[k] = st
+		s.x[k] = s.boundValue(k)
+	}
+}
+
+// boundValue is the value of nonbasic variable k at its status.
+func (s *Simplex) boundValue(k int) float64 {
+	switch s.stat[k] {
+	case AtUpper:
+		return s.up[k]
+	case Free:
+		return 0
+	}
+	return s.lo[k]
+}
+
+// addCol adds v times the column of variable k (a scaled column of A, or
+// -e_i for row i's logical) to w, indexed by row.
+func (s *Simplex) addCol(k int, v float64, w []float64) {
+	if k >= s.n {
+		w[k-s.n] -= v
+		return
+	}
+	for q := s.cStart[k]; q < s.cStart[k+1]; q++ {
+		w[s.cIdx[q]] += v * s.cVal[q]
+	}
+}
+
+// refactor factorises the basis afresh, replacing dependent columns by
+// logicals of the rows left without a pivot (Koberstein 2005, ch. 6, on
+// basis repair). It reports whether the basis changed.
+func (s *Simplex) refactor() (repaired bool, err error) {
+	m := s.m
+	for attempt := 0; ; attempt++ {
+		s.bStart = resize(s.bStart, m+1)
+		s.bIdx, s.bVal = s.bIdx[:0], s.bVal[:0]
+		for r, k := range s.head {
+			s.bStart[r] = len(s.bIdx)
+			if k >= s.n {
+				s.bIdx = append(s.bIdx, k-s.n)
+				s.bVal = append(s.bVal, -1)
+				continue
+			}
+			s.bIdx = append(s.bIdx, s.cIdx[s.cStart[k]:s.cStart[k+1]]...)
+			s.bVal = append(s.bVal, s.cVal[s.cStart[k]:s.cStart[k+1]]...)
+		}
+		s.bStart[m] = len(s.bIdx)
+		bad, free := s.lu.factorize(m, s.bStart, s.bIdx, s.bVal)
+		if len(bad) == 0 {
+			s.luOK = true
+			return repaired, nil
+		}
+		if attempt >= 3 || len(bad) != len(free) {
+			return repaired, fmt.Errorf("%w: basis stays singular after repair", errTrouble)
+		}
+		for t, p := range bad {
+			k := s.head[p]
+			s.stat[k] = nonbasicStatus(s.x[k], s.lo[k], s.up[k])
+			s.pos[k] = -1
+			s.x[k] = s.boundValue(k)
+			l := s.n + free[t]
+			s.head[p], s.pos[l], s.stat[l] = l, p, Basic
+		}
+		repaired = true
+		s.dseOK = false
+	}
+}
+
+// computeX sets the basic variables from the nonbasic ones: x_B = -B⁻¹N x_N.
+func (s *Simplex) computeX() {
+	w := s.wRow
+	clear(w)
+	for k, st := range s.stat {
+		if st != Basic && s.x[k] != 0 {
+			s.addCol(k, s.x[k], w)
+		}
+	}
+	s.lu.ftran(w, s.wPos)
+	for r, k := range s.head {
+		s.x[k] = -s.wPos[r]
+	}
+}
+
+// computeD sets the duals y (Bᵀy = c_B, with the shifts in force) and the
+// reduced costs of the nonbasic variables.
+func (s *Simplex) computeD() {
+	e := s.wPos
+	for r, k := range s.head {
+		e[r] = s.cost[k] + s.shift[k]
+	}
+	s.lu.btran(e, s.y)
+	for j := 0; j < s.n; j++ {
+		if s.stat[j] == Basic {
+			s.d[j] = 0
+			continue
+		}
+		v := s.cost[j] + s.shift[j]
+		for q := s.cStart[j]; q < s.cStart[j+1]; q++ {
+			v -= s.cVal[q] * s.y[s.cIdx[q]]
+		}
+		s.d[j] = v
+	}
+	for i := 0; i < s.m; i++ {
+		k := s.n + i
+		if s.stat[k] == Basic {
+			s.d[k] = 0
+		} else {
+			s.d[k] = s.shift[k] + s.y[i]
+		}
+	}
+}
+
+// primalInfeasibility is the largest bound violation of a basic variable.
+func (s *Simplex) primalInfeasibility() float64 {
+	worst := 0.0
+	for _, k := range s.head {
+		v := s.x[k]
+		worst = max(worst, max(s.lo[k]-v, v-s.up[k]))
+	}
+	return worst
+}
+
+// dualInfeasible reports whether nonbasic variable k's reduced cost has the
+// wrong sign for its status (beyond tolDual).
+func (s *Simplex) dualInfeasible(k int) bool {
+	d := s.d[k]
+	switch s.stat[k] {
+	case AtLower:
+		return d < -tolDual
+	case AtUpper:
+		return d > tolDual
+	case Free:
+		return math.Abs(d) > tolDual
+	}
+	return false
+}
+
+func (s *Simplex) dualFeasible() bool {
+	for k, st := range s.stat {
+		if st != Basic && s.dualInfeasible(k) {
+			return false
+		}
+	}
+	return true
+}
+
+// random is a xorshift64* generator (Marsaglia, J. Stat. Softw. 8 (2003);
+// Vigna's multiplier), seeded afresh by every Solve so that answers do not
+// depend on earlier solves' draws; it draws perturbations in [0, 1).
+func (s *Simplex) random() float64 {
+	s.rnd ^= s.rnd >> 12
+	s.rnd ^= s.rnd << 25
+	s.rnd ^= s.rnd >> 27
+	return float64((s.rnd*2685821657736338717)>>11) / (1 << 53)
+}
+
+// removeShifts restores the problem's costs.
+func (s *Simplex) removeShifts() {
+	if s.shifted {
+		clear(s.shift)
+		s.shifted = false
+	}
+}
+
+// restoreBounds undoes a bound perturbation; nonbasic variables move to
+// the true bound, so x must be recomputed.
+func (s *Simplex) restoreBounds() {
+	if !s.perturbedUp {
+		return
+	}
+	copy(s.lo, s.lo0)
+	copy(s.up, s.up0)
+	s.perturbedUp = false
+	for k, st := range s.stat {
+		if st != Basic {
+			s.x[k] = s.boundValue(k)
+		}
+	}
+}
+
+// Solve solves the loaded problem from the basis held (the slack basis
+// when there is none). A panic inside the engine is recovered into an
+// error, so a bad input can never take its caller down.
+func (s *Simplex) Solve() (sol *Solution, err error) {
+	if !s.loaded {
+		return nil, errors.New("simplex: Solve before Load")
+	}
+	defer func() {
+		if r := recover(); r != nil {
+			sol, err = nil, fmt.Errorf("simplex: internal fault: %v", r)
+			s.haveBasis = false
+		}
+	}()
+	st, err := s.solve()
+	if errors.Is(err, errTrouble) {
+		// One fresh start from the slack basis, without the warm state.
+		s.haveBasis = false
+		st, err = s.solve()
+	}
+	if err != nil {
+		s.haveBasis = false
+		return nil, err
+	}
+	return s.solution(st), nil
+}
+
+func (s *Simplex) solve() (Status, error) {
+	s.iters, s.troubles, s.degenerate, s.bland = 0, 0, 0, false
+	s.rnd = 0x9E3779B97F4A7C15
+	s.maxIter = s.opt.MaxIter
+	if s.maxIter <= 0 {
+		s.maxIter = 10000 + 20*(s.n+s.m)
+	}
+	s.farkasU, s.rayX = nil, nil
+	s.removeShifts()
+	copy(s.lo, s.lo0)
+	copy(s.up, s.up0)
+	s.perturbedUp = false
+	for k := range s.lo0 {
+		if s.lo0[k] > s.up0[k] {
+			return Infeasible, nil // crossed bounds
+		}
+	}
+	if !s.haveBasis {
+		s.slackBasis()
+	}
+	s.placeNonbasic()
+	if !s.luOK || s.lu.due() {
+		if _, err := s.refactor(); err != nil {
+			return 0, err
+		}
+	}
+	if !s.dseOK {
+		s.initDSE()
+	}
+	s.computeX()
+	s.computeD()
+	method := s.opt.Method
+	for round := 0; round < 20; round++ {
+		pInf := s.primalInfeasibility() > tolPrimal
+		var st Status
+		var err error
+		switch {
+		case !pInf && !s.shifted && s.dualFeasible():
+			return Optimal, nil
+		case method == Primal || !pInf && method != Dual:
+			st, err = s.primal()
+		default:
+			s.makeDualFeasible()
+			st, err = s.dual()
+		}
+		method = Auto
+		if err != nil {
+			return 0, err
+		}
+		if st != Optimal {
+			return st, nil
+		}
+		// Take out shifts and perturbations and look again, on fresh
+		// factors (the phase that just ended refreshed them when it had
+		// nothing left to do; a repair changes the basis, so recompute).
+		s.removeShifts()
+		s.restoreBounds()
+		if s.lu.due() {
+			if _, err := s.refactor(); err != nil {
+				return 0, err
+			}
+		}
+		s.computeX()
+		s.computeD()
+	}
+	return 0, fmt.Errorf("%w: primal and dual cleanups did not settle", errTrouble)
+}
+
+// initDSE computes the dual steepest-edge weights ‖e_rᵀB⁻¹‖² exactly for
+// small bases and sets them to 1 for large ones (Forrest & Goldfarb 1992
+// start from 1 when exact weights cost too much).
+func (s *Simplex) initDSE() {
+	m := s.m
+	if m > 120 {
+		for r := range s.dse {
+			s.dse[r] = 1
+		}
+		s.dseOK = true
+		return
+	}
+	for r := 0; r < m; r++ {
+		clear(s.wPos)
+		s.wPos[r] = 1
+		s.lu.btran(s.wPos, s.rho)
+		v := 0.0
+		for _, a := range s.rho {
+			v += a * a
+		}
+		s.dse[r] = max(v, minWeight)
+	}
+	s.dseOK = true
+}
+
+// solution unscales the answer of the basis held.
+func (s *Simplex) solution(st Status) *Solution {
+	p := &s.prob
+	n, m := s.n, s.m
+	sol := &Solution{Status: st, Iterations: s.iters}
+	switch st {
+	case Infeasible:
+		sol.Farkas = s.farkas()
+		return sol
+	case Unbounded:
+		sol.Ray = s.ray()
+		return sol
+	}
+	v := make([]float64, 2*n+2*m)
+	sol.X, sol.D, sol.RowAct, sol.Y = v[:n:n], v[n:2*n:2*n], v[2*n:2*n+m:2*n+m], v[2*n+m:]
+	sol.Basis = append([]VarStatus(nil), s.stat...)
+	for j := 0; j < n; j++ {
+		switch s.stat[j] {
+		case Basic:
+			x := s.x[j] * s.cs[j]
+			// Within tolerance of a bound is at the bound.
+			if lo := p.ColLo[j]; x < lo {
+				x = lo
+			}
+			if up := p.ColUp[j]; x > up {
+				x = up
+			}
+			sol.X[j] = x
+		case AtUpper:
+			sol.X[j] = p.ColUp[j]
+		case Free:
+			sol.X[j] = 0
+		default:
+			sol.X[j] = p.ColLo[j]
+		}
+	}
+	for i := 0; i < m; i++ {
+		sol.Y[i] = s.y[i] * s.rs[i]
+	}
+	p.Activity(sol.X, sol.RowAct)
+	for j := 0; j < n; j++ {
+		if s.stat[j] == Basic {
+			continue
+		}
+		dj := p.Obj[j]
+		for k := p.Start[j]; k < p.Start[j+1]; k++ {
+			dj -= p.Value[k] * sol.Y[p.Index[k]]
+		}
+		sol.D[j] = dj
+	}
+	sol.Obj = p.Objective(sol.X)
+	return sol
+}
