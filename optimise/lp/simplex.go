@@ -577,17 +577,27 @@ func (s *Simplex) restoreBounds() {
 // Solve solves the loaded problem from the basis held (the slack basis
 // when there is none). A panic inside the engine is recovered into an
 // error, so a bad input can never take its caller down.
-func (s *Simplex) Solve() (sol *Solution, err error) {
+func (s *Simplex) Solve() (*Solution, error) {
+	st, err := s.solveStatus()
+	if err != nil {
+		return nil, err
+	}
+	return s.solution(st), nil
+}
+
+// solveStatus is Solve without building the Solution: the answer stays in
+// the engine (value, objective, basisInto).
+func (s *Simplex) solveStatus() (st Status, err error) {
 	if !s.loaded {
-		return nil, errors.New("simplex: Solve before Load")
+		return 0, errors.New("simplex: Solve before Load")
 	}
 	defer func() {
 		if r := recover(); r != nil {
-			sol, err = nil, fmt.Errorf("simplex: internal fault: %v", r)
+			st, err = 0, fmt.Errorf("simplex: internal fault: %v", r)
 			s.haveBasis = false
 		}
 	}()
-	st, err := s.solve()
+	st, err = s.solve()
 	if errors.Is(err, errTrouble) {
 		// One fresh start from the slack basis, without the warm state.
 		s.haveBasis = false
@@ -595,9 +605,49 @@ func (s *Simplex) Solve() (sol *Solution, err error) {
 	}
 	if err != nil {
 		s.haveBasis = false
-		return nil, err
+		return 0, err
 	}
-	return s.solution(st), nil
+	return st, nil
+}
+
+// value is column j's value in the answer held (unscaled; a basic value
+// within tolerance of a bound is at the bound).
+func (s *Simplex) value(j int) float64 {
+	p := &s.prob
+	switch s.stat[j] {
+	case Basic:
+		return min(max(s.x[j]*s.cs[j], p.ColLo[j]), p.ColUp[j])
+	case AtUpper:
+		return p.ColUp[j]
+	case Free:
+		return 0
+	}
+	return p.ColLo[j]
+}
+
+// values writes every column's value into dst (grown as needed).
+func (s *Simplex) values(dst []float64) []float64 {
+	dst = resize(dst, s.n)
+	for j := range dst {
+		dst[j] = s.value(j)
+	}
+	return dst
+}
+
+// objective is the objective of the answer held.
+func (s *Simplex) objective() float64 {
+	v := 0.0
+	for j, c := range s.prob.Obj {
+		if c != 0 {
+			v += c * s.value(j)
+		}
+	}
+	return v
+}
+
+// basisInto copies the basis held into dst (grown as needed).
+func (s *Simplex) basisInto(dst []VarStatus) []VarStatus {
+	return append(dst[:0], s.stat...)
 }
 
 func (s *Simplex) solve() (Status, error) {
@@ -708,27 +758,8 @@ func (s *Simplex) solution(st Status) *Solution {
 	}
 	v := make([]float64, 2*n+2*m)
 	sol.X, sol.D, sol.RowAct, sol.Y = v[:n:n], v[n:2*n:2*n], v[2*n:2*n+m:2*n+m], v[2*n+m:]
-	sol.Basis = append([]VarStatus(nil), s.stat...)
-	for j := 0; j < n; j++ {
-		switch s.stat[j] {
-		case Basic:
-			x := s.x[j] * s.cs[j]
-			// Within tolerance of a bound is at the bound.
-			if lo := p.ColLo[j]; x < lo {
-				x = lo
-			}
-			if up := p.ColUp[j]; x > up {
-				x = up
-			}
-			sol.X[j] = x
-		case AtUpper:
-			sol.X[j] = p.ColUp[j]
-		case Free:
-			sol.X[j] = 0
-		default:
-			sol.X[j] = p.ColLo[j]
-		}
-	}
+	sol.Basis = s.basisInto(nil)
+	s.values(sol.X)
 	for i := 0; i < m; i++ {
 		sol.Y[i] = s.y[i] * s.rs[i]
 	}
