@@ -95,6 +95,9 @@ func (s *Simplex) dual() (Status, error) {
 				}
 				continue
 			}
+			if s.accept(p) {
+				continue
+			}
 			if s.keepFarkas(r, sgn) {
 				return Infeasible, nil
 			}

@@ -48,6 +48,17 @@ func (s *Simplex) primal() (Status, error) {
 				}
 			}
 			if phase1 {
+				// What violation is left may be within the verdict
+				// tolerance; then it is rounding, and phase 2 goes on.
+				small := true
+				for _, k := range s.head {
+					if (s.x[k] < s.lo[k]-tolPrimal || s.x[k] > s.up[k]+tolPrimal) && !s.accept(k) {
+						small = false
+					}
+				}
+				if small {
+					continue
+				}
 				s.keepPhase1Farkas()
 				return Infeasible, nil
 			}

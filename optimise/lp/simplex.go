@@ -81,6 +81,7 @@ type Simplex struct {
 	maxIter, troubles    int
 	rnd                  uint64
 	farkasU, rayX        []float64 // certificates of the last solve
+	accepted             []int     // variables whose bound a solve moved by up to tolVerdict
 	bStart, bIdx         []int
 	bVal                 []float64
 	wRow, wPos, rho, tau []float64
@@ -126,14 +127,15 @@ const (
 // well scaled, and answers are compared with those solvers to 1e-7
 // relative.
 const (
-	tolPrimal = 1e-9  // a basic variable may violate a bound by this much
-	tolDual   = 1e-9  // a reduced cost may have the wrong sign by this much
-	tolPivot  = 1e-9  // entries of a pivot row or column below this are not pivots
-	tolCheck  = 1e-8  // relative disagreement of a pivot computed two ways that forces a new factorisation
-	perturbEp = 5e-7  // relative size of the anti-stalling perturbation
-	stallRun  = 40    // degenerate iterations in a row before perturbing
-	blandRun  = 400   // ... and before Bland's rule
-	minWeight = 1e-10 // floor of steepest-edge weights
+	tolPrimal  = 1e-9  // a basic variable may violate a bound by this much
+	tolDual    = 1e-9  // a reduced cost may have the wrong sign by this much
+	tolPivot   = 1e-9  // entries of a pivot row or column below this are not pivots
+	tolCheck   = 1e-8  // relative disagreement of a pivot computed two ways that forces a new factorisation
+	tolVerdict = 1e-7  // a violation no pivot can remove is accepted up to this (relative), as CLP and GLPK do
+	perturbEp  = 5e-7  // relative size of the anti-stalling perturbation
+	stallRun   = 40    // degenerate iterations in a row before perturbing
+	blandRun   = 400   // ... and before Bland's rule
+	minWeight  = 1e-10 // floor of steepest-edge weights
 )
 
 // ErrIterationLimit is returned when a solve needs more iterations than
@@ -574,6 +576,35 @@ func (s *Simplex) restoreBounds() {
 	}
 }
 
+// accept moves variable k's violated bound to its value for this solve: a
+// violation of at most tolVerdict (relative) that no pivot can remove is
+// rounding, not infeasibility. restoreAccepted undoes it at the next
+// solve.
+func (s *Simplex) accept(k int) bool {
+	v := s.x[k]
+	switch {
+	case v < s.lo[k] && s.lo[k]-v <= tolVerdict*(1+math.Abs(s.lo[k])):
+		s.lo[k], s.lo0[k] = v, v
+	case v > s.up[k] && v-s.up[k] <= tolVerdict*(1+math.Abs(s.up[k])):
+		s.up[k], s.up0[k] = v, v
+	default:
+		return false
+	}
+	s.accepted = append(s.accepted, k)
+	return true
+}
+
+func (s *Simplex) restoreAccepted() {
+	for _, k := range s.accepted {
+		if k < s.n {
+			s.setCol(k)
+		} else {
+			s.setRow(k - s.n)
+		}
+	}
+	s.accepted = s.accepted[:0]
+}
+
 // Solve solves the loaded problem from the basis held (the slack basis
 // when there is none). A panic inside the engine is recovered into an
 // error, so a bad input can never take its caller down.
@@ -658,6 +689,7 @@ func (s *Simplex) solve() (Status, error) {
 		s.maxIter = 10000 + 20*(s.n+s.m)
 	}
 	s.farkasU, s.rayX = nil, nil
+	s.restoreAccepted()
 	s.removeShifts()
 	copy(s.lo, s.lo0)
 	copy(s.up, s.up0)
