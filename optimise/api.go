@@ -1,8 +1,9 @@
 // Package optimise turns stocks and a product spec into a linear (or mixed
-// integer) programme, solves it with COIN-OR CLP/CBC through our own cgo
-// binding (gonum's simplex under the purego build tag), and reports the
-// cheapest blend with shadow prices, cost ranging and, for an impossible
-// spec, the smallest relaxation from an elastic LP.
+// integer) programme, solves it through the engine layer
+// (lipoplan/optimise/lp: lipoplan's own simplex and branch and bound, or
+// COIN-OR CLP/CBC in the coin build), and reports the cheapest blend with
+// shadow prices, cost ranging and, for an impossible spec, the smallest
+// relaxation from an elastic LP.
 //
 // The model has one column per stock, its share in % of the batch, costing
 // price/100 so that the objective is currency per tonne of product. Rows
@@ -41,6 +42,10 @@ type Status string
 const (
 	Optimal    Status = "optimal"
 	Infeasible Status = "infeasible"
+	// NotProven: branch and bound for the integer rules stopped at its
+	// node or time limit. Blend, when set, is the best blend found, not
+	// proven the cheapest; Notes say how far from proven it is.
+	NotProven Status = "not_proven"
 )
 
 // Options tune a solve. The zero value is ready to use.
@@ -84,7 +89,7 @@ type Relax struct {
 // Result of a solve.
 type Result struct {
 	Status       Status
-	Engine       string // "clp", "cbc" or "gonum"
+	Engine       string // the engines that solved: "lipoplan-simplex", "lipoplan-bb+lipoplan-simplex"; "clp", "cbc+clp" in the coin build
 	Currency     string
 	Spec         string
 	Batch        float64

@@ -1,4 +1,4 @@
-//go:build cgo && !purego
+//go:build coin
 
 package optimise
 
@@ -10,17 +10,24 @@ import (
 )
 
 // benchBareCLP times CLP alone through the binding on prebuilt arrays, with
-// the settings coinEngine uses (no scaling pass, dual simplex from the slack
+// the settings lp.Coin uses (no scaling pass, dual simplex from the slack
 // basis): load the problem, solve, read primal and dual values. BareCLP
-// makes and frees the CLP model on every solve, as Solve does;
-// BareCLPReused loads every solve into one model made beforehand, as a
-// Solver does.
+// makes and frees the CLP model on every solve; BareCLPReused loads every
+// solve into one model made beforehand.
 func benchBareCLP(b *testing.B, cat *catalogue.Catalogue, spec *catalogue.Spec) {
 	m, _, err := build(cat, spec)
 	if err != nil {
 		b.Fatal(err)
 	}
-	p := m.coinProblem()
+	lpp := (&engine{}).problem(m)
+	p := &coin.Problem{Cols: lpp.Cols, Rows: lpp.Rows, Value: lpp.Value,
+		ColLower: lpp.ColLo, ColUpper: lpp.ColUp, Obj: lpp.Obj, RowLower: lpp.RowLo, RowUpper: lpp.RowUp}
+	for _, v := range lpp.Start {
+		p.Start = append(p.Start, int32(v))
+	}
+	for _, v := range lpp.Index {
+		p.Index = append(p.Index, int32(v))
+	}
 	x := make([]float64, m.nCols)
 	y := make([]float64, m.nRows)
 	d := make([]float64, m.nCols)

@@ -7,6 +7,7 @@ import (
 	"gonum.org/v1/gonum/optimize/convex/lp"
 
 	"lipoplan/catalogue"
+	lplayer "lipoplan/optimise/lp"
 )
 
 // bench30x20 is the DESIGN section 7 benchmark model: 30 stocks and 20
@@ -55,12 +56,12 @@ func BenchmarkBlend30x20(b *testing.B) {
 		if err != nil {
 			b.Fatal(err)
 		}
-		st, err := toStandard(m)
+		st, err := lplayer.ToStandard((&engine{}).problem(m))
 		if err != nil {
 			b.Fatal(err)
 		}
 		for b.Loop() {
-			if _, _, err := lp.Simplex(st.c, st.a, st.b, 1e-10, nil); err != nil {
+			if _, _, err := lp.Simplex(st.C, st.A, st.B, 1e-10, nil); err != nil {
 				b.Fatal(err)
 			}
 		}

@@ -12,8 +12,7 @@ import (
 
 // TestConcurrentSolves: Solve keeps no shared state, so parallel solves
 // (several workspace sessions, each with Solve or a Solver of its own) must
-// each get the answer a lone solve gets, for LPs and, in the COIN-OR build,
-// for MILPs through CBC.
+// each get the answer a lone solve gets, for LPs and for MILPs.
 func TestConcurrentSolves(t *testing.T) {
 	if testing.Short() {
 		t.Skip("skipped in -short mode")
@@ -23,10 +22,7 @@ func TestConcurrentSolves(t *testing.T) {
 	require.True(t, ok)
 	rules := lam.Clone()
 	rules.Rules = catalogue.Rules{MaxStocks: 3, MinIfUsed: 8}
-	specs := []*catalogue.Spec{lam}
-	if defaultEngine().name() != "gonum" {
-		specs = append(specs, rules)
-	}
+	specs := []*catalogue.Spec{lam, rules}
 	want := make([]float64, len(specs))
 	for i, s := range specs {
 		r, err := Solve(cat, s, Options{})

@@ -129,7 +129,7 @@ func (l *layout) elastic(base *model) (*model, []deficit) {
 }
 
 // relaxation finds the smallest relaxation that makes the spec feasible.
-func (l *layout) relaxation(eng engine, base *model) ([]Relax, error) {
+func (l *layout) relaxation(eng *engine, base *model) ([]Relax, error) {
 	em, defs := l.elastic(base)
 	var s *solution
 	var err error

@@ -1,26 +1,35 @@
 package optimise
 
-// solStatus is an engine's verdict on one model.
-type solStatus int
+import (
+	"fmt"
+	"hash/fnv"
+	"math"
+	"time"
 
-const (
-	solOptimal solStatus = iota
-	solInfeasible
-	solUnbounded
+	"lipoplan/optimise/lp"
 )
 
-// varState is the basis status of a column or a row logical.
-type varState int8
-
-const (
-	stBasic varState = iota
-	stLower          // nonbasic at its lower bound
-	stUpper          // nonbasic at its upper bound
-	stFixed          // nonbasic with lower = upper
-	stFree           // nonbasic free variable at zero
+// The engine layer's statuses under the names this package has long used.
+type (
+	varState  = lp.VarStatus
+	solStatus = lp.Status
 )
 
-// solution is what an engine returns for one model.
+const (
+	stBasic = lp.Basic
+	stLower = lp.AtLower
+	stUpper = lp.AtUpper
+	stFixed = lp.Fixed
+	stFree  = lp.Free
+
+	solOptimal    = lp.Optimal
+	solInfeasible = lp.Infeasible
+	solUnbounded  = lp.Unbounded
+	solNotProven  = lp.NotProven
+	solNoSolution = lp.NoSolution
+)
+
+// solution is an engine's answer to one model, in the model's terms.
 //
 // Signs follow the usual minimisation convention shared by CLP: y[i] is
 // d(objective)/d(bound) of the bound row i sits at, and the reduced cost of
@@ -36,34 +45,176 @@ type solution struct {
 	// basis holds nCols column states then nRows row-logical states of an
 	// optimal basis; nil when the engine has none (MILP).
 	basis []varState
+	// MILP only: the proven lower bound, nodes and the limit that stopped
+	// branch and bound (NotProven, NoSolution).
+	bound  float64
+	nodes  int
+	limit  string
+	limits lp.Limits
 }
 
-// engine solves models. Implementations are chosen by build tags: COIN-OR
-// CLP/CBC through optimise/coin when cgo is available (and the purego tag is
-// not set), gonum's simplex otherwise. defaultEngine makes one that holds
-// nothing between calls; reusableEngine one that keeps its working memory
-// (a CLP model) from one solve to the next until close.
-type engine interface {
-	name() string
-	milpName() string
-	// solveLP solves m ignoring m.integer.
-	solveLP(m *model) (*solution, error)
-	// solveMILP solves m honouring m.integer.
-	solveMILP(m *model) (*solution, error)
-	// close frees what the engine keeps; the engine is not used after.
-	close()
+// engine is optimise's way to the engine layer (lipoplan/optimise/lp): an
+// LP engine per model structure, so that a model solved again after an
+// edit (the same rows and columns, other bounds or costs) warm-starts
+// from the basis its previous solve ended with, and a MIP solver for the
+// integer rules. Which engines: engine_default.go (lipoplan's own simplex
+// and branch and bound) or, with -tags coin, engine_coin.go (COIN-OR CLP
+// and CBC); gonumEngine is a test reference.
+type engine struct {
+	lpName, mipName string
+	newLP           func() lp.Engine
+	mip             lp.MIPSolver // nil: integer rules are refused
+	limits          lp.Limits
+	// LP engines by model structure, most recently used last.
+	keys []uint64
+	lps  []lp.Engine
+	prob lp.Problem // conversion scratch (engines copy what they load)
 }
 
-// newSolution allocates an optimal LP answer for nCols columns and nRows
-// rows: the four value vectors share one allocation.
-func newSolution(nCols, nRows int) *solution {
-	v := make([]float64, 2*nCols+2*nRows)
-	return &solution{
-		status: solOptimal,
-		x:      v[:nCols:nCols],
-		d:      v[nCols : 2*nCols : 2*nCols],
-		act:    v[2*nCols : 2*nCols+nRows : 2*nCols+nRows],
-		y:      v[2*nCols+nRows:],
-		basis:  make([]varState, nCols+nRows),
+// keepEngines is how many model structures an engine keeps warm: a solve
+// touches at most four (the base LP, the LP with integer choices fixed,
+// the elastic programme, a process LP).
+const keepEngines = 6
+
+func (e *engine) name() string     { return e.lpName }
+func (e *engine) milpName() string { return e.mipName }
+
+// close frees every LP engine held.
+func (e *engine) close() {
+	for _, l := range e.lps {
+		l.Close()
 	}
+	e.keys, e.lps = nil, nil
+}
+
+// structure identifies a model's structure: its shape and row and column
+// names (FNV-1a). Models of one structure share an LP engine; a collision
+// costs a cold start at worst, never a wrong answer (an engine solves
+// whatever it is given).
+func structure(m *model) uint64 {
+	h := fnv.New64a()
+	var b [8]byte
+	put := func(v int) {
+		for i := range b {
+			b[i] = byte(v >> (8 * i))
+		}
+		h.Write(b[:])
+	}
+	put(m.nRows)
+	put(m.nCols)
+	for _, s := range m.colName {
+		h.Write([]byte(s))
+		h.Write([]byte{0})
+	}
+	for _, s := range m.rowName {
+		h.Write([]byte(s))
+		h.Write([]byte{0})
+	}
+	return h.Sum64()
+}
+
+// lpFor is the LP engine for m's structure, made when new.
+func (e *engine) lpFor(m *model) lp.Engine {
+	k := structure(m)
+	for i, key := range e.keys {
+		if key == k {
+			l := e.lps[i]
+			copy(e.keys[i:], e.keys[i+1:])
+			copy(e.lps[i:], e.lps[i+1:])
+			e.keys[len(e.keys)-1], e.lps[len(e.lps)-1] = k, l
+			return l
+		}
+	}
+	if len(e.lps) == keepEngines {
+		e.lps[0].Close()
+		e.keys, e.lps = e.keys[1:], e.lps[1:]
+	}
+	l := e.newLP()
+	e.keys, e.lps = append(e.keys, k), append(e.lps, l)
+	return l
+}
+
+// problem converts m for the engine layer, into the scratch problem.
+func (e *engine) problem(m *model) *lp.Problem {
+	p := &e.prob
+	p.Dense(m.nRows, m.nCols, m.a)
+	p.Obj, p.ColLo, p.ColUp, p.RowLo, p.RowUp = m.obj, m.colLo, m.colUp, m.rowLo, m.rowUp
+	return p
+}
+
+// solveLP solves m ignoring m.integer.
+func (e *engine) solveLP(m *model) (*solution, error) {
+	l := e.lpFor(m)
+	if err := l.Load(e.problem(m)); err != nil {
+		return nil, fmt.Errorf("%s: %w", l.Name(), err)
+	}
+	s, err := l.Solve()
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", l.Name(), err)
+	}
+	return &solution{status: s.Status, obj: s.Obj, x: s.X, act: s.RowAct, y: s.Y, d: s.D, basis: s.Basis}, nil
+}
+
+// solveMILP solves m honouring m.integer.
+func (e *engine) solveMILP(m *model) (*solution, error) {
+	if e.mip == nil {
+		return nil, fmt.Errorf("the %s engine has no branch and bound", e.lpName)
+	}
+	s, err := e.mip.SolveMIP(e.problem(m), m.integer, e.limits)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", e.mip.Name(), err)
+	}
+	out := &solution{status: s.Status, obj: s.Obj, x: s.X, bound: s.Bound, nodes: s.Nodes, limit: s.Limit, limits: e.limits}
+	if s.X != nil {
+		out.act = m.activity(s.X, nil)
+	}
+	return out, nil
+}
+
+// withLimits sets the branch-and-bound limits of later MILP solves.
+func (e *engine) withLimits(nodes int, t time.Duration) {
+	e.limits = lp.Limits{MaxNodes: nodes, MaxTime: t}
+}
+
+// rangingOf prepares cost ranging on an optimal LP solution of m.
+func rangingOf(m *model, s *solution) (*lp.Ranging, error) {
+	p := &lp.Problem{Obj: m.obj, ColLo: m.colLo, ColUp: m.colUp, RowLo: m.rowLo, RowUp: m.rowUp}
+	p.Dense(m.nRows, m.nCols, m.a)
+	return lp.NewRanging(p, &lp.Solution{Status: s.status, X: s.x, RowAct: s.act, Y: s.y, D: s.d, Basis: s.basis})
+}
+
+// simplexEngine is lipoplan's own simplex and branch and bound.
+func simplexEngine() *engine {
+	return &engine{lpName: "lipoplan-simplex", mipName: "lipoplan-bb",
+		newLP: func() lp.Engine { return lp.New() }, mip: lp.NewBranchAndBound()}
+}
+
+// gonumEngine is gonum's simplex, a test reference (no integer rules).
+func gonumEngine() *engine {
+	return &engine{lpName: "gonum", mipName: "gonum", newLP: func() lp.Engine { return lp.NewGonum() }}
+}
+
+// notProvenNote is the plain-words account of a branch and bound stopped
+// by its limit.
+func notProvenNote(s *solution, found bool) string {
+	lim := fmt.Sprintf("its limit of %d nodes", s.limits.MaxNodes)
+	if s.limit == "time" {
+		lim = fmt.Sprintf("its time limit of %v", s.limits.MaxTime)
+	}
+	if s.limits.MaxNodes <= 0 || s.limits.MaxTime <= 0 {
+		d := lp.Limits{}
+		if s.limit == "time" {
+			lim = "its time limit"
+		} else {
+			lim = fmt.Sprintf("its limit of %d LPs", max(s.nodes, d.MaxNodes))
+		}
+	}
+	if !found {
+		return fmt.Sprintf("branch and bound for the [rules] stopped at %s after %d LPs without finding a blend; the spec is not proven impossible", lim, s.nodes)
+	}
+	gap := ""
+	if !math.IsInf(s.bound, 0) && s.obj != 0 {
+		gap = fmt.Sprintf("; no blend costs less than %.4g (gap %.2g %%)", s.bound, 100*(s.obj-s.bound)/math.Abs(s.obj))
+	}
+	return fmt.Sprintf("NOT PROVEN OPTIMAL: branch and bound for the [rules] stopped at %s after %d LPs; this is the best blend found%s", lim, s.nodes, gap)
 }

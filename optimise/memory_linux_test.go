@@ -1,4 +1,4 @@
-//go:build linux
+//go:build coin && linux
 
 package optimise
 
@@ -46,8 +46,8 @@ func solveMany(t *testing.T, n int, cat *catalogue.Catalogue, spec *catalogue.Sp
 }
 
 func TestTenThousandSolvesDoNotGrow(t *testing.T) {
-	if testing.Short() || defaultEngine().name() == "gonum" {
-		t.Skip("memory soak of the C models: needs the COIN-OR build; skipped in -short mode")
+	if testing.Short() {
+		t.Skip("memory soak of the C models: skipped in -short mode")
 	}
 	cat := catalogue.DemoStocks()
 	spec, ok := catalogue.DemoSpec("laminating")
@@ -58,8 +58,8 @@ func TestTenThousandSolvesDoNotGrow(t *testing.T) {
 }
 
 func TestMILPSolvesDoNotGrow(t *testing.T) {
-	if testing.Short() || defaultEngine().name() == "gonum" {
-		t.Skip("needs the COIN-OR build; skipped in -short mode")
+	if testing.Short() {
+		t.Skip("memory soak of the C models: skipped in -short mode")
 	}
 	cat := catalogue.DemoStocks()
 	spec, ok := catalogue.DemoSpec("laminating")
@@ -75,8 +75,8 @@ func TestMILPSolvesDoNotGrow(t *testing.T) {
 // solves keeps the resident set flat as well (Clp_loadProblem replaces the
 // previous problem's arrays rather than adding to them).
 func TestSolverDoesNotGrow(t *testing.T) {
-	if testing.Short() || defaultEngine().name() == "gonum" {
-		t.Skip("memory soak of the C models: needs the COIN-OR build; skipped in -short mode")
+	if testing.Short() {
+		t.Skip("memory soak of the C models: skipped in -short mode")
 	}
 	cat := catalogue.DemoStocks()
 	lam, ok := catalogue.DemoSpec("laminating")

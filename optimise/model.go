@@ -2,16 +2,17 @@ package optimise
 
 import "math"
 
-// model is a bounded linear (or mixed integer) programme in the form the
-// COIN-OR solvers take:
+// model is a bounded linear (or mixed integer) programme in the form of
+// the engine layer (lipoplan/optimise/lp):
 //
 //	minimise   obj·x
 //	subject to rowLo <= A x <= rowUp,  colLo <= x <= colUp,
 //	           x[j] integer for j in integer.
 //
 // A is held dense and row-major in a (nRows x nCols): blend models are small
-// and nearly dense (every stock has an IV, an SFC, a SAFA ...). csc converts
-// it once for the solvers. An absent bound is ±Inf.
+// and nearly dense (every stock has an IV, an SFC, a SAFA ...); the engine
+// layer gets it in compressed sparse column form (lp.Problem.Dense). An
+// absent bound is ±Inf.
 type model struct {
 	nCols, nRows int
 	colName      []string
@@ -83,50 +84,6 @@ func (m *model) clone() *model {
 	out.a = append([]float64(nil), m.a...)
 	out.integer = append([]int(nil), m.integer...)
 	return &out
-}
-
-// csc is the compressed sparse column form of A (exact zeros dropped).
-type csc struct {
-	start []int32
-	index []int32
-	value []float64
-}
-
-func (m *model) csc() csc {
-	var c csc
-	m.cscInto(&c)
-	return c
-}
-
-// cscInto writes the compressed sparse column form of A into c, reusing
-// its arrays when they are large enough.
-func (m *model) cscInto(c *csc) {
-	nz := 0
-	for _, v := range m.a {
-		if v != 0 {
-			nz++
-		}
-	}
-	if cap(c.start) < m.nCols+1 {
-		c.start = make([]int32, m.nCols+1)
-	}
-	if cap(c.index) < nz {
-		c.index = make([]int32, nz)
-		c.value = make([]float64, nz)
-	}
-	c.start, c.index, c.value = c.start[:m.nCols+1], c.index[:nz], c.value[:nz]
-	k := 0
-	c.start[0] = 0
-	for j := 0; j < m.nCols; j++ {
-		for i, off := 0, j; i < m.nRows; i, off = i+1, off+m.nCols {
-			if v := m.a[off]; v != 0 {
-				c.index[k] = int32(i)
-				c.value[k] = v
-				k++
-			}
-		}
-		c.start[j+1] = int32(k)
-	}
 }
 
 // activity computes A x into dst.

@@ -1,14 +1,13 @@
 package optimise
 
 import (
-	"bytes"
 	"fmt"
 	"math"
 	"os"
 	"path/filepath"
-	"strconv"
 
 	"lipoplan/catalogue"
+	"lipoplan/optimise/lp"
 )
 
 // MPS writes the programme Solve would solve for cat and spec in free MPS
@@ -68,92 +67,11 @@ func writeAtomic(path string, b []byte) error {
 	return nil
 }
 
-func num(v float64) string { return strconv.FormatFloat(v, 'g', 17, 64) }
-
-// mps renders the model in free MPS. Names must be unique there; a repeated
-// row name (a spec listing the same limit twice) gets a "#2", "#3" suffix.
+// mps renders the model in free MPS (lp.MPS): rows and columns by name, a
+// repeated row name (a spec listing the same limit twice) with a "#2",
+// "#3" suffix.
 func (m *model) mps(name string) []byte {
-	m = m.clone()
-	seen := map[string]int{"cost": 1}
-	for i, r := range m.rowName {
-		seen[r]++
-		if k := seen[r]; k > 1 {
-			m.rowName[i] = fmt.Sprintf("%s#%d", r, k)
-		}
-	}
-	var b bytes.Buffer
-	fmt.Fprintf(&b, "NAME %s\nROWS\n N cost\n", name)
-	for i := 0; i < m.nRows; i++ {
-		lo, up := m.rowLo[i], m.rowUp[i]
-		t := "G"
-		switch {
-		case lo == up:
-			t = "E"
-		case math.IsInf(lo, -1) && math.IsInf(up, 1):
-			t = "N"
-		case math.IsInf(lo, -1):
-			t = "L"
-		}
-		fmt.Fprintf(&b, " %s %s\n", t, m.rowName[i])
-	}
-	b.WriteString("COLUMNS\n")
-	isInt := make([]bool, m.nCols)
-	for _, j := range m.integer {
-		isInt[j] = true
-	}
-	inInt := false
-	for j := 0; j < m.nCols; j++ {
-		if isInt[j] != inInt {
-			marker := "INTORG"
-			if inInt {
-				marker = "INTEND"
-			}
-			fmt.Fprintf(&b, " MARKER 'MARKER' '%s'\n", marker)
-			inInt = isInt[j]
-		}
-		fmt.Fprintf(&b, " %s cost %s\n", m.colName[j], num(m.obj[j]))
-		for i := 0; i < m.nRows; i++ {
-			if v := m.at(i, j); v != 0 {
-				fmt.Fprintf(&b, " %s %s %s\n", m.colName[j], m.rowName[i], num(v))
-			}
-		}
-	}
-	if inInt {
-		b.WriteString(" MARKER 'MARKER' 'INTEND'\n")
-	}
-	b.WriteString("RHS\n")
-	for i := 0; i < m.nRows; i++ {
-		lo, up := m.rowLo[i], m.rowUp[i]
-		rhs := lo
-		if math.IsInf(lo, -1) {
-			rhs = up
-		}
-		if !math.IsInf(rhs, 0) && rhs != 0 {
-			fmt.Fprintf(&b, " RHS %s %s\n", m.rowName[i], num(rhs))
-		}
-	}
-	b.WriteString("RANGES\n")
-	for i := 0; i < m.nRows; i++ {
-		lo, up := m.rowLo[i], m.rowUp[i]
-		if lo != up && !math.IsInf(lo, -1) && !math.IsInf(up, 1) {
-			fmt.Fprintf(&b, " RNG %s %s\n", m.rowName[i], num(up-lo))
-		}
-	}
-	b.WriteString("BOUNDS\n")
-	for j := 0; j < m.nCols; j++ {
-		lo, up := m.colLo[j], m.colUp[j]
-		switch {
-		case lo == up:
-			fmt.Fprintf(&b, " FX BND %s %s\n", m.colName[j], num(lo))
-		default:
-			if lo != 0 {
-				fmt.Fprintf(&b, " LO BND %s %s\n", m.colName[j], num(lo))
-			}
-			if !math.IsInf(up, 1) {
-				fmt.Fprintf(&b, " UP BND %s %s\n", m.colName[j], num(up))
-			}
-		}
-	}
-	b.WriteString("ENDATA\n")
-	return b.Bytes()
+	p := &lp.Problem{Obj: m.obj, ColLo: m.colLo, ColUp: m.colUp, RowLo: m.rowLo, RowUp: m.rowUp}
+	p.Dense(m.nRows, m.nCols, m.a)
+	return lp.MPS(p, name, m.colName, m.rowName, m.integer)
 }

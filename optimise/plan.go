@@ -74,12 +74,12 @@ func Plan(cat *catalogue.Catalogue, orders *catalogue.Orders) (*PlanResult, erro
 	return s.Plan(cat, orders)
 }
 
-func planWith(eng engine, cat *catalogue.Catalogue, orders *catalogue.Orders) (*PlanResult, error) {
+func planWith(eng *engine, cat *catalogue.Catalogue, orders *catalogue.Orders) (*PlanResult, error) {
 	return planIn(eng, &profileCache{}, cat, orders)
 }
 
 // planIn is planWith taking stock profiles from pc, shared by the orders.
-func planIn(eng engine, pc *profileCache, cat *catalogue.Catalogue, orders *catalogue.Orders) (*PlanResult, error) {
+func planIn(eng *engine, pc *profileCache, cat *catalogue.Catalogue, orders *catalogue.Orders) (*PlanResult, error) {
 	if orders == nil || len(orders.Orders) == 0 {
 		return nil, catalogue.Badf("the orders file has no [[order]]; add one with spec and tonnes")
 	}
@@ -253,7 +253,7 @@ func buildPlan(cat *catalogue.Catalogue, orders *catalogue.Orders, pc *profileCa
 }
 
 // planDiagnosis explains an impossible plan.
-func planDiagnosis(eng engine, pc *profileCache, cat *catalogue.Catalogue, orders *catalogue.Orders, m *model, pl *planLayout) ([]Relax, error) {
+func planDiagnosis(eng *engine, pc *profileCache, cat *catalogue.Catalogue, orders *catalogue.Orders, m *model, pl *planLayout) ([]Relax, error) {
 	var out []Relax
 	alone := true
 	for p, o := range orders.Orders {

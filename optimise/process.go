@@ -222,7 +222,7 @@ type slpRun struct {
 // slp runs the successive LP from the start LP's solution (m, sol) with the
 // feed proportions q0 as the first linearisation point, at most maxIter LP
 // solves.
-func (pm *procModel) slp(eng engine, ev *reactor, m *model, sol *solution, q0 []float64, maxIter int) (*slpRun, error) {
+func (pm *procModel) slp(eng *engine, ev *reactor, m *model, sol *solution, q0 []float64, maxIter int) (*slpRun, error) {
 	cur := pm.point(sol.x)
 	q0 = ev.proportionsOf(cur, q0)
 	v0, err := pm.violation(ev, cur)
@@ -708,7 +708,7 @@ func reportTemps(spec *catalogue.Spec, opt Options) []float64 {
 
 // infeasible reports an impossible process spec with the relaxation of the
 // plain model (no reactor, measured curves).
-func (pm *procModel) infeasible(eng engine, res *Result, base *model, why string) (*Result, error) {
+func (pm *procModel) infeasible(eng *engine, res *Result, base *model, why string) (*Result, error) {
 	res.Status = Infeasible
 	res.Process.Feed = nil
 	r, err := pm.lay.relaxation(eng, base)
@@ -885,13 +885,13 @@ func (pm *procModel) finish(res *Result, m *model, sol *solution, temps []float6
 
 	// Cost ranging: in the total form each stock's price is the cost of
 	// one column, so the plain ratio test applies to every stock.
-	rg, ferr := newRanger(m, sol.basis, sol.d, sol.y, nil)
+	rg, ferr := rangingOf(m, sol)
 	if ferr != nil {
 		return nil, fmt.Errorf("optimise %s: ranging: %w", specWhere(spec), ferr)
 	}
 	for j := 0; j < n; j++ {
 		s := lay.cols[j].stock
-		lo, hi := rg.costRange(j)
+		lo, hi := rg.CostRange(j)
 		res.Ranging = append(res.Ranging, Range{Stock: s.ID, InBlend: sol.x[j] > usedTol, Price: s.Price,
 			PriceLow: s.Price + 100*lo, PriceHigh: s.Price + 100*hi})
 	}

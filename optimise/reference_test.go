@@ -1,14 +1,10 @@
 package optimise
 
 import (
-	"bufio"
 	"fmt"
 	"math"
 	"math/rand/v2"
-	"os"
-	"os/exec"
 	"path/filepath"
-	"strconv"
 	"strings"
 	"testing"
 
@@ -16,132 +12,15 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"lipoplan/catalogue"
+	"lipoplan/optimise/lp/lptest"
 )
 
-// glpk is GLPK's answer to one MPS file, read from glpsol's plain-text
-// solution (-w) and sensitivity report (--ranges).
-type glpk struct {
-	status   string // "f" feasible (optimal) in the primal status field
-	obj      float64
-	rowDual  []float64
-	colDual  []float64
-	colValue []float64
-	costLo   map[string]float64 // column -> objective coefficient range
-	costHi   map[string]float64
-}
+// needGlpsol skips a test without GLPK's glpsol.
+func needGlpsol(t *testing.T) { lptest.NeedGlpsol(t) }
 
-func needGlpsol(t *testing.T) {
-	t.Helper()
-	if _, err := exec.LookPath("glpsol"); err != nil {
-		t.Skip("glpsol (Debian package glpk-utils) is not on PATH; .ci/run installs it. Skipping the GLPK reference comparison.")
-	}
-}
-
-// runGlpsol solves an MPS file with GLPK (glpsol --freemps) and reads its
-// plain-text solution: "s bas rows cols pst dst obj", then "i row st prim
-// dual" and "j col st prim dual" lines (GLPK's plain-text solution format,
-// as glpsol 5.0 writes it here). With ranges it also parses the sensitivity
-// report.
-func runGlpsol(t *testing.T, mps string, ranges bool) glpk {
-	t.Helper()
-	sol := mps + ".sol"
-	args := []string{"--freemps", mps, "-w", sol}
-	if ranges {
-		args = append(args, "--ranges", mps+".rng")
-	}
-	out, err := exec.Command("glpsol", args...).CombinedOutput()
-	require.NoError(t, err, string(out))
-	f, err := os.Open(sol)
-	require.NoError(t, err)
-	defer f.Close()
-	var g glpk
-	sc := bufio.NewScanner(f)
-	for sc.Scan() {
-		fs := strings.Fields(sc.Text())
-		if len(fs) == 0 {
-			continue
-		}
-		num := func(s string) float64 {
-			v, err := strconv.ParseFloat(s, 64)
-			require.NoError(t, err, sc.Text())
-			return v
-		}
-		switch fs[0] {
-		case "s":
-			if fs[1] == "bas" {
-				g.status, g.obj = fs[4], num(fs[6])
-			} else { // "s mip rows cols sst obj"
-				g.status, g.obj = fs[4], num(fs[5])
-				if g.status == "o" {
-					g.status = "f"
-				}
-			}
-		case "i":
-			if len(fs) == 5 {
-				g.rowDual = append(g.rowDual, num(fs[4]))
-			}
-		case "j":
-			if len(fs) == 5 {
-				g.colValue = append(g.colValue, num(fs[3]))
-				g.colDual = append(g.colDual, num(fs[4]))
-			} else {
-				g.colValue = append(g.colValue, num(fs[2]))
-			}
-		}
-	}
-	if ranges && g.status == "f" {
-		g.costLo, g.costHi = parseRanges(t, mps+".rng")
-	}
-	return g
-}
-
-// parseRanges reads the column part of glpsol's sensitivity report: each
-// column takes two lines; the 8th field of the first is the low end of the
-// objective coefficient range, the 4th field of the second its high end
-// ("." is zero).
-func parseRanges(t *testing.T, path string) (lo, hi map[string]float64) {
-	b, err := os.ReadFile(path)
-	require.NoError(t, err)
-	lo, hi = map[string]float64{}, map[string]float64{}
-	lines := strings.Split(string(b), "\n")
-	inCols := false
-	val := func(s string) float64 {
-		switch s {
-		case ".":
-			return 0
-		case "+Inf":
-			return math.Inf(1)
-		case "-Inf":
-			return math.Inf(-1)
-		}
-		v, err := strconv.ParseFloat(s, 64)
-		require.NoError(t, err, s)
-		return v
-	}
-	for i := 0; i < len(lines); i++ {
-		l := lines[i]
-		if strings.Contains(l, "Column name") {
-			inCols = true
-			continue
-		}
-		if strings.Contains(l, "Row name") {
-			inCols = false
-		}
-		fs := strings.Fields(l)
-		if !inCols || len(fs) < 8 {
-			continue
-		}
-		if _, err := strconv.Atoi(fs[0]); err != nil || i+1 >= len(lines) {
-			continue
-		}
-		next := strings.Fields(lines[i+1])
-		if len(next) < 4 {
-			continue
-		}
-		lo[fs[1]], hi[fs[1]] = val(fs[7]), val(next[3])
-		i++
-	}
-	return lo, hi
+// runGlpsol solves an MPS file with GLPK (lptest.Glpsol).
+func runGlpsol(t *testing.T, mps string, ranges bool) lptest.GLPK {
+	return lptest.Glpsol(t, mps, ranges)
 }
 
 type suiteCase struct {
@@ -167,9 +46,11 @@ func randomSuite(t *testing.T, count int, dir string) []suiteCase {
 }
 
 // TestRandomBlendsAgainstGLPKAndGonum solves 220 seeded random blend
-// problems (3..30 stocks, 3..20 limits) three ways: CLP through our binding,
-// gonum's lp.Simplex, and GLPK's glpsol reading the MPS file we write. The
-// optima must agree to 1e-6 relative. Where the optimal vertex is
+// problems (3..30 stocks, 3..20 limits) with every engine of the build
+// (lipoplan's simplex; CLP through our binding in the coin build), with
+// gonum's lp.Simplex, and with GLPK's glpsol reading the MPS file we write.
+// The optima must agree to 1e-6 relative, and every engine's shadow prices
+// and cost ranges with the default engine's. Where the optimal vertex is
 // nondegenerate (duals and cost ranges are then unique) the shadow prices
 // and reduced costs must also agree with GLPK's to 1e-6, and cost ranges
 // with GLPK's sensitivity report to its printed precision (5 decimals of the
@@ -181,7 +62,7 @@ func TestRandomBlendsAgainstGLPKAndGonum(t *testing.T) {
 	var nondeg, ranged int
 	for k, c := range cases {
 		g := runGlpsol(t, c.mps, k < 60)
-		require.Equal(t, "f", g.status, "case %d: GLPK finds no optimum", k)
+		require.Equal(t, "optimal", g.Status, "case %d: GLPK finds no optimum", k)
 		m, lay, err := build(c.cat, c.spec)
 		require.NoError(t, err)
 		var sols []*solution
@@ -189,14 +70,14 @@ func TestRandomBlendsAgainstGLPKAndGonum(t *testing.T) {
 			s, err := eng.solveLP(m)
 			require.NoError(t, err, "case %d %s", k, eng.name())
 			require.Equal(t, solOptimal, s.status, "case %d %s", k, eng.name())
-			assert.True(t, relClose(g.obj, s.obj, 1e-6), "case %d %s: objective %v, GLPK %v", k, eng.name(), s.obj, g.obj)
+			assert.True(t, relClose(g.Obj, s.obj, 1e-6), "case %d %s: objective %v, GLPK %v", k, eng.name(), s.obj, g.Obj)
 			sols = append(sols, s)
 		}
 		res := map[string]*Result{}
 		for _, eng := range engines() {
 			r, err := solveWith(eng, c.cat, c.spec, Options{})
 			require.NoError(t, err)
-			assert.True(t, relClose(g.obj, r.CostPerTonne, 1e-6), "case %d %s: cost %v, GLPK %v", k, eng.name(), r.CostPerTonne, g.obj)
+			assert.True(t, relClose(g.Obj, r.CostPerTonne, 1e-6), "case %d %s: cost %v, GLPK %v", k, eng.name(), r.CostPerTonne, g.Obj)
 			res[eng.name()] = r
 		}
 		if !nondegenerate(m, sols[0]) {
@@ -204,15 +85,15 @@ func TestRandomBlendsAgainstGLPKAndGonum(t *testing.T) {
 		}
 		nondeg++
 		for _, s := range sols {
-			for i := range g.rowDual {
-				assert.True(t, relClose(g.rowDual[i], s.y[i], 1e-6), "case %d row %s: dual %v, GLPK %v", k, m.rowName[i], s.y[i], g.rowDual[i])
+			for i := range g.RowDual {
+				assert.True(t, relClose(g.RowDual[i], s.y[i], 1e-6), "case %d row %s: dual %v, GLPK %v", k, m.rowName[i], s.y[i], g.RowDual[i])
 			}
-			for j := range g.colDual {
-				assert.True(t, relClose(g.colDual[j], s.d[j], 1e-6), "case %d column %s: reduced cost %v, GLPK %v", k, m.colName[j], s.d[j], g.colDual[j])
+			for j := range g.ColDual {
+				assert.True(t, relClose(g.ColDual[j], s.d[j], 1e-6), "case %d column %s: reduced cost %v, GLPK %v", k, m.colName[j], s.d[j], g.ColDual[j])
 			}
 		}
-		if len(res) == 2 {
-			a, b := res["clp"], res["gonum"]
+		a := res[defaultEngine().name()]
+		for _, b := range res {
 			require.Len(t, b.Limits, len(a.Limits))
 			for i := range a.Limits {
 				assert.True(t, relClose(a.Limits[i].ShadowPrice, b.Limits[i].ShadowPrice, 1e-6), "case %d %s: shadow %v vs %v", k, a.Limits[i].Name, a.Limits[i].ShadowPrice, b.Limits[i].ShadowPrice)
@@ -223,11 +104,11 @@ func TestRandomBlendsAgainstGLPKAndGonum(t *testing.T) {
 				assert.True(t, relClose(a.Ranging[i].PriceHigh, b.Ranging[i].PriceHigh, 1e-6), "case %d %s: price high %v vs %v", k, a.Ranging[i].Stock, a.Ranging[i].PriceHigh, b.Ranging[i].PriceHigh)
 			}
 		}
-		if g.costLo != nil {
+		if g.CostLo != nil {
 			ranged++
 			for _, r := range res {
 				for _, rg := range r.Ranging {
-					lo, hi := g.costLo[rg.Stock], g.costHi[rg.Stock]
+					lo, hi := g.CostLo[rg.Stock], g.CostHi[rg.Stock]
 					j := lay.index(rg.Stock)
 					if m.colLo[j] == m.colUp[j] {
 						continue // GLPK does not range fixed columns

@@ -10,7 +10,7 @@ import (
 // texts, parts and ranging arrays. Nothing in a Result points into them,
 // and one solve is done with them before the next begins. Reusing them
 // keeps a solve from streaming some 20 kB of fresh memory through the
-// cache, which otherwise slows the CLP solve that follows. Every method on
+// cache, which otherwise slows the solve that follows. Every method on
 // a nil scratch allocates afresh (Solve, Plan's orders).
 type scratch struct {
 	fl    []float64
@@ -29,10 +29,6 @@ type scratch struct {
 	at    []int
 	parts []blend.Part
 	idx   []int
-	// ranging
-	rgFl  []float64
-	rgInt []int
-	rgSt  []varState
 }
 
 // reuse returns s[:n] cleared, or a new slice when s is too short.
@@ -150,11 +146,4 @@ func (s *scratch) blendParts(n int) ([]blend.Part, []int) {
 		return make([]blend.Part, 0, n), make([]int, 0, n)
 	}
 	return reuse(&s.parts, n)[:0], reuse(&s.idx, n)[:0]
-}
-
-func (s *scratch) rangerArrays(nf, ni, nst int) ([]float64, []int, []varState) {
-	if s == nil {
-		return make([]float64, nf), make([]int, ni), make([]varState, 0, nst)
-	}
-	return reuse(&s.rgFl, nf), reuse(&s.rgInt, ni), reuse(&s.rgSt, nst)[:0]
 }

@@ -1,7 +1,6 @@
 package optimise
 
 import (
-	"errors"
 	"fmt"
 	"math"
 	"sort"
@@ -10,10 +9,11 @@ import (
 	"lipoplan/catalogue"
 )
 
-// solve runs one Solve on an engine of its own, so that the LPs of one call
-// (the base LP, the LP after a MILP, an elastic programme) share one CLP
-// model, freed before it returns. Stocks are profiled once each, without a
-// cache (one build has nothing to share it with).
+// solve runs one Solve on an engine of its own, freed before it returns
+// (the LPs of one call, the base LP, the LP after a MILP, an elastic
+// programme, each get an LP engine of their own structure). Stocks are
+// profiled once each, without a cache (one build has nothing to share it
+// with).
 func solve(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result, error) {
 	eng := reusableEngine()
 	defer eng.close()
@@ -24,17 +24,17 @@ func solve(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result
 //
 // Without integer rules the base LP is solved once; its duals, reduced
 // costs and basis give shadow prices and cost ranging. With integer rules
-// the MILP (CBC) picks which stocks enter; the LP with those choices fixed
+// the MILP (branch and bound) picks which stocks enter; the LP with those choices fixed
 // (excluded stocks at 0, included ones at >= min_if_used) is then solved for
 // duals and ranging, the usual way to price a MILP answer. max_stocks is
 // priced by solving again with one stock more.
-func solveWith(eng engine, cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result, error) {
+func solveWith(eng *engine, cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result, error) {
 	return solveIn(eng, nil, nil, cat, spec, opt)
 }
 
 // solveIn is solveWith taking stock profiles from pc (nil: computed) and
 // working buffers from sc (nil: allocated).
-func solveIn(eng engine, pc *profileCache, sc *scratch, cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result, error) {
+func solveIn(eng *engine, pc *profileCache, sc *scratch, cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result, error) {
 	base, lay, err := buildIn(cat, spec, pc, sc)
 	if err != nil {
 		return nil, err
@@ -46,13 +46,26 @@ func solveIn(eng engine, pc *profileCache, sc *scratch, cat *catalogue.Catalogue
 	}
 	lpm := base
 	var choice []bool
+	status := Optimal
 	if lay.rules.Active() {
 		res.Engine = eng.milpName() + "+" + eng.name()
 		s, err := solveRules(eng, base, lay, lay.rules)
 		if err != nil {
 			return nil, err
 		}
-		if s.status != solOptimal {
+		switch s.status {
+		case solOptimal:
+		case solNotProven:
+			// The best blend branch and bound found, and it says so.
+			status = NotProven
+			res.Notes = append(res.Notes, notProvenNote(s, true))
+		case solNoSolution:
+			res.Status = NotProven
+			res.Notes = append(res.Notes, notProvenNote(s, false))
+			return res, nil
+		case solUnbounded:
+			return nil, fmt.Errorf("optimise %s: the programme is unbounded, which a blend with shares adding to 100 %% cannot be", specWhere(spec))
+		default:
 			return infeasible(eng, res, base, lay)
 		}
 		choice = lay.choices(s.x)
@@ -68,7 +81,7 @@ func solveIn(eng engine, pc *profileCache, sc *scratch, cat *catalogue.Catalogue
 	case solUnbounded:
 		return nil, fmt.Errorf("optimise %s: the programme is unbounded, which a blend with shares adding to 100 %% cannot be", specWhere(spec))
 	}
-	res.Status = Optimal
+	res.Status = status
 	if err := lay.report(res, lpm, sol, choice, opt); err != nil {
 		return nil, err
 	}
@@ -81,22 +94,19 @@ func solveIn(eng engine, pc *profileCache, sc *scratch, cat *catalogue.Catalogue
 }
 
 // solveRules solves the MILP of base with the given rules.
-func solveRules(eng engine, base *model, lay *layout, rules catalogue.Rules) (*solution, error) {
+func solveRules(eng *engine, base *model, lay *layout, rules catalogue.Rules) (*solution, error) {
 	saved := lay.rules
 	lay.rules = rules
 	defer func() { lay.rules = saved }()
 	mm := lay.withRules(base, func(j int) float64 { return math.Min(base.colUp[j], 100) })
 	s, err := eng.solveMILP(mm)
-	if errors.Is(err, errNoMILP) {
-		return nil, &catalogue.BadInput{Err: fmt.Errorf("%s: [rules]: %w", specWhere(lay.spec), err)}
-	}
 	if err != nil {
 		return nil, fmt.Errorf("optimise %s: %w", specWhere(lay.spec), err)
 	}
 	return s, nil
 }
 
-func infeasible(eng engine, res *Result, base *model, lay *layout) (*Result, error) {
+func infeasible(eng *engine, res *Result, base *model, lay *layout) (*Result, error) {
 	res.Status = Infeasible
 	r, err := lay.relaxation(eng, base)
 	if err != nil {
@@ -272,7 +282,7 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 
 	// Cost ranging: objective coefficients are price/100, so a change δ
 	// of the coefficient is a price change of 100·δ.
-	rg, ferr := newRanger(m, sol.basis, sol.d, sol.y, l.sc)
+	rg, ferr := rangingOf(m, sol)
 	for j := 0; j < n; j++ {
 		s := l.cols[j].stock
 		r := Range{Stock: s.ID, InBlend: sol.x[j] > usedTol, Price: s.Price, PriceLow: math.Inf(-1), PriceHigh: math.Inf(1)}
@@ -284,7 +294,7 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 				r.PriceLow = s.Price - 100*d
 			}
 		case ferr == nil:
-			lo, hi := rg.costRange(j)
+			lo, hi := rg.CostRange(j)
 			r.PriceLow, r.PriceHigh = s.Price+100*lo, s.Price+100*hi
 		default:
 			return fmt.Errorf("optimise %s: ranging: %w", specWhere(l.spec), ferr)
@@ -297,18 +307,21 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 // priceMaxStocks sets the shadow price of max_stocks: the saving per tonne
 // from allowing one stock more (a finite difference, as the rule is an
 // integer), by solving the MILP again with max_stocks + 1.
-func (l *layout) priceMaxStocks(eng engine, base *model, res *Result) error {
+func (l *layout) priceMaxStocks(eng *engine, base *model, res *Result) error {
 	r := l.rules
 	used := len(res.Blend)
 	lr := LimitReport{Name: "max_stocks", Value: float64(used), Bound: float64(r.MaxStocks), Binding: used >= r.MaxStocks}
-	if lr.Binding && r.MaxStocks < l.n() {
+	if lr.Binding && r.MaxStocks < l.n() && res.Status == Optimal {
 		more := r
 		more.MaxStocks++
 		s, err := solveRules(eng, base, l, more)
 		if err != nil {
 			return err
 		}
-		if s.status == solOptimal {
+		switch s.status {
+		case solNotProven:
+			res.Notes = append(res.Notes, "max_stocks is not priced: "+notProvenNote(s, true))
+		case solOptimal:
 			var c float64
 			for j := 0; j < l.n(); j++ {
 				c += l.cols[j].stock.Price * math.Max(s.x[j], 0) / 100

@@ -10,13 +10,16 @@ import (
 	"lipoplan/catalogue"
 )
 
-// engines under test: the build's default (CLP/CBC with cgo) and gonum's
-// simplex, which is always compiled in.
-func engines() []engine {
-	if defaultEngine().name() == "gonum" {
-		return []engine{gonumEngine{}}
+// engines under test: the build's default (lipoplan's simplex, or CLP/CBC
+// in the coin build, where lipoplan's simplex is tested too) and gonum's
+// simplex, a reference that is always compiled in. Engines keep their LP
+// engines warm from one model to the next, as a Solver does.
+func engines() []*engine {
+	es := []*engine{defaultEngine()}
+	if es[0].name() != simplexEngine().name() {
+		es = append(es, simplexEngine())
 	}
-	return []engine{defaultEngine(), gonumEngine{}}
+	return append(es, gonumEngine())
 }
 
 func twoStocks() *catalogue.Catalogue {

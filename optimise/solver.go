@@ -7,20 +7,23 @@ import (
 )
 
 // Solver solves one spec or plan after another with the same working
-// memory: in the COIN-OR build it keeps one CLP model (and the buffers that
-// fill it) between solves, which saves making a CLP model per solve, a
-// sizeable share of a small blend LP; and it keeps each stock's computed
-// fatty-acid properties (blend.Profile) for as long as that stock's fatty
-// acids stay the same, so that re-solving after an edit of limits, prices
-// or availability does not recompute them. Every solve starts afresh from
-// the slack basis, so a Solver gives the answers of Solve and Plan, whatever
-// it solved before.
+// memory. It keeps an LP engine per model structure (the same stocks and
+// limits: a what-if edit of prices, limits or amounts on hand keeps it), and
+// each re-solve warm-starts from the basis the last solve of that
+// structure ended with, which after a small edit takes a few pivots of the
+// dual simplex (bounds and limits) or of the primal (prices) instead of a
+// solve from scratch. It also keeps each stock's computed fatty-acid
+// properties (blend.Profile) for as long as that stock's fatty acids stay
+// the same. The optimum found is the one a fresh Solve finds; where the
+// programme has several optima (ties), a warm start may settle on another
+// of them, as a solver with warm starts does.
 //
 // A Solver is for one goroutine at a time (a workspace session, a benchmark
-// loop); give each goroutine its own. Close frees its C memory; the zero
-// value is not usable, make one with NewSolver.
+// loop); give each goroutine its own. Close frees what it holds (C memory
+// in the coin build); the zero value is not usable, make one with
+// NewSolver.
 type Solver struct {
-	eng  engine
+	eng  *engine
 	prof profileCache
 	sc   scratch
 }

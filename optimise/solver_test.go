@@ -40,13 +40,11 @@ func TestSolverMatchesFreshSolves(t *testing.T) {
 	for _, s := range catalogue.DemoSpecs() {
 		jobs = append(jobs, job{demo, s})
 	}
-	if defaultEngine().name() != "gonum" {
-		lam, ok := catalogue.DemoSpec("laminating")
-		require.True(t, ok)
-		lam = lam.Clone()
-		lam.Rules = catalogue.Rules{MaxStocks: 3, MinIfUsed: 8}
-		jobs = append(jobs, job{demo, lam})
-	}
+	lam, ok := catalogue.DemoSpec("laminating")
+	require.True(t, ok)
+	lam = lam.Clone()
+	lam.Rules = catalogue.Rules{MaxStocks: 3, MinIfUsed: 8}
+	jobs = append(jobs, job{demo, lam})
 	want := make([]*Result, len(jobs))
 	infeasible := 0
 	for i, j := range jobs {

@@ -48,7 +48,7 @@ func Sweep(cat *catalogue.Catalogue, spec *catalogue.Spec, id string, from, to f
 	work := cat.Clone()
 	st, _ := work.Find(id)
 	// One Solver for every price: only a price changes between solves, so
-	// its CLP model and the stocks' profiles serve them all.
+	// its warm LP engine and the stocks' profiles serve them all.
 	sv := NewSolver()
 	defer sv.Close()
 	at := func(p float64) (*Result, error) {

@@ -1,4 +1,4 @@
-//go:build cgo && !purego
+//go:build coin
 
 // Package coin is a thin cgo binding over the C interfaces of COIN-OR CLP
 // (Clp_C_Interface.h, linear programmes) and CBC (Cbc_C_Interface.h, mixed

@@ -1,4 +1,4 @@
-//go:build cgo && !purego
+//go:build coin
 
 package coin
 

@@ -1,4 +1,4 @@
-//go:build cgo && !purego && linux
+//go:build coin && linux
 
 package coin
 

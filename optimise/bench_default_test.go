@@ -1,4 +1,4 @@
-//go:build !cgo || purego
+//go:build !coin
 
 package optimise
 
@@ -10,6 +10,6 @@ import (
 
 func benchBareCLP(b *testing.B, _ *catalogue.Catalogue, _ *catalogue.Spec) {
 	for _, name := range []string{"BareCLP", "BareCLPReused"} {
-		b.Run(name, func(b *testing.B) { b.Skip("CLP needs the cgo build without -tags purego") })
+		b.Run(name, func(b *testing.B) { b.Skip("CLP needs the coin build (-tags coin)") })
 	}
 }
