@@ -31,6 +31,8 @@
 package optimise
 
 import (
+	"time"
+
 	"lipoplan/blend"
 	"lipoplan/catalogue"
 )
@@ -51,7 +53,15 @@ const (
 // Options tune a solve. The zero value is ready to use.
 type Options struct {
 	Temps []float64 // SFC temperatures to report; nil means blend.Temps(spec temps...)
+	// Limits of branch and bound for the integer rules: LPs solved at most
+	// (0: 100 000) and wall time at most (0: 60 s). A search stopped by a
+	// limit gives Status NotProven.
+	MaxNodes int
+	MaxTime  time.Duration
 }
+
+// EngineInfo names the engines of this build, for lipoplan --version.
+func EngineInfo() string { return engineInfo() }
 
 // Line is one stock in the optimal blend.
 type Line struct {

@@ -197,24 +197,23 @@ func gonumEngine() *engine {
 // notProvenNote is the plain-words account of a branch and bound stopped
 // by its limit.
 func notProvenNote(s *solution, found bool) string {
-	lim := fmt.Sprintf("its limit of %d nodes", s.limits.MaxNodes)
-	if s.limit == "time" {
-		lim = fmt.Sprintf("its time limit of %v", s.limits.MaxTime)
+	l := s.limits
+	if l.MaxNodes <= 0 {
+		l.MaxNodes = 100000
 	}
-	if s.limits.MaxNodes <= 0 || s.limits.MaxTime <= 0 {
-		d := lp.Limits{}
-		if s.limit == "time" {
-			lim = "its time limit"
-		} else {
-			lim = fmt.Sprintf("its limit of %d LPs", max(s.nodes, d.MaxNodes))
-		}
+	if l.MaxTime <= 0 {
+		l.MaxTime = 60 * time.Second
+	}
+	lim := fmt.Sprintf("its limit of %d LPs", l.MaxNodes)
+	if s.limit == "time" {
+		lim = fmt.Sprintf("its time limit of %v (%d LPs)", l.MaxTime, s.nodes)
 	}
 	if !found {
-		return fmt.Sprintf("branch and bound for the [rules] stopped at %s after %d LPs without finding a blend; the spec is not proven impossible", lim, s.nodes)
+		return fmt.Sprintf("branch and bound for the [rules] stopped at %s without finding a blend that meets them; the spec is not proven impossible", lim)
 	}
 	gap := ""
 	if !math.IsInf(s.bound, 0) && s.obj != 0 {
-		gap = fmt.Sprintf("; no blend costs less than %.4g (gap %.2g %%)", s.bound, 100*(s.obj-s.bound)/math.Abs(s.obj))
+		gap = fmt.Sprintf("; no blend can cost less than %.6g per tonne (gap %.2g %%)", s.bound, 100*max(0, s.obj-s.bound)/math.Abs(s.obj))
 	}
-	return fmt.Sprintf("NOT PROVEN OPTIMAL: branch and bound for the [rules] stopped at %s after %d LPs; this is the best blend found%s", lim, s.nodes, gap)
+	return fmt.Sprintf("NOT PROVEN OPTIMAL: branch and bound for the [rules] stopped at %s; this is the cheapest blend it found%s", lim, gap)
 }

@@ -6,6 +6,7 @@ import (
 	"math/rand/v2"
 	"os/exec"
 	"path/filepath"
+	"strings"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -154,4 +155,46 @@ func TestMaxStocksOnPaper(t *testing.T) {
 	assert.InDelta(t, 100, l.ShadowPrice, 1e-7)
 	assert.Equal(t, "allowing one more stock saves 100.00 EUR/t", l.Explain)
 	assert.Equal(t, defaultEngine().milpName()+"+"+defaultEngine().name(), r.Engine)
+}
+
+// TestRulesNotProvenWithinNodes: the demo laminating spec with at most three
+// stocks at 8 % or more needs over a dozen branch-and-bound nodes; with each
+// smaller limit of LPs the answer must say it is not proven (status and
+// note), and any blend it gives must meet the rules and cost no less than
+// the proven optimum of an unlimited search.
+func TestRulesNotProvenWithinNodes(t *testing.T) {
+	cat := catalogue.DemoStocks()
+	lam, ok := catalogue.DemoSpec("laminating")
+	require.True(t, ok)
+	spec := lam.Clone()
+	spec.Rules = catalogue.Rules{MaxStocks: 3, MinIfUsed: 8}
+	full, err := Solve(cat, spec, Options{})
+	require.NoError(t, err)
+	require.Equal(t, Optimal, full.Status)
+	withBlend, limit := 0, 1
+	for ; limit < 1000; limit++ {
+		cut, err := Solve(cat, spec, Options{MaxNodes: limit})
+		require.NoError(t, err)
+		if cut.Status == Optimal {
+			assert.InDelta(t, full.CostPerTonne, cut.CostPerTonne, 1e-9)
+			break
+		}
+		require.Equal(t, NotProven, cut.Status, "limit %d", limit)
+		require.NotEmpty(t, cut.Notes)
+		assert.Contains(t, strings.Join(cut.Notes, " "), fmt.Sprintf("limit of %d LPs", limit))
+		if len(cut.Blend) == 0 {
+			assert.Contains(t, cut.Notes[0], "without finding a blend")
+			continue
+		}
+		withBlend++
+		assert.Contains(t, cut.Notes[0], "NOT PROVEN OPTIMAL")
+		assert.LessOrEqual(t, len(cut.Blend), 3)
+		for _, l := range cut.Blend {
+			assert.GreaterOrEqual(t, l.Pct, 8-1e-6, l.Stock)
+		}
+		assert.GreaterOrEqual(t, cut.CostPerTonne, full.CostPerTonne-1e-9)
+	}
+	t.Logf("proven optimal from a limit of %d LPs; %d smaller limits left a blend found but not proven", limit, withBlend)
+	assert.Greater(t, limit, 3, "the search needs several LPs")
+	assert.Greater(t, withBlend, 0, "some limit leaves a blend found but not proven")
 }

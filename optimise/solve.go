@@ -39,6 +39,7 @@ func solveIn(eng *engine, pc *profileCache, sc *scratch, cat *catalogue.Catalogu
 	if err != nil {
 		return nil, err
 	}
+	eng.withLimits(opt.MaxNodes, opt.MaxTime)
 	res := &Result{Engine: eng.name(), Currency: cat.Currency, Spec: spec.Name, Batch: spec.Batch}
 	if spec.Process != nil {
 		res.Notes = append(res.Notes, "the spec's [process] step (interesterification) is not modelled by solve: "+
@@ -166,17 +167,16 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 	res.Ranging = make([]Range, 0, n)
 	parts, idx := l.sc.blendParts(m.nRows)
 	var cost float64
+	res.Blend = l.lines(sol.x)
 	for j := 0; j < n; j++ {
 		x := math.Max(sol.x[j], 0)
 		s := l.cols[j].stock
 		cost += s.Price * x / 100
 		if x > usedTol {
-			res.Blend = append(res.Blend, Line{Stock: s.ID, Name: s.Name, Pct: x, Tonnes: x * batch / 100})
 			parts = append(parts, blend.Part{Stock: s, Pct: x})
 			idx = append(idx, j)
 		}
 	}
-	sort.SliceStable(res.Blend, func(a, b int) bool { return res.Blend[a].Pct > res.Blend[b].Pct })
 	res.CostPerTonne = cost
 	res.BatchCost = cost * batch
 	props, err := l.mix(parts, idx, reportTemps(l.spec, opt))
@@ -302,6 +302,19 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 		res.Ranging = append(res.Ranging, r)
 	}
 	return nil
+}
+
+// lines is the blend of the stock columns' values x: every stock above
+// usedTol, in % of batch and tonnes, the largest share first.
+func (l *layout) lines(x []float64) []Line {
+	var out []Line
+	for j, c := range l.cols {
+		if v := math.Max(x[j], 0); v > usedTol {
+			out = append(out, Line{Stock: c.stock.ID, Name: c.stock.Name, Pct: v, Tonnes: v * l.spec.Batch / 100})
+		}
+	}
+	sort.SliceStable(out, func(a, b int) bool { return out[a].Pct > out[b].Pct })
+	return out
 }
 
 // priceMaxStocks sets the shadow price of max_stocks: the saving per tonne

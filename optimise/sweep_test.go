@@ -2,6 +2,7 @@ package optimise
 
 import (
 	"math"
+	"math/rand/v2"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -60,4 +61,70 @@ func TestSweepBadInput(t *testing.T) {
 	assert.True(t, catalogue.IsBadInput(err))
 	_, err = Sweep(cat, spec, "a", 1, 5, 1, Options{})
 	assert.True(t, catalogue.IsBadInput(err))
+}
+
+// TestSweepParametricAgainstSolves sweeps one stock's price on 30 seeded
+// random specs by parametric LP and checks it against gonum's simplex (an
+// outside reference): the cost at every step is gonum's optimum with the
+// stock at that price, to 1e-7 relative; at every breakpoint gonum's blend
+// 1e-4 below and 1e-4 above the price differ (a change of the optimal blend
+// is there) while its costs meet the breakpoint's (the optimal cost is
+// continuous in a cost coefficient). Every breakpoint the step-by-step
+// sweep (a solve per step, bisection) finds is among them, to its
+// tolerance; it finds one at most between two steps, the parametric sweep
+// every one.
+func TestSweepParametricAgainstSolves(t *testing.T) {
+	r := rand.New(rand.NewPCG(1955, 39))
+	swept, extra := 0, 0
+	g := gonumEngine()
+	at := func(cat *catalogue.Catalogue, spec *catalogue.Spec, id string, p float64) *Result {
+		work := cat.Clone()
+		st, _ := work.Find(id)
+		st.Price = p
+		res, err := solveWith(g, work, spec, Options{})
+		require.NoError(t, err)
+		return res
+	}
+	for k := 0; k < 30; k++ {
+		cat := genStocks(r, 3+r.IntN(20))
+		spec := genSpec(r, cat, 3+r.IntN(12))
+		id := cat.Stocks[r.IntN(len(cat.Stocks))].ID
+		from, to := 300+1000*r.Float64(), 1500+1500*r.Float64()
+		if r.IntN(2) == 0 {
+			from, to = to, from
+		}
+		got, err := Sweep(cat, spec, id, from, to, 11, Options{})
+		require.NoError(t, err, "case %d", k)
+		require.Len(t, got.Points, 11)
+		for _, p := range got.Points {
+			want := at(cat, spec, id, p.Value)
+			require.Equal(t, want.Status, p.Status, "case %d price %g", k, p.Value)
+			if p.Status == Optimal {
+				assert.True(t, relClose(want.CostPerTonne, p.CostPerTonne, 1e-7), "case %d price %g: sweep %v, gonum %v", k, p.Value, p.CostPerTonne, want.CostPerTonne)
+			}
+		}
+		for i, bp := range got.Breakpoints {
+			below, above := at(cat, spec, id, bp*(1-1e-4)), at(cat, spec, id, bp*(1+1e-4))
+			assert.False(t, sameBlend(below, above), "case %d: no change of blend at breakpoint %g", k, bp)
+			assert.True(t, relClose(got.BreakpointCosts[i], below.CostPerTonne, 1e-3), "case %d breakpoint %g: cost %v, gonum below %v", k, bp, got.BreakpointCosts[i], below.CostPerTonne)
+			assert.True(t, relClose(got.BreakpointCosts[i], above.CostPerTonne, 1e-3), "case %d breakpoint %g: cost %v, gonum above %v", k, bp, got.BreakpointCosts[i], above.CostPerTonne)
+		}
+		prices := make([]float64, 11)
+		for i, p := range got.Points {
+			prices[i] = p.Value
+		}
+		ref := &SweepResult{Tolerance: got.Tolerance}
+		require.NoError(t, sweepBySolves(ref, cat, spec, id, prices, Options{}))
+		for _, want := range ref.Breakpoints {
+			found := false
+			for _, bp := range got.Breakpoints {
+				found = found || math.Abs(bp-want) <= 2*got.Tolerance
+			}
+			assert.True(t, found, "case %d: breakpoint %g of the step-by-step sweep is not among %v", k, want, got.Breakpoints)
+		}
+		swept += len(got.Breakpoints)
+		extra += len(got.Breakpoints) - len(ref.Breakpoints)
+	}
+	t.Logf("%d breakpoints checked, %d of them between steps the bisection could not split", swept, extra)
+	assert.Greater(t, swept, 15)
 }

@@ -31,9 +31,16 @@ type Snapshot struct {
 	Took time.Duration // wall time of Evaluate
 }
 
-// Feasible reports whether the snapshot holds an optimal blend.
+// Feasible reports whether the snapshot holds a blend: the optimal one, or
+// the best one branch and bound found before its limit (NotProven, with
+// its note).
 func (s *Snapshot) Feasible() bool {
-	return s != nil && s.Err == nil && s.Result != nil && s.Result.Status == optimise.Optimal
+	return s != nil && s.Err == nil && s.Result != nil && hasBlend(s.Result)
+}
+
+// hasBlend reports whether a result holds a blend to show.
+func hasBlend(r *optimise.Result) bool {
+	return r.Status == optimise.Optimal || r.Status == optimise.NotProven && len(r.Blend) > 0
 }
 
 // Limit finds the optimiser's report for a limit name such as "iv.max".
@@ -100,7 +107,7 @@ func Evaluate(sc *Scenario, rev int) (snap *Snapshot) {
 		return snap
 	}
 	snap.Result = res
-	if res.Status != optimise.Optimal {
+	if !hasBlend(res) {
 		return snap
 	}
 	parts := blendParts(cat, res)

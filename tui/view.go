@@ -138,8 +138,12 @@ func (m *Model) header(w int) string {
 		right = st.warn.Render("solving…")
 	case s.Err != nil:
 		right = st.bad.Render("solve failed")
+	case s.Result.Status == optimise.NotProven && hasBlend(s.Result):
+		right = st.warn.Render(fmt.Sprintf("%.2f %s/t, not proven cheapest", s.Result.CostPerTonne, m.currency()))
 	case s.Result.Status == optimise.Optimal:
 		right = st.ok.Render(fmt.Sprintf("%.2f %s/t", s.Result.CostPerTonne, m.currency()))
+	case s.Result.Status == optimise.NotProven:
+		right = st.bad.Render("no blend found in time")
 	default:
 		right = st.bad.Render("spec cannot be met")
 	}
@@ -185,6 +189,8 @@ func (m *Model) statusLine(w int) string {
 		return m.styles.muted.Render(" Solving the first blend…")
 	case s.Err != nil:
 		return m.styles.msgErr.Render(" ✗ The solve failed; see 1 Blend. Undo (u) or change the last edit.")
+	case s.Result.Status == optimise.NotProven && len(s.Result.Notes) > 0:
+		return m.styles.msgErr.Render(" ✗ " + ansi.Truncate(s.Result.Notes[0], max(w-4, 10), "…"))
 	case s.Result.Status != optimise.Optimal:
 		return m.styles.msgErr.Render(" ✗ The spec cannot be met: 1 Blend shows the smallest relaxation; R applies it.")
 	}
@@ -195,7 +201,7 @@ func (m *Model) bottomLine(w int) string {
 	if m.prompt.kind != promptNone {
 		return " " + m.input.view() + m.styles.muted.Render("   enter apply · esc cancel")
 	}
-	infeasible := m.snap != nil && m.snap.Result != nil && m.snap.Result.Status != optimise.Optimal
+	infeasible := m.snap != nil && m.snap.Result != nil && !hasBlend(m.snap.Result)
 	return " " + m.help.ShortHelpView(m.keys.helpFor(m.panel, infeasible))
 }
 
@@ -231,11 +237,15 @@ func (m *Model) blendPanel(w, h int) []string {
 		return append(out, "", st.muted.Render(" Undo the last edit (u) or correct it on 2 Stocks / 3 Limits."))
 	}
 	r := s.Result
-	if r.Status != optimise.Optimal {
+	if !hasBlend(r) {
 		return m.relaxationLines(w, r)
 	}
 	cur := m.currency()
-	out := []string{" " + st.head.Render(fmt.Sprintf("Cheapest blend  %.2f %s/t", r.CostPerTonne, cur)) +
+	title := "Cheapest blend"
+	if r.Status == optimise.NotProven {
+		title = "Best blend found, not proven cheapest"
+	}
+	out := []string{" " + st.head.Render(fmt.Sprintf("%s  %.2f %s/t", title, r.CostPerTonne, cur)) +
 		st.muted.Render(fmt.Sprintf("   batch %s t costs %.0f %s", num(r.Batch), r.BatchCost, cur))}
 	nameW := max(8, w-48)
 	out = append(out, st.muted.Render(" "+fit("stock", 13)+fit("name", nameW)+rfit("%", 8)+rfit("t", 9)+rfit(cur+"/t", 12)))
@@ -301,6 +311,15 @@ func (m *Model) blendPanel(w, h int) []string {
 // relaxationLines explains an impossible spec and what would fix it.
 func (m *Model) relaxationLines(w int, r *optimise.Result) []string {
 	st := m.styles
+	if r.Status == optimise.NotProven {
+		out := []string{"", " " + st.bad.Render("No blend found within the limits of branch and bound."), ""}
+		for _, n := range r.Notes {
+			for _, l := range strings.Split(ansi.Wordwrap(n, max(w-4, 20), " "), "\n") {
+				out = append(out, "   "+l)
+			}
+		}
+		return out
+	}
 	out := []string{"", " " + st.bad.Render("This spec cannot be met with the stocks allowed."), ""}
 	if len(r.Relaxation) == 0 {
 		return append(out, " No single relaxation was found. Allow more stocks (2 Stocks) or widen limits (3 Limits).")

@@ -93,6 +93,10 @@ func (a *app) main(args []string) (code int) {
 		}
 		return exitOK
 	}
+	if args[0] == "--version" || args[0] == "-version" || args[0] == "version" {
+		writeVersion(a.stdout)
+		return exitOK
+	}
 	for _, c := range commands() {
 		if c.name == args[0] {
 			return a.exit(c.run(a, args[1:]))
@@ -139,7 +143,7 @@ func (a *app) usage(w io.Writer) {
 	}
 	fmt.Fprintln(w)
 	fmt.Fprintln(w, "--stocks and --spec default to the embedded demo data. Exit codes: 0 done, 2 bad input,")
-	fmt.Fprintln(w, "3 spec cannot be met (diagnosis printed), 1 internal fault.")
+	fmt.Fprintln(w, "3 spec cannot be met (diagnosis printed), 1 internal fault. lipoplan --version names the engine.")
 }
 
 func colorAllowed(f *os.File) bool {

@@ -172,3 +172,24 @@ func firstBad(t *testing.T) string {
 	require.NotEmpty(t, files)
 	return filepath.Base(files[0])
 }
+
+// assertEngineNamed checks a report's engine against lipoplan --version,
+// which names the engine of this build first on its "engine:" line.
+func assertEngineNamed(t *testing.T, engine any) {
+	t.Helper()
+	code, out, _ := run(t, "--version")
+	require.Equal(t, 0, code)
+	name, ok := engine.(string)
+	require.True(t, ok, "engine is %v", engine)
+	require.NotEmpty(t, name)
+	assert.Contains(t, out, "engine: "+name, "the report's engine is the one --version names")
+}
+
+// TestVersion: lipoplan --version names the build and the engines.
+func TestVersion(t *testing.T) {
+	for _, arg := range []string{"--version", "version"} {
+		code, out, errs := run(t, arg)
+		require.Equal(t, 0, code, errs)
+		assert.Regexp(t, `^lipoplan \S+.* \(go[0-9.]+\S*, [a-z0-9]+/[a-z0-9]+\)\nengine: \S+`, out)
+	}
+}

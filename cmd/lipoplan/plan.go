@@ -77,7 +77,7 @@ func (a *app) orders(path string, cat *catalogue.Catalogue) (*catalogue.Orders, 
 
 // planJSON is the stable JSON shape of a plan (DESIGN section 4).
 func planJSON(r *optimise.PlanResult) map[string]any {
-	out := map[string]any{"status": string(r.Status), "caution": cautionJSON}
+	out := map[string]any{"status": string(r.Status), "engine": r.Engine, "caution": cautionJSON}
 	products := []map[string]any{}
 	stocks := []map[string]any{}
 	if r.Status == optimise.Optimal {

@@ -33,8 +33,9 @@ func TestPlanDemoJSON(t *testing.T) {
 	require.Equal(t, 0, code, errs)
 	var got map[string]any
 	require.NoError(t, json.Unmarshal([]byte(out), &got))
-	// The keys of DESIGN section 4, exactly.
-	assert.Equal(t, []string{"caution", "products", "status", "stocks", "total_cost"}, keysOf(got))
+	// The keys of the JSON contract (README, JSON output), exactly.
+	assert.Equal(t, []string{"caution", "engine", "products", "status", "stocks", "total_cost"}, keysOf(got))
+	assertEngineNamed(t, got["engine"])
 	assert.Equal(t, "optimal", got["status"])
 	var total float64
 	for _, p := range got["products"].([]any) {

@@ -7,6 +7,7 @@ import (
 	"math"
 	"strconv"
 	"strings"
+	"time"
 
 	"lipoplan/blend"
 	"lipoplan/catalogue"
@@ -24,8 +25,14 @@ func (a *app) solve(args []string) error {
 	mps := fs.String("mps", "", "also write the model to this file in free MPS format")
 	svg := fs.String("svg", "", "also draw the blend's SFC against the spec's bands into this SVG file")
 	temps := fs.String("temps", "", `SFC temperatures to report, deg C (default 10,15,...,45 plus the spec's)`)
+	maxNodes := fs.Int("max-nodes", 100000, "integer rules: branch and bound solves at most this many LPs")
+	maxTime := fs.Duration("max-time", 60*time.Second, "integer rules: branch and bound runs at most this `duration`")
 	if err := a.parse(fs, args); err != nil {
 		return err
+	}
+	if *maxNodes < 1 || *maxTime <= 0 {
+		fmt.Fprintf(a.stderr, "lipoplan solve: --max-nodes must be at least 1 and --max-time above 0; run 'lipoplan solve --help'\n")
+		return errUsage
 	}
 	if err := checkFormat(*format, "text", "json", "csv"); err != nil {
 		return err
@@ -50,7 +57,7 @@ func (a *app) solve(args []string) error {
 			return fmt.Errorf("--mps: %w", err)
 		}
 	}
-	res, err := optimise.Solve(cat, spec, optimise.Options{Temps: ts})
+	res, err := optimise.Solve(cat, spec, optimise.Options{Temps: ts, MaxNodes: *maxNodes, MaxTime: *maxTime})
 	if err != nil {
 		return err
 	}
@@ -70,7 +77,7 @@ func (a *app) solve(args []string) error {
 	if err != nil {
 		return err
 	}
-	if res.Status == optimise.Infeasible {
+	if res.Status == optimise.Infeasible || len(res.Blend) == 0 {
 		return errInfeasible
 	}
 	return nil
@@ -86,11 +93,14 @@ func finiteOrNil(v float64, digits int) any {
 
 // solveJSON is the stable JSON shape of a solve (DESIGN section 4).
 func solveJSON(r *optimise.Result) map[string]any {
-	out := map[string]any{"status": string(r.Status), "caution": cautionJSON}
+	out := map[string]any{"status": string(r.Status), "engine": r.Engine, "caution": cautionJSON}
 	blendOut := []map[string]any{}
 	limits := []map[string]any{}
 	ranging := []map[string]any{}
-	if r.Status == optimise.Optimal {
+	if r.Status == optimise.NotProven {
+		out["notes"] = r.Notes
+	}
+	if len(r.Blend) > 0 {
 		out["cost_per_tonne"] = round(r.CostPerTonne, 4)
 		out["batch_cost"] = round(r.BatchCost, 2)
 		out["properties"] = propertiesJSON(r.Properties)
@@ -184,13 +194,17 @@ func writeSolveText(w io.Writer, r *optimise.Result, spec *catalogue.Spec, temps
 	for _, n := range r.Notes {
 		fmt.Fprintln(w, wrapText("Note: "+n, 100, "      "))
 	}
-	if r.Status != optimise.Optimal {
+	if len(r.Blend) == 0 {
 		writeDiagnosis(w, r, spec)
 		fmt.Fprintln(w)
 		writeCautions(w, spec)
 		return
 	}
-	fmt.Fprintf(w, "Cheapest blend found (%s):\n\n", engine)
+	if r.Status == optimise.NotProven {
+		fmt.Fprintf(w, "Best blend found, NOT PROVEN the cheapest (%s):\n\n", engine)
+	} else {
+		fmt.Fprintf(w, "Cheapest blend found (%s):\n\n", engine)
+	}
 	fmt.Fprintf(w, "  %-14s %-34s %8s %9s %11s\n", "stock", "name", "%", "tonnes", "price/t")
 	prices := map[string]float64{}
 	for _, g := range r.Ranging {
@@ -285,6 +299,10 @@ func rangeEnd(v float64) string {
 
 // writeDiagnosis explains an impossible spec and the smallest relaxation.
 func writeDiagnosis(w io.Writer, r *optimise.Result, spec *catalogue.Spec) {
+	if r.Status == optimise.NotProven {
+		fmt.Fprintln(w, "No blend found within the limits of branch and bound; the spec is not proven impossible (see the note).")
+		return
+	}
 	fmt.Fprintln(w, "The spec cannot be met with these stocks.")
 	if len(r.Relaxation) == 0 {
 		return

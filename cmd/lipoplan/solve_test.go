@@ -35,9 +35,10 @@ func TestSolveDemoJSON(t *testing.T) {
 	require.Equal(t, 0, code, errs)
 	var got map[string]any
 	require.NoError(t, json.Unmarshal([]byte(out), &got))
-	// The keys of DESIGN section 4, exactly.
-	assert.Equal(t, []string{"batch_cost", "blend", "caution", "cost_per_tonne", "limits", "properties", "ranging", "status"}, keysOf(got))
+	// The keys of the JSON contract (README, JSON output), exactly.
+	assert.Equal(t, []string{"batch_cost", "blend", "caution", "cost_per_tonne", "engine", "limits", "properties", "ranging", "status"}, keysOf(got))
 	assert.Equal(t, "optimal", got["status"])
+	assertEngineNamed(t, got["engine"])
 	var pct float64
 	for _, l := range got["blend"].([]any) {
 		line := l.(map[string]any)
@@ -254,4 +255,43 @@ func TestSolveSVG(t *testing.T) {
 	assert.Equal(t, len(blend.SpecTemps(spec)), strings.Count(svg, "<circle"), "one point per report temperature")
 	assert.Equal(t, len(spec.SFC), strings.Count(svg, "fill-opacity"), "one band per SFC limit")
 	assert.True(t, strings.HasSuffix(svg, "</svg>\n"))
+}
+
+// TestSolveNotProvenWithinLimits: with integer rules and a branch-and-bound
+// limit of one LP, solve says the search was stopped (status not_proven in
+// JSON with the note; a plain message in text) and exits 3, as no blend was
+// found; without the limit the same spec is proven optimal.
+func TestSolveNotProvenWithinLimits(t *testing.T) {
+	dir := t.TempDir()
+	path := filepath.Join(dir, "rules.toml")
+	spec := string(catalogue.DemoFiles()["laminating.toml"]) + "\n[rules]\nmax_stocks = 3\nmin_if_used = 8.0\n"
+	require.NoError(t, os.WriteFile(path, []byte(spec), 0o644))
+
+	code, out, errs := run(t, "solve", "--spec", path, "--format", "json")
+	require.Equal(t, 0, code, errs)
+	var full map[string]any
+	require.NoError(t, json.Unmarshal([]byte(out), &full))
+	assert.Equal(t, "optimal", full["status"])
+
+	code, out, _ = run(t, "solve", "--spec", path, "--max-nodes", "1", "--format", "json")
+	assert.Equal(t, 3, code)
+	var got struct {
+		Status string   `json:"status"`
+		Notes  []string `json:"notes"`
+		Blend  []any    `json:"blend"`
+	}
+	require.NoError(t, json.Unmarshal([]byte(out), &got))
+	assert.Equal(t, "not_proven", got.Status)
+	require.NotEmpty(t, got.Notes)
+	assert.Contains(t, got.Notes[0], "stopped at its limit of 1 LPs")
+	assert.Empty(t, got.Blend)
+
+	code, out, _ = run(t, "solve", "--spec", path, "--max-nodes", "1")
+	assert.Equal(t, 3, code)
+	assert.Contains(t, out, "No blend found within the limits of branch and bound")
+	assert.Contains(t, out, "not proven impossible")
+
+	code, _, errs = run(t, "solve", "--spec", path, "--max-nodes", "0")
+	assert.Equal(t, 2, code)
+	assert.Contains(t, errs, "--max-nodes")
 }

@@ -102,7 +102,7 @@ func sweepJSON(r *optimise.SweepResult) map[string]any {
 	for _, b := range r.Breakpoints {
 		bps = append(bps, round(b, 4))
 	}
-	return map[string]any{"stock": r.Stock, "points": points, "breakpoints": bps, "caution": cautionJSON}
+	return map[string]any{"stock": r.Stock, "engine": r.Engine, "points": points, "breakpoints": bps, "caution": cautionJSON}
 }
 
 func writeSweepText(w io.Writer, r *optimise.SweepResult, spec *catalogue.Spec) {

@@ -32,10 +32,12 @@ func TestSweepMatchesRanging(t *testing.T) {
 	code, out, errs := run(t, "sweep", "--price", "palm="+f(lo-50)+":"+f(hi+50)+":5", "--format", "json", "--svg", svg)
 	require.Equal(t, 0, code, errs)
 	var got struct {
+		Engine      string           `json:"engine"`
 		Points      []map[string]any `json:"points"`
 		Breakpoints []float64        `json:"breakpoints"`
 	}
 	require.NoError(t, json.Unmarshal([]byte(out), &got))
+	assertEngineNamed(t, got.Engine)
 	assert.Len(t, got.Points, 5)
 	require.Len(t, got.Breakpoints, 2)
 	assert.InDelta(t, lo, got.Breakpoints[0], 0.01)
