@@ -214,7 +214,7 @@ func (s *Simplex) trouble() error {
 // rule, which stays until an iteration makes progress.
 func (s *Simplex) progress(degenerate bool) (perturb bool) {
 	if !degenerate {
-		s.degenerate, s.bland = 0, false
+		s.degenerate, s.bland = 0, s.opt.Bland
 		return false
 	}
 	s.degenerate++

@@ -283,3 +283,5 @@ func checkRanges(t *testing.T, name string, p *lp.Problem, s *lp.Solution, g lpt
 		assert.True(t, close(wantHi, hi, math.Abs(s.RowAct[i])), "%s %s: bound range high %v, glpsol %v", name, rn, hi, wantHi)
 	}
 }
+
+func writeFile(path string, b []byte) error { return os.WriteFile(path, b, 0o644) }

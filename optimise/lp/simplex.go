@@ -103,6 +103,10 @@ type Options struct {
 	// NoPerturbation leaves out the perturbation against stalling, so that
 	// only Bland's rule guards against cycling; for tests.
 	NoPerturbation bool
+	// Bland prices by Bland's rule from the first iteration on (the
+	// fallback against cycling, otherwise used only after a long run of
+	// degenerate iterations); for tests.
+	Bland bool
 	// NoScaling solves the problem as given.
 	NoScaling bool
 	// MaxIter caps the iterations of one Solve; 0 means
@@ -682,7 +686,7 @@ func (s *Simplex) basisInto(dst []VarStatus) []VarStatus {
 }
 
 func (s *Simplex) solve() (Status, error) {
-	s.iters, s.troubles, s.degenerate, s.bland = 0, 0, 0, false
+	s.iters, s.troubles, s.degenerate, s.bland = 0, 0, 0, s.opt.Bland
 	s.rnd = 0x9E3779B97F4A7C15
 	s.maxIter = s.opt.MaxIter
 	if s.maxIter <= 0 {
