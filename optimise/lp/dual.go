@@ -134,11 +134,9 @@ func (s *Simplex) dual() (Status, error) {
 			thetaD = 0
 		}
 		if thetaD != 0 {
-			for k, st := range s.stat {
-				if st != Basic {
-					if a := s.alphaR[k]; a != 0 {
-						s.d[k] += sgn * thetaD * a
-					}
+			for _, k := range s.nzR {
+				if s.stat[k] != Basic {
+					s.d[k] += sgn * thetaD * s.alphaR[k]
 				}
 			}
 		}
@@ -286,20 +284,33 @@ func (s *Simplex) dualPricing() (int, float64) {
 }
 
 // pivotRow computes α_rk = ρᵀa_k for every variable from ρ = B⁻ᵀe_r,
-// row-wise: only the rows where ρ is nonzero are read.
+// row-wise: only the rows where ρ is nonzero are read, and the variables
+// they touch are listed in s.nzR (every other α_rk is zero), so the ratio
+// tests and updates that follow visit only those (in a plan's block
+// structure a small part of the columns).
 func (s *Simplex) pivotRow(rho []float64) {
 	n := s.n
-	a := s.alphaR
-	clear(a[:n])
+	a, mark := s.alphaR, s.inR
+	for _, k := range s.nzR {
+		a[k], mark[k] = 0, false
+	}
+	nz := s.nzR[:0]
 	for i, v := range rho {
-		a[n+i] = -v
 		if v == 0 {
 			continue
 		}
+		a[n+i], mark[n+i] = -v, true
+		nz = append(nz, n+i)
 		for q := s.rStart[i]; q < s.rStart[i+1]; q++ {
-			a[s.rIdx[q]] += v * s.rVal[q]
+			j := s.rIdx[q]
+			if !mark[j] {
+				mark[j] = true
+				nz = append(nz, j)
+			}
+			a[j] += v * s.rVal[q]
 		}
 	}
+	s.nzR = nz
 }
 
 // dualRatio is the bound-flipping ratio test with Harris' tolerances
@@ -316,7 +327,8 @@ func (s *Simplex) pivotRow(rho []float64) {
 func (s *Simplex) dualRatio(sgn, slope float64) int {
 	s.flips = s.flips[:0]
 	cand := s.cand[:0]
-	for k, st := range s.stat {
+	for _, k := range s.nzR {
+		st := s.stat[k]
 		if st == Basic || st == Fixed {
 			continue
 		}

@@ -120,19 +120,17 @@ func (s *Simplex) primal() (Status, error) {
 		}
 		f := s.d[q] / aq
 		if !phase1 {
-			for k, st := range s.stat {
-				if st != Basic {
-					if a := s.alphaR[k]; a != 0 {
-						s.d[k] -= f * a
-					}
+			for _, k := range s.nzR {
+				if s.stat[k] != Basic {
+					s.d[k] -= f * s.alphaR[k]
 				}
 			}
 		}
 		// Devex reference weights (Forrest & Goldfarb 1992, section 2).
 		wq := s.devex[q]
 		reset := false
-		for k, st := range s.stat {
-			if st != Basic && k != q {
+		for _, k := range s.nzR {
+			if s.stat[k] != Basic && k != q {
 				if a := s.alphaR[k]; a != 0 {
 					g := a / aq
 					if w := g * g * wq; w > s.devex[k] {
