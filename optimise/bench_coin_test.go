@@ -7,6 +7,7 @@ import (
 
 	"lipoplan/catalogue"
 	"lipoplan/optimise/coin"
+	"lipoplan/optimise/lp"
 )
 
 // benchBareCLP times CLP alone through the binding on prebuilt arrays, with
@@ -55,6 +56,19 @@ func benchBareCLP(b *testing.B, cat *catalogue.Catalogue, spec *catalogue.Spec) 
 		defer l.Close()
 		for b.Loop() {
 			solve(b, l)
+		}
+	})
+}
+
+// benchCBC is CBC on the MILP (coin build).
+func benchCBC(b *testing.B, p *lp.Problem, integer []int) {
+	b.Run("CBC", func(b *testing.B) {
+		c := lp.NewCBC()
+		for b.Loop() {
+			s, err := c.SolveMIP(p, integer, lp.Limits{})
+			if err != nil || s.Status != lp.Optimal {
+				b.Fatal(err, s)
+			}
 		}
 	})
 }

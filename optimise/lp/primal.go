@@ -13,9 +13,6 @@ func (s *Simplex) primal() (Status, error) {
 	}
 	perturbed := false
 	phase1 := s.primalInfeasibility() > tolPrimal
-	if !phase1 {
-		s.computeD()
-	}
 	for {
 		if s.iters >= s.maxIter {
 			return 0, ErrIterationLimit

@@ -188,3 +188,25 @@ func FuzzSimplex(f *testing.F) {
 		}
 	})
 }
+
+// TestEditsAreChecked: a NaN or inverted-infinite bound or cost set through
+// the Set methods (which return nothing) is refused by the next Solve with
+// ErrBadProblem, and the engine solves again once the edit is undone.
+func TestEditsAreChecked(t *testing.T) {
+	p := cyclingExamples()[0].problem()
+	e := lp.New()
+	want := solveWith(t, e, p)
+	for _, edit := range []func(){
+		func() { e.SetRowBounds(0, math.Inf(-1), math.NaN()) },
+		func() { e.SetColBounds(1, math.Inf(1), math.Inf(1)) },
+		func() { e.SetObj(2, math.Inf(1)) },
+	} {
+		edit()
+		_, err := e.Solve()
+		assert.ErrorIs(t, err, lp.ErrBadProblem)
+		require.NoError(t, e.Load(p))
+		s, err := e.Solve()
+		require.NoError(t, err)
+		assert.InDelta(t, want.Obj, s.Obj, 1e-12)
+	}
+}

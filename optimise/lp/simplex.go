@@ -82,17 +82,20 @@ type Simplex struct {
 	rnd                  uint64
 	farkasU, rayX        []float64 // certificates of the last solve
 	accepted             []int     // variables whose bound a solve moved by up to tolVerdict
-	bStart, bIdx         []int
-	bVal                 []float64
-	wRow, wPos, rho, tau []float64
-	alphaQ, alphaR       []float64
-	inR                  []bool // variables listed in nzR
-	nzR                  []int  // variables whose pivot-row entry may be nonzero
-	cand                 []candidate
-	flips                []int
-	rowMark              []int
-	scaleWork            []float64
-	seen                 []int
+	// fresh: x and d hold the last solve\'s optimal values for the basis
+	// and factors held; costsEdited, boundsEdited: what changed since.
+	fresh, costsEdited, boundsEdited bool
+	bStart, bIdx                     []int
+	bVal                             []float64
+	wRow, wPos, rho, tau             []float64
+	alphaQ, alphaR                   []float64
+	inR                              []bool // variables listed in nzR
+	nzR                              []int  // variables whose pivot-row entry may be nonzero
+	cand                             []candidate
+	flips                            []int
+	rowMark                          []int
+	scaleWork                        []float64
+	seen                             []int
 }
 
 // Options tune a Simplex. The zero value is the default.
@@ -185,6 +188,7 @@ func (s *Simplex) Load(p *Problem) error {
 	sameShape := s.loaded && s.m == p.Rows && s.n == p.Cols
 	p.copyInto(&s.prob)
 	s.loaded = true
+	s.fresh = false
 	s.m, s.n = p.Rows, p.Cols
 	if !sameShape {
 		s.allocShape()
@@ -270,18 +274,21 @@ func (s *Simplex) setRow(i int) {
 func (s *Simplex) SetObj(j int, c float64) {
 	s.prob.Obj[j] = c
 	s.setCol(j)
+	s.costsEdited = true
 }
 
 // SetColBounds sets column j's bounds.
 func (s *Simplex) SetColBounds(j int, lo, up float64) {
 	s.prob.ColLo[j], s.prob.ColUp[j] = lo, up
 	s.setCol(j)
+	s.boundsEdited = true
 }
 
 // SetRowBounds sets row i's range.
 func (s *Simplex) SetRowBounds(i int, lo, up float64) {
 	s.prob.RowLo[i], s.prob.RowUp[i] = lo, up
 	s.setRow(i)
+	s.boundsEdited = true
 }
 
 // SetBasis makes the next Solve start from b (nil: the slack basis). A
@@ -313,6 +320,7 @@ func (s *Simplex) SetBasis(b []VarStatus) error {
 		}
 		if same {
 			copy(s.stat, b) // nonbasic bounds may differ; the basis is the same
+			s.boundsEdited = true
 			return nil
 		}
 	}
@@ -325,7 +333,7 @@ func (s *Simplex) SetBasis(b []VarStatus) error {
 			r++
 		}
 	}
-	s.haveBasis, s.luOK, s.dseOK = true, false, false
+	s.haveBasis, s.luOK, s.dseOK, s.fresh = true, false, false, false
 	return nil
 }
 
@@ -656,6 +664,7 @@ func (s *Simplex) solveStatus() (st Status, err error) {
 		s.haveBasis = false
 		return 0, err
 	}
+	s.fresh = st == Optimal
 	return st, nil
 }
 
@@ -707,18 +716,36 @@ func (s *Simplex) solve() (Status, error) {
 		s.maxIter = 10000 + 20*(s.n+s.m)
 	}
 	s.farkasU, s.rayX = nil, nil
+	fresh := s.fresh && len(s.accepted) == 0
+	s.fresh = false
 	s.restoreAccepted()
 	s.removeShifts()
 	copy(s.lo, s.lo0)
 	copy(s.up, s.up0)
 	s.perturbedUp = false
+	// The Set methods take what they are given; check it here.
+	for j := 0; j < s.n; j++ {
+		if c := s.prob.Obj[j]; math.IsNaN(c) || math.IsInf(c, 0) {
+			return 0, fmt.Errorf("%w: objective of column %d is %v", ErrBadProblem, j, c)
+		}
+		if err := checkBounds(s.prob.ColLo[j], s.prob.ColUp[j]); err != nil {
+			return 0, fmt.Errorf("%w: column %d: %v", ErrBadProblem, j, err)
+		}
+	}
+	for i := 0; i < s.m; i++ {
+		if err := checkBounds(s.prob.RowLo[i], s.prob.RowUp[i]); err != nil {
+			return 0, fmt.Errorf("%w: row %d: %v", ErrBadProblem, i, err)
+		}
+	}
 	for k := range s.lo0 {
 		if s.lo0[k] > s.up0[k] {
 			return Infeasible, nil // crossed bounds
 		}
 	}
 	method := s.opt.Method
+	fresh = fresh && s.haveBasis && s.luOK
 	if !s.haveBasis {
+		fresh = false
 		s.slackBasis()
 		if method == Auto && s.m >= coldPrimalRows {
 			method = Primal
@@ -726,6 +753,7 @@ func (s *Simplex) solve() (Status, error) {
 	}
 	s.placeNonbasic()
 	if !s.luOK || s.lu.due() {
+		fresh = false
 		if _, err := s.refactor(); err != nil {
 			return 0, err
 		}
@@ -733,8 +761,15 @@ func (s *Simplex) solve() (Status, error) {
 	if !s.dseOK {
 		s.initDSE()
 	}
-	s.computeX()
-	s.computeD()
+	// A cost edit cannot move x, a bound edit cannot change d: what the
+	// last optimum left stays valid where nothing it depends on changed.
+	if !fresh || s.boundsEdited {
+		s.computeX()
+	}
+	if !fresh || s.costsEdited {
+		s.computeD()
+	}
+	s.costsEdited, s.boundsEdited = false, false
 	for round := 0; round < 20; round++ {
 		pInf := s.primalInfeasibility() > tolPrimal
 		var st Status
@@ -755,9 +790,12 @@ func (s *Simplex) solve() (Status, error) {
 		if st != Optimal {
 			return st, nil
 		}
-		// Take out shifts and perturbations and look again, on fresh
-		// factors (the phase that just ended refreshed them when it had
-		// nothing left to do; a repair changes the basis, so recompute).
+		// The phase confirmed its answer on values recomputed from the
+		// factors; with no shift or perturbation to take out, that is
+		// the optimum. Otherwise take them out and look again.
+		if !s.shifted && !s.perturbedUp && s.primalInfeasibility() <= tolPrimal && s.dualFeasible() {
+			return Optimal, nil
+		}
 		s.removeShifts()
 		s.restoreBounds()
 		if s.lu.due() {
