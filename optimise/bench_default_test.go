@@ -18,3 +18,7 @@ func benchBareCLP(b *testing.B, _ *catalogue.Catalogue, _ *catalogue.Spec) {
 func benchCBC(b *testing.B, _ *lp.Problem, _ []int) {
 	b.Run("CBC", func(b *testing.B) { b.Skip("CBC needs the coin build (-tags coin)") })
 }
+
+func benchInterleaved(b *testing.B, _ *lp.Problem) {
+	b.Run("LPvsBareCLP", func(b *testing.B) { b.Skip("CLP needs the coin build (-tags coin)") })
+}

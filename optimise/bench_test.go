@@ -47,6 +47,8 @@ func mustSolve(b *testing.B, e lplayer.Engine) *lplayer.Solution {
 //	              with duals and basis (what BareCLP does with CLP)
 //	BareCLP       CLP through the binding, a fresh CLP model per solve
 //	              (coin build; bench_coin_test.go), and BareCLPReused
+//	LPvsBareCLP   LP and BareCLP in turn in every iteration, their ratio as
+//	              the metric lp/clp (coin build)
 //	GonumSimplex  gonum's lp.Simplex on the same model in standard form
 //	WarmPrice     one engine re-solving after a price edit (a stock's cost
 //	              up or down 5 % in turn): primal simplex from the last basis
@@ -70,6 +72,7 @@ func BenchmarkBlend30x20(b *testing.B) {
 		}
 	})
 	benchBareCLP(b, cat, spec)
+	benchInterleaved(b, p)
 	b.Run("GonumSimplex", func(b *testing.B) {
 		st, err := lplayer.ToStandard(p)
 		if err != nil {

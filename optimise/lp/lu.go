@@ -67,12 +67,23 @@ const (
 // row's logical for each dependent column) and factorises again.
 func (f *factor) factorize(m int, bStart, bIdx []int, bVal []float64) (bad, freeRows []int) {
 	f.m = m
-	f.prow = resize(f.prow, m)
-	f.pcol = resize(f.pcol, m)
-	f.rowStep = resize(f.rowStep, m)
-	f.diag = resize(f.diag, m)
-	f.lStart = resize(f.lStart, m+1)[:1]
-	f.uStart = resize(f.uStart, m+1)[:1]
+	if cap(f.prow) < m {
+		// One block for the per-row and per-step arrays.
+		ints := make([]int, 9*m+4)
+		f.prow, f.pcol, f.rowStep = ints[:m:m], ints[m:2*m:2*m], ints[2*m:3*m:3*m]
+		f.lStart, f.uStart = ints[3*m:3*m:4*m+1], ints[4*m+1:4*m+1:5*m+2]
+		f.order, f.rc, f.count = ints[5*m+2:6*m+2:6*m+2], ints[6*m+2:7*m+2:7*m+2], ints[7*m+2:8*m+4:8*m+4]
+		f.touched = ints[8*m+4 : 8*m+4 : 9*m+4]
+		fl := make([]float64, 2*m)
+		f.diag, f.work = fl[:m:m], fl[m:]
+		f.mark = make([]bool, m)
+	}
+	f.prow = f.prow[:m]
+	f.pcol = f.pcol[:m]
+	f.rowStep = f.rowStep[:m]
+	f.diag = f.diag[:m]
+	f.lStart = f.lStart[:1]
+	f.uStart = f.uStart[:1]
 	f.lStart[0], f.uStart[0] = 0, 0
 	f.lIdx, f.lVal, f.uIdx, f.uVal = f.lIdx[:0], f.lVal[:0], f.uIdx[:0], f.uVal[:0]
 	f.lSteps = f.lSteps[:0]

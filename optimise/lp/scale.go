@@ -112,10 +112,15 @@ func scaleFactors(p *Problem, rs, cs []float64, work *[]float64) {
 	}
 }
 
-// pow2 is the power of two nearest to v > 0 (in the logarithm).
+// pow2 is the power of two nearest to v > 0 (in the logarithm): with
+// v = f·2^e, f in [0.5, 1), it is 2^e when f >= 1/√2 and 2^(e-1) below.
 func pow2(v float64) float64 {
 	if v <= 0 || math.IsInf(v, 0) || math.IsNaN(v) {
 		return 1
 	}
-	return math.Ldexp(1, int(math.Round(math.Log2(v))))
+	f, e := math.Frexp(v)
+	if f < math.Sqrt2/2 {
+		e--
+	}
+	return math.Ldexp(1, e)
 }
