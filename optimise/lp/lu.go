@@ -67,7 +67,7 @@ const (
 // row's logical for each dependent column) and factorises again.
 func (f *factor) factorize(m int, bStart, bIdx []int, bVal []float64) (bad, freeRows []int) {
 	f.m = m
-	if cap(f.prow) < m {
+	if cap(f.prow) < m || cap(f.lStart) < m+1 {
 		// One block for the per-row and per-step arrays.
 		ints := make([]int, 9*m+4)
 		f.prow, f.pcol, f.rowStep = ints[:m:m], ints[m:2*m:2*m], ints[2*m:3*m:3*m]
