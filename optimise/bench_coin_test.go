@@ -21,30 +21,11 @@ func benchBareCLP(b *testing.B, cat *catalogue.Catalogue, spec *catalogue.Spec) 
 	if err != nil {
 		b.Fatal(err)
 	}
-	lpp := (&engine{}).problem(m)
-	p := &coin.Problem{Cols: lpp.Cols, Rows: lpp.Rows, Value: lpp.Value,
-		ColLower: lpp.ColLo, ColUpper: lpp.ColUp, Obj: lpp.Obj, RowLower: lpp.RowLo, RowUpper: lpp.RowUp}
-	for _, v := range lpp.Start {
-		p.Start = append(p.Start, int32(v))
-	}
-	for _, v := range lpp.Index {
-		p.Index = append(p.Index, int32(v))
-	}
+	p := coinOf((&engine{}).problem(m))
 	x := make([]float64, m.nCols)
 	y := make([]float64, m.nRows)
 	d := make([]float64, m.nCols)
-	solve := func(b *testing.B, l *coin.LP) {
-		if err := l.Load(p); err != nil {
-			b.Fatal(err)
-		}
-		l.SetScaling(false)
-		if st := l.Solve(); st != coin.Optimal {
-			b.Fatal(st)
-		}
-		if err := l.Solution(x, nil, y, d, nil); err != nil {
-			b.Fatal(err)
-		}
-	}
+	solve := func(b *testing.B, l *coin.LP) { bareCLP(b, l, p, x, y, d) }
 	b.Run("BareCLP", func(b *testing.B) {
 		for b.Loop() {
 			l := coin.NewLP()
@@ -80,14 +61,7 @@ func benchCBC(b *testing.B, p *lp.Problem, integer []int) {
 // machine falls on both alike.
 func benchInterleaved(b *testing.B, p *lp.Problem) {
 	b.Run("LPvsBareCLP", func(b *testing.B) {
-		cp := &coin.Problem{Cols: p.Cols, Rows: p.Rows, Value: p.Value,
-			ColLower: p.ColLo, ColUpper: p.ColUp, Obj: p.Obj, RowLower: p.RowLo, RowUpper: p.RowUp}
-		for _, v := range p.Start {
-			cp.Start = append(cp.Start, int32(v))
-		}
-		for _, v := range p.Index {
-			cp.Index = append(cp.Index, int32(v))
-		}
+		cp := coinOf(p)
 		x, y, d := make([]float64, p.Cols), make([]float64, p.Rows), make([]float64, p.Cols)
 		var ours, clp time.Duration
 		for b.Loop() {
@@ -101,19 +75,38 @@ func benchInterleaved(b *testing.B, p *lp.Problem) {
 			}
 			t1 := time.Now()
 			l := coin.NewLP()
-			if err := l.Load(cp); err != nil {
-				b.Fatal(err)
-			}
-			l.SetScaling(false)
-			if st := l.Solve(); st != coin.Optimal {
-				b.Fatal(st)
-			}
-			if err := l.Solution(x, nil, y, d, nil); err != nil {
-				b.Fatal(err)
-			}
+			bareCLP(b, l, cp, x, y, d)
 			l.Close()
 			ours, clp = ours+t1.Sub(t0), clp+time.Since(t1)
 		}
 		b.ReportMetric(float64(ours)/float64(clp), "lp/clp")
 	})
+}
+
+// coinOf is p for the binding (32-bit indices).
+func coinOf(p *lp.Problem) *coin.Problem {
+	cp := &coin.Problem{Cols: p.Cols, Rows: p.Rows, Value: p.Value,
+		ColLower: p.ColLo, ColUpper: p.ColUp, Obj: p.Obj, RowLower: p.RowLo, RowUpper: p.RowUp}
+	for _, v := range p.Start {
+		cp.Start = append(cp.Start, int32(v))
+	}
+	for _, v := range p.Index {
+		cp.Index = append(cp.Index, int32(v))
+	}
+	return cp
+}
+
+// bareCLP loads p into l and solves it with the settings lp.Coin uses (no
+// scaling pass, dual simplex from the slack basis), reading x, y and d.
+func bareCLP(b *testing.B, l *coin.LP, p *coin.Problem, x, y, d []float64) {
+	if err := l.Load(p); err != nil {
+		b.Fatal(err)
+	}
+	l.SetScaling(false)
+	if st := l.Solve(); st != coin.Optimal {
+		b.Fatal(st)
+	}
+	if err := l.Solution(x, nil, y, d, nil); err != nil {
+		b.Fatal(err)
+	}
 }

@@ -4,6 +4,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"testing"
+	"time"
 
 	"gonum.org/v1/gonum/optimize/convex/lp"
 
@@ -32,6 +33,36 @@ func benchProblem(tb testing.TB, cat *catalogue.Catalogue, spec *catalogue.Spec)
 	return (&engine{}).problem(m).Clone()
 }
 
+// benchCold times cold solves of p: a fresh engine, load, solve.
+func benchCold(b *testing.B, p *lplayer.Problem) {
+	for b.Loop() {
+		coldSolve(b, p)
+	}
+}
+
+func coldSolve(b *testing.B, p *lplayer.Problem) {
+	e := lplayer.New()
+	if err := e.Load(p); err != nil {
+		b.Fatal(err)
+	}
+	mustSolve(b, e)
+}
+
+// interleave runs f and g in turn in every iteration and reports the ratio
+// of their total times as the metric name, so that the load of a shared
+// machine falls on both alike.
+func interleave(b *testing.B, name string, f, g func()) {
+	var tf, tg time.Duration
+	for b.Loop() {
+		t0 := time.Now()
+		f()
+		t1 := time.Now()
+		g()
+		tf, tg = tf+t1.Sub(t0), tg+time.Since(t1)
+	}
+	b.ReportMetric(float64(tf)/float64(tg), name)
+}
+
 func mustSolve(b *testing.B, e lplayer.Engine) *lplayer.Solution {
 	s, err := e.Solve()
 	if err != nil || s.Status != lplayer.Optimal {
@@ -50,6 +81,8 @@ func mustSolve(b *testing.B, e lplayer.Engine) *lplayer.Solution {
 //	LPvsBareCLP   LP and BareCLP in turn in every iteration, their ratio as
 //	              the metric lp/clp (coin build)
 //	GonumSimplex  gonum's lp.Simplex on the same model in standard form
+//	GonumVsLP     GonumSimplex and LP in turn in every iteration, their ratio
+//	              as the metric gonum/lp
 //	WarmPrice     one engine re-solving after a price edit (a stock's cost
 //	              up or down 5 % in turn): primal simplex from the last basis
 //	WarmLimit     the same after a limit edit (a row bound moved by 2 % of its
@@ -62,15 +95,7 @@ func mustSolve(b *testing.B, e lplayer.Engine) *lplayer.Solution {
 func BenchmarkBlend30x20(b *testing.B) {
 	cat, spec := bench30x20(b)
 	p := benchProblem(b, cat, spec)
-	b.Run("LP", func(b *testing.B) {
-		for b.Loop() {
-			e := lplayer.New()
-			if err := e.Load(p); err != nil {
-				b.Fatal(err)
-			}
-			mustSolve(b, e)
-		}
-	})
+	b.Run("LP", func(b *testing.B) { benchCold(b, p) })
 	benchBareCLP(b, cat, spec)
 	benchInterleaved(b, p)
 	b.Run("GonumSimplex", func(b *testing.B) {
@@ -83,6 +108,17 @@ func BenchmarkBlend30x20(b *testing.B) {
 				b.Fatal(err)
 			}
 		}
+	})
+	b.Run("GonumVsLP", func(b *testing.B) {
+		st, err := lplayer.ToStandard(p)
+		if err != nil {
+			b.Fatal(err)
+		}
+		interleave(b, "gonum/lp", func() {
+			if _, _, err := lp.Simplex(st.C, st.A, st.B, 1e-10, nil); err != nil {
+				b.Fatal(err)
+			}
+		}, func() { coldSolve(b, p) })
 	})
 	warm := func(b *testing.B, edit func(e *lplayer.Simplex, k int)) {
 		e := lplayer.New()
@@ -236,7 +272,8 @@ func BenchmarkSweep50(b *testing.B) {
 // BenchmarkMaxStocks4 is the 30 x 20 blend with max_stocks = 4: its MILP by
 // lipoplan's branch and bound (BranchAndBound; CBC in the coin build)
 // against the LP relaxation of the same model by lipoplan's simplex
-// (LPRelaxation), in the same run.
+// (LPRelaxation), in the same run; BranchAndBoundVsLP runs the two in turn
+// and reports their ratio (bb/lp).
 func BenchmarkMaxStocks4(b *testing.B) {
 	cat, spec := bench30x20(b)
 	spec = spec.Clone()
@@ -247,15 +284,7 @@ func BenchmarkMaxStocks4(b *testing.B) {
 	}
 	mm := lay.withRules(base, func(j int) float64 { return min(base.colUp[j], 100) })
 	p := (&engine{}).problem(mm).Clone()
-	b.Run("LPRelaxation", func(b *testing.B) {
-		for b.Loop() {
-			e := lplayer.New()
-			if err := e.Load(p); err != nil {
-				b.Fatal(err)
-			}
-			mustSolve(b, e)
-		}
-	})
+	b.Run("LPRelaxation", func(b *testing.B) { benchCold(b, p) })
 	b.Run("BranchAndBound", func(b *testing.B) {
 		nodes := 0
 		for b.Loop() {
@@ -266,6 +295,13 @@ func BenchmarkMaxStocks4(b *testing.B) {
 			nodes = s.Nodes
 		}
 		b.ReportMetric(float64(nodes), "nodes")
+	})
+	b.Run("BranchAndBoundVsLP", func(b *testing.B) {
+		interleave(b, "bb/lp", func() {
+			if s, err := lplayer.NewBranchAndBound().SolveMIP(p, mm.integer, lplayer.Limits{}); err != nil || s.Status != lplayer.Optimal {
+				b.Fatal(err, s)
+			}
+		}, func() { coldSolve(b, p) })
 	})
 	benchCBC(b, p, mm.integer)
 }

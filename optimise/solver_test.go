@@ -13,17 +13,20 @@ import (
 	"lipoplan/catalogue"
 )
 
-// TestSolverMatchesFreshSolves: a Solver reuses one CLP model, yet each solve
-// must start afresh, so the whole Result of every spec is what a fresh
-// engine (new C models for every LP) gives, whatever the Solver solved
-// before: every string and flag equal, every number to 1e-9 relative (two
-// fresh solves differ in the last bits already, as blend.Profile sums a
-// map in Go's random order). The specs are 80 of the seeded random suite (checked against GLPK
-// in reference_test.go), made impossible in every fifth case (the elastic
-// programme then runs in the same model), the demo specs, and in the
-// COIN-OR build a spec with integer rules (MILP, then the LP with the
-// choices fixed); they are solved in two different orders, and every Result
-// is checked again after all the later solves.
+// TestSolverMatchesFreshSolves: a Solver keeps an LP engine per model
+// structure and warm-starts every re-solve from the last basis of that
+// structure, yet its answers must be those of a fresh engine (cold starts,
+// new models for every LP): the whole Result of every spec, every string
+// and flag equal, every number to 1e-9 relative, whatever the Solver
+// solved before (the random specs' prices make every optimum unique, so a
+// warm start cannot settle on another tie; two fresh solves differ in the
+// last bits already, as blend.Profile sums a map in Go's random order). The
+// specs are 80 of the seeded random suite (checked against GLPK in
+// reference_test.go), made impossible in every fifth case (the elastic
+// programme then runs warm too), the demo specs, and a spec with integer
+// rules (MILP, then the LP with the choices fixed); they are solved in two
+// different orders, and every Result is checked again after all the later
+// solves.
 func TestSolverMatchesFreshSolves(t *testing.T) {
 	type job struct {
 		cat  *catalogue.Catalogue

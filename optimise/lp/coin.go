@@ -16,8 +16,8 @@ import (
 // basis, so this engine does not warm-start (SetBasis is ignored) and
 // gives no certificates.
 type Coin struct {
+	stored
 	lp    *coin.LP
-	p     Problem
 	start []int32
 	index []int32
 	st    []coin.Basis
@@ -31,24 +31,6 @@ func CoinVersion() string { return coin.Version() }
 
 // Name is "clp".
 func (*Coin) Name() string { return "clp" }
-
-// Load copies p in.
-func (c *Coin) Load(p *Problem) error {
-	if err := p.Check(); err != nil {
-		return err
-	}
-	p.copyInto(&c.p)
-	return nil
-}
-
-// SetObj sets column j's cost.
-func (c *Coin) SetObj(j int, v float64) { c.p.Obj[j] = v }
-
-// SetColBounds sets column j's bounds.
-func (c *Coin) SetColBounds(j int, lo, up float64) { c.p.ColLo[j], c.p.ColUp[j] = lo, up }
-
-// SetRowBounds sets row i's range.
-func (c *Coin) SetRowBounds(i int, lo, up float64) { c.p.RowLo[i], c.p.RowUp[i] = lo, up }
 
 // SetBasis is ignored: every solve starts from CLP's slack basis.
 func (*Coin) SetBasis([]VarStatus) error { return nil }

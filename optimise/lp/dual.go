@@ -79,10 +79,7 @@ func (s *Simplex) dual() (Status, error) {
 			return Optimal, nil
 		}
 		p := s.head[r]
-		clear(s.wPos)
-		s.wPos[r] = 1
-		s.lu.btran(s.wPos, s.rho)
-		s.pivotRow(s.rho)
+		s.pivotRowOf(r)
 		sgn := 1.0 // leaves at its lower bound; its reduced cost becomes >= 0
 		if delta > 0 {
 			sgn = -1
@@ -281,6 +278,15 @@ func (s *Simplex) dualPricing() (int, float64) {
 		}
 	}
 	return best, bestDelta
+}
+
+// pivotRowOf computes row r of B⁻¹ into s.rho (BTRAN of e_r) and the pivot
+// row from it.
+func (s *Simplex) pivotRowOf(r int) {
+	clear(s.wPos)
+	s.wPos[r] = 1
+	s.lu.btran(s.wPos, s.rho)
+	s.pivotRow(s.rho)
 }
 
 // pivotRow computes α_rk = ρᵀa_k for every variable from ρ = B⁻ᵀe_r,

@@ -31,7 +31,7 @@ import (
 //
 // It has no warm start and no certificates.
 type Gonum struct {
-	p Problem
+	stored
 }
 
 // NewGonum makes the gonum reference engine.
@@ -39,24 +39,6 @@ func NewGonum() *Gonum { return &Gonum{} }
 
 // Name is "gonum".
 func (*Gonum) Name() string { return "gonum" }
-
-// Load copies p in.
-func (g *Gonum) Load(p *Problem) error {
-	if err := p.Check(); err != nil {
-		return err
-	}
-	p.copyInto(&g.p)
-	return nil
-}
-
-// SetObj sets column j's cost.
-func (g *Gonum) SetObj(j int, c float64) { g.p.Obj[j] = c }
-
-// SetColBounds sets column j's bounds.
-func (g *Gonum) SetColBounds(j int, lo, up float64) { g.p.ColLo[j], g.p.ColUp[j] = lo, up }
-
-// SetRowBounds sets row i's range.
-func (g *Gonum) SetRowBounds(i int, lo, up float64) { g.p.RowLo[i], g.p.RowUp[i] = lo, up }
 
 // SetBasis is ignored: lp.Simplex always starts afresh.
 func (*Gonum) SetBasis([]VarStatus) error { return nil }

@@ -345,3 +345,28 @@ func nonbasicStatus(v, lo, up float64) VarStatus {
 	}
 	return AtUpper
 }
+
+// stored is the loaded problem of an engine without warm starts (the gonum
+// and COIN-OR adapters): Load copies the problem in, the Set methods edit
+// the copy.
+type stored struct {
+	p Problem
+}
+
+// Load copies p in.
+func (e *stored) Load(p *Problem) error {
+	if err := p.Check(); err != nil {
+		return err
+	}
+	p.copyInto(&e.p)
+	return nil
+}
+
+// SetObj sets column j's cost.
+func (e *stored) SetObj(j int, c float64) { e.p.Obj[j] = c }
+
+// SetColBounds sets column j's bounds.
+func (e *stored) SetColBounds(j int, lo, up float64) { e.p.ColLo[j], e.p.ColUp[j] = lo, up }
+
+// SetRowBounds sets row i's range.
+func (e *stored) SetRowBounds(i int, lo, up float64) { e.p.RowLo[i], e.p.RowUp[i] = lo, up }

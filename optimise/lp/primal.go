@@ -101,10 +101,7 @@ func (s *Simplex) primal() (Status, error) {
 			return Unbounded, nil
 		}
 		p := s.head[r]
-		clear(s.wPos)
-		s.wPos[r] = 1
-		s.lu.btran(s.wPos, s.rho)
-		s.pivotRow(s.rho)
+		s.pivotRowOf(r)
 		aq := s.alphaQ[r]
 		if math.Abs(aq-s.alphaR[q]) > tolCheck*(1+math.Abs(aq)) {
 			if err := s.trouble(); err != nil {

@@ -1,0 +1,137 @@
+package main
+
+import (
+	"bytes"
+	"fmt"
+	"io"
+	"math/rand/v2"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"testing"
+	"time"
+
+	"lipoplan/catalogue"
+	"lipoplan/optimise"
+)
+
+// stocks300 writes a catalogue of 300 stocks into dir: the demo stocks and
+// seeded variants of them (price within ±10 %, SFC curve scaled by 0.9 to
+// 1), synthetic data for timing only, and the demo laminating spec.
+func stocks300(tb testing.TB, dir string) (stocks, spec string) {
+	demo := catalogue.DemoStocks()
+	cat := demo.Clone()
+	r := rand.New(rand.NewPCG(300, 1))
+	for k := 0; len(cat.Stocks) < 300; k++ {
+		s := demo.Stocks[k%len(demo.Stocks)]
+		s.ID = fmt.Sprintf("%s-v%03d", s.ID, k)
+		s.Name = "variant of " + s.Name
+		s.Price *= 0.9 + 0.2*r.Float64()
+		fa := map[string]float64{}
+		for key, v := range s.FattyAcids {
+			fa[key] = v
+		}
+		s.FattyAcids = fa
+		sfc := append(catalogue.Curve(nil), s.SFC...)
+		f := 0.9 + 0.1*r.Float64()
+		for i := range sfc {
+			sfc[i].Solid *= f
+		}
+		s.SFC = sfc
+		cat.Stocks = append(cat.Stocks, s)
+	}
+	var b bytes.Buffer
+	if err := catalogue.WriteStocks(&b, cat); err != nil {
+		tb.Fatal(err)
+	}
+	stocks, spec = filepath.Join(dir, "stocks300.toml"), filepath.Join(dir, "laminating.toml")
+	if err := os.WriteFile(stocks, b.Bytes(), 0o644); err != nil {
+		tb.Fatal(err)
+	}
+	if err := os.WriteFile(spec, catalogue.DemoFiles()["laminating.toml"], 0o644); err != nil {
+		tb.Fatal(err)
+	}
+	return stocks, spec
+}
+
+// BenchmarkSolve300 is lipoplan solve on a 300-stock catalogue (the demo
+// laminating spec) as a whole process, built once from this source
+// (Process), against GLPK's glpsol reading and solving the same model from
+// the MPS file lipoplan writes (Glpsol; skipped without glpsol), and the
+// two in turn in every iteration with their ratio as the metric
+// lipoplan/glpsol (Interleaved). In process: the catalogue loader alone
+// (LoadStocks, TOML decoding and validation) and the solve alone (Solve).
+func BenchmarkSolve300(b *testing.B) {
+	dir := b.TempDir()
+	stocks, spec := stocks300(b, dir)
+	cat, ps := catalogue.LoadStocks(stocks)
+	if len(ps.Errors()) > 0 {
+		b.Fatal(ps)
+	}
+	sp, ps := catalogue.LoadSpec(spec, cat)
+	if len(ps.Errors()) > 0 {
+		b.Fatal(ps)
+	}
+	b.Run("LoadStocks", func(b *testing.B) {
+		for b.Loop() {
+			if _, ps := catalogue.LoadStocks(stocks); len(ps.Errors()) > 0 {
+				b.Fatal(ps)
+			}
+		}
+	})
+	b.Run("Solve", func(b *testing.B) {
+		for b.Loop() {
+			if r, err := optimise.Solve(cat, sp, optimise.Options{}); err != nil || r.Status != optimise.Optimal {
+				b.Fatal(err)
+			}
+		}
+	})
+	bin := filepath.Join(dir, "lipoplan")
+	if out, err := exec.Command("go", "build", "-o", bin, ".").CombinedOutput(); err != nil {
+		b.Skipf("cannot build lipoplan: %v\n%s", err, out)
+	}
+	mps := filepath.Join(dir, "model.mps")
+	if out, err := exec.Command(bin, "solve", "--stocks", stocks, "--spec", spec, "--mps", mps).CombinedOutput(); err != nil {
+		b.Fatalf("%v\n%s", err, out)
+	}
+	lipoplan := func() {
+		c := exec.Command(bin, "solve", "--stocks", stocks, "--spec", spec, "--format", "json")
+		c.Stdout = io.Discard
+		if err := c.Run(); err != nil {
+			b.Fatal(err)
+		}
+	}
+	glpsol := func() {
+		if out, err := exec.Command("glpsol", "--freemps", mps, "-o", mps+".out").CombinedOutput(); err != nil {
+			b.Fatalf("%v\n%s", err, out)
+		}
+	}
+	b.Run("Process", func(b *testing.B) {
+		for b.Loop() {
+			lipoplan()
+		}
+	})
+	_, err := exec.LookPath("glpsol")
+	b.Run("Glpsol", func(b *testing.B) {
+		if err != nil {
+			b.Skip("glpsol (glpk-utils) is not on PATH")
+		}
+		for b.Loop() {
+			glpsol()
+		}
+	})
+	b.Run("Interleaved", func(b *testing.B) {
+		if err != nil {
+			b.Skip("glpsol (glpk-utils) is not on PATH")
+		}
+		var ours, theirs time.Duration
+		for b.Loop() {
+			t0 := time.Now()
+			lipoplan()
+			t1 := time.Now()
+			glpsol()
+			ours, theirs = ours+t1.Sub(t0), theirs+time.Since(t1)
+		}
+		b.ReportMetric(float64(ours)/float64(theirs), "lipoplan/glpsol")
+	})
+}
