@@ -239,8 +239,17 @@ func (p *Problem) Clone() *Problem {
 	return q
 }
 
-// copyInto makes dst a deep copy of p, reusing dst's arrays.
+// copyInto makes dst a deep copy of p, reusing dst's arrays (or laying out
+// new ones in one block of floats and one of indices).
 func (p *Problem) copyInto(dst *Problem) {
+	if cap(dst.Value) < len(p.Value) || cap(dst.Obj) < p.Cols || cap(dst.RowLo) < p.Rows || cap(dst.Start) < p.Cols+1 {
+		nz, n, m := len(p.Value), p.Cols, p.Rows
+		f := make([]float64, nz+4*n+2*m)
+		dst.Value, dst.Obj, dst.ColLo, dst.ColUp = f[:0:nz], f[nz:nz:nz+n], f[nz+n:nz+n:nz+2*n], f[nz+2*n:nz+2*n:nz+3*n]
+		dst.RowLo, dst.RowUp = f[nz+3*n:nz+3*n:nz+3*n+m], f[nz+3*n+m:nz+3*n+m:nz+3*n+2*m]
+		ix := make([]int, nz+n+1)
+		dst.Index, dst.Start = ix[:0:nz], ix[nz:nz]
+	}
 	dst.Rows, dst.Cols = p.Rows, p.Cols
 	dst.Start = append(dst.Start[:0], p.Start...)
 	dst.Index = append(dst.Index[:0], p.Index...)

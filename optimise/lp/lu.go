@@ -85,6 +85,11 @@ func (f *factor) factorize(m int, bStart, bIdx []int, bVal []float64) (bad, free
 	f.lStart = f.lStart[:1]
 	f.uStart = f.uStart[:1]
 	f.lStart[0], f.uStart[0] = 0, 0
+	if nz := bStart[m]/2 + m; cap(f.lIdx) < nz {
+		ints := make([]int, 2*nz)
+		fl := make([]float64, 2*nz)
+		f.lIdx, f.uIdx, f.lVal, f.uVal = ints[:0:nz], ints[nz:nz], fl[:0:nz], fl[nz:nz]
+	}
 	f.lIdx, f.lVal, f.uIdx, f.uVal = f.lIdx[:0], f.lVal[:0], f.uIdx[:0], f.uVal[:0]
 	f.lSteps = f.lSteps[:0]
 	if cap(f.eIdx) < 8*m {

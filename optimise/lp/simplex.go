@@ -367,6 +367,8 @@ func (s *Simplex) allocShape() {
 	s.stat = make([]VarStatus, nm)
 	s.inR = make([]bool, nm)
 	s.nzR = make([]int, 0, nm)
+	s.cand = make([]candidate, 0, nm)
+	s.flips = make([]int, 0, 16)
 }
 
 // slackBasis makes every logical basic and puts each column at a bound:
