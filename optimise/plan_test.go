@@ -142,7 +142,7 @@ func TestRandomPlansAgainstGLPK(t *testing.T) {
 	}
 }
 
-// BenchmarkPlan20x50 is the DESIGN section 7 plan, 20 products x 50 stocks:
+// BenchmarkPlan20x50 is the README's benchmark plan, 20 products x 50 stocks:
 // Plan, and GLPK's glpsol on the same MPS file side by side (a process per
 // solve, so its time includes start-up and reading the file).
 func BenchmarkPlan20x50(b *testing.B) {

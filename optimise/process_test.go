@@ -386,7 +386,7 @@ func TestProcessInfeasible(t *testing.T) {
 }
 
 // BenchmarkSolveProcessPredicted is the successive LP with predicted SFC on
-// the demo margarine spec (DESIGN section 7: < 200 ms);
+// the demo margarine spec (target < 200 ms);
 // BenchmarkSolveProcessPlainReference is the same spec without [process]
 // in the same run, for the ratio.
 func BenchmarkSolveProcessPredicted(b *testing.B) {

@@ -14,7 +14,7 @@ import (
 	"lipoplan/catalogue"
 )
 
-// Exit codes of the CLI contract (DESIGN section 4).
+// Exit codes of the CLI contract (README, Commands).
 const (
 	exitOK         = 0
 	exitInternal   = 1

@@ -84,7 +84,7 @@ func (a *app) mix(args []string) error {
 }
 
 // cautionLine is printed under every report that could reach production
-// (DESIGN section 10).
+// (README, Cautions).
 const cautionLine = "Caution: calculated values are estimates; confirm by lab analysis (GC FAME, pulsed-NMR SFC) before use.\n" +
 	"Trans-fat, labelling and contaminant limits (e.g. 3-MCPD and glycidyl esters in refined palm products)\n" +
 	"are set by local food law; follow it and your licensed practice."
@@ -123,7 +123,7 @@ func round(v float64, digits int) float64 {
 	return math.Round(v*s) / s
 }
 
-// propertiesJSON is the stable JSON shape of mix properties (DESIGN section 4).
+// propertiesJSON is the stable JSON shape of mix properties (README, JSON output).
 func propertiesJSON(p blend.Properties) map[string]any {
 	fa := map[string]float64{}
 	for k, v := range p.FattyAcids {

@@ -75,7 +75,7 @@ func (a *app) orders(path string, cat *catalogue.Catalogue) (*catalogue.Orders, 
 	return o, nil
 }
 
-// planJSON is the stable JSON shape of a plan (DESIGN section 4).
+// planJSON is the stable JSON shape of a plan (README, JSON output).
 func planJSON(r *optimise.PlanResult) map[string]any {
 	out := map[string]any{"status": string(r.Status), "engine": r.Engine, "caution": cautionJSON}
 	products := []map[string]any{}

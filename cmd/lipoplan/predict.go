@@ -61,7 +61,7 @@ func processWords(m randomise.Method) string {
 }
 
 // addJSON adds sfc_predicted and the model's description and fit to a mix
-// JSON object (DESIGN section 4).
+// JSON object (README, JSON output).
 func (p *predicted) addJSON(out map[string]any) {
 	sfc := map[string]float64{}
 	for t, v := range p.sfc {

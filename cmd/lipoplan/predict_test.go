@@ -15,7 +15,7 @@ import (
 
 func TestMixPredictJSON(t *testing.T) {
 	// The CLI's sfc_predicted is blend/sle's prediction after the process,
-	// keyed by whole degrees (DESIGN section 4).
+	// keyed by whole degrees (README, JSON output).
 	cat := catalogue.DemoStocks()
 	fh, _ := cat.Find("fh-rapeseed")
 	oil, _ := cat.Find("rapeseed")
@@ -68,7 +68,7 @@ func TestMixPredictText(t *testing.T) {
 	assert.Contains(t, out, "predicted by the TAG model, after chemical (random) interesterification")
 	assert.Contains(t, out, "Model error against each stock's measured curve")
 	assert.Contains(t, out, "palm ")
-	assert.Contains(t, out, "sodium methoxide", "the process caution (DESIGN section 10)")
+	assert.Contains(t, out, "sodium methoxide", "the process caution (README, Cautions)")
 	assert.Contains(t, out, "Caution: calculated values are estimates")
 }
 

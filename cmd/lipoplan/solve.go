@@ -91,7 +91,7 @@ func finiteOrNil(v float64, digits int) any {
 	return round(v, digits)
 }
 
-// solveJSON is the stable JSON shape of a solve (DESIGN section 4).
+// solveJSON is the stable JSON shape of a solve (README, JSON output).
 func solveJSON(r *optimise.Result) map[string]any {
 	out := map[string]any{"status": string(r.Status), "engine": r.Engine, "caution": cautionJSON}
 	blendOut := []map[string]any{}
@@ -279,7 +279,7 @@ func writeSolveText(w io.Writer, r *optimise.Result, spec *catalogue.Spec, temps
 
 // writeCautions closes a solve report: the general caution, and the plant
 // hazard caution when the spec names an interesterification step
-// (DESIGN section 10).
+// (README, Cautions).
 func writeCautions(w io.Writer, spec *catalogue.Spec) {
 	fmt.Fprintln(w, cautionLine)
 	if spec.Process != nil {
@@ -407,7 +407,7 @@ func writeReactor(w io.Writer, r *optimise.Result, temps []float64) {
 	fmt.Fprintln(w)
 }
 
-// processJSON is the reactor step in JSON (additive to DESIGN section 4).
+// processJSON is the reactor step in JSON (additive to the README's JSON output).
 func processJSON(p *optimise.ProcessReport) map[string]any {
 	feed := []map[string]any{}
 	for _, l := range p.Feed {

@@ -14,7 +14,7 @@ import (
 )
 
 // processCaution closes every TAG report where a process step was applied
-// (DESIGN section 10).
+// (README, Cautions).
 const processCaution = "Caution: interesterification catalysts (sodium methoxide) and hydrogenation (hydrogen, nickel) are\n" +
 	"hazardous plant operations for trained staff under local codes; predicted TAG compositions are\n" +
 	"estimates to be confirmed by lab analysis before use."

@@ -47,7 +47,7 @@ func decodeTags(t *testing.T, out string) tagsJSON {
 	var raw map[string]any
 	require.NoError(t, json.Unmarshal([]byte(out), &raw), out)
 	for _, k := range []string{"species", "classes", "sus", "ssu", "by_cn", "by_ecn"} {
-		assert.Contains(t, raw, k, "DESIGN section 4 key")
+		assert.Contains(t, raw, k, "README JSON key")
 	}
 	var r tagsJSON
 	require.NoError(t, json.Unmarshal([]byte(out), &r))
