@@ -450,6 +450,38 @@ func (mp *MIP) SetParameter(name, value string) {
 // SetMaxSeconds bounds the branch-and-bound time.
 func (mp *MIP) SetMaxSeconds(s float64) { C.Cbc_setMaximumSeconds(mp.m, C.double(s)) }
 
+// SetMaxNodes bounds the branch-and-bound nodes (Cbc_setMaximumNodes).
+func (mp *MIP) SetMaxNodes(n int) { C.Cbc_setMaximumNodes(mp.m, C.int(n)) }
+
+// LimitReached names the limit that stopped the last solve: "nodes",
+// "time", or "" for none.
+func (mp *MIP) LimitReached() string {
+	switch {
+	case C.Cbc_isNodeLimitReached(mp.m) != 0:
+		return "nodes"
+	case C.Cbc_isSecondsLimitReached(mp.m) != 0:
+		return "time"
+	}
+	return ""
+}
+
+// BestSolution copies the best integer solution found into dst (grown as
+// needed), or returns nil when none was found (Cbc_bestSolution).
+func (mp *MIP) BestSolution(dst []float64) []float64 {
+	p := C.Cbc_bestSolution(mp.m)
+	if p == nil {
+		return nil
+	}
+	return copyOut(dst, p, mp.cols)
+}
+
+// BestBound is the best proven lower bound on the optimum
+// (Cbc_getBestPossibleObjValue).
+func (mp *MIP) BestBound() float64 { return float64(C.Cbc_getBestPossibleObjValue(mp.m)) }
+
+// Nodes is the number of branch-and-bound nodes of the last solve.
+func (mp *MIP) Nodes() int { return int(C.Cbc_getNodeCount(mp.m)) }
+
 // cbcMu serialises Cbc_solve. CBC's solver driver (CbcMain1, which
 // Cbc_solve calls) keeps process-wide static state, so two branch-and-bound
 // runs at once corrupt each other (seen in optimise's TestConcurrentSolves:

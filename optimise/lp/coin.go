@@ -138,8 +138,10 @@ func statusOf(basic bool, v, lo, up float64) VarStatus {
 	return nonbasicStatus(v, lo, up)
 }
 
-// CBC solves MIPs with COIN-OR CBC through the binding, with a time limit
-// and its primal heuristics off (lipoplan's MIPs are small; branch and
+// CBC solves MIPs with COIN-OR CBC through the binding, with the node and
+// time limits of Limits (CBC's nodes, which are not lipoplan's LPs; a
+// search stopped there is NotProven or NoSolution) and its primal
+// heuristics off (lipoplan's MIPs are small; branch and
 // bound proves the optimum either way and is faster without them).
 type CBC struct {
 	start, index []int32
@@ -163,16 +165,27 @@ func (c *CBC) SolveMIP(p *Problem, integer []int, lim Limits) (*MIPSolution, err
 		return nil, fmt.Errorf("cbc: %w", err)
 	}
 	mp.SetMaxSeconds(lim.MaxTime.Seconds())
+	mp.SetMaxNodes(lim.MaxNodes)
 	mp.SetParameter("heuristicsOnOff", "off")
 	switch st := mp.Solve(); st {
 	case coin.Infeasible:
-		return &MIPSolution{Status: Infeasible, Bound: math.Inf(1)}, nil
+		return &MIPSolution{Status: Infeasible, Bound: math.Inf(1), Nodes: mp.Nodes()}, nil
 	case coin.Unbounded:
-		return &MIPSolution{Status: Unbounded}, nil
+		return &MIPSolution{Status: Unbounded, Nodes: mp.Nodes()}, nil
 	case coin.Optimal:
 	default:
-		return nil, fmt.Errorf("cbc: branch and bound %s (time limit %v)", st, lim.MaxTime)
+		// Stopped: by a limit, with or without an integer point.
+		limit := mp.LimitReached()
+		if limit == "" {
+			return nil, fmt.Errorf("cbc: branch and bound %s", st)
+		}
+		s := &MIPSolution{Status: NoSolution, Bound: mp.BestBound(), Nodes: mp.Nodes(), Limit: limit}
+		if x := mp.BestSolution(nil); x != nil {
+			s.Status, s.X, s.Obj = NotProven, x, p.Objective(x)
+			s.Bound = min(s.Bound, s.Obj)
+		}
+		return s, nil
 	}
 	x := mp.ColSolution(nil)
-	return &MIPSolution{Status: Optimal, Obj: mp.Objective(), Bound: mp.Objective(), X: x}, nil
+	return &MIPSolution{Status: Optimal, Obj: mp.Objective(), Bound: mp.Objective(), X: x, Nodes: mp.Nodes()}, nil
 }
