@@ -46,7 +46,8 @@ func NewSet(acids []catalogue.FattyAcid, opt Options) *Set {
 	m := n * n * (n + 1) / 2
 	s := &Set{Acids: acids, opt: opt, n: n, group: make([]int32, n*n*n),
 		mass: make([]float64, 0, m), tm: make([]float64, 0, m), dhR: make([]float64, 0, m)}
-	w, beta := wesdorp(opt.Polymorph), opt.Polymorph.resolve() == Beta
+	form := opt.Polymorph.resolve() - Alpha
+	anchors := parsedAnchors()
 	mass := make([]float64, n)
 	for i, f := range acids {
 		mass[i] = f.MolarMass()
@@ -59,7 +60,7 @@ func NewSet(acids []catalogue.FattyAcid, opt Options) *Set {
 				s.group[(i*n+j)*n+k] = g
 				s.group[(k*n+j)*n+i] = g
 				a, b, c := acids[i], acids[j], acids[k]
-				p := meltingWith(w, beta, a, b, c)
+				p := meltingSet(a, b, c, anchors)[form]
 				// glycerol + 3 acids - 3 water (condensation), as catalogue.TAGMolarMass
 				s.mass = append(s.mass, base+mass[i]+mass[j]+mass[k])
 				s.tm = append(s.tm, p.Tm)
