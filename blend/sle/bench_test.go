@@ -42,6 +42,22 @@ func BenchmarkCurve(b *testing.B) {
 	}
 }
 
+// BenchmarkCurveIsomorph is BenchmarkCurve with the solid-solution model
+// (Phases, one ideal solid solution per saturation pattern and carbon
+// number).
+func BenchmarkCurveIsomorph(b *testing.B) {
+	d, temps := bench550(b)
+	s := NewSet(d.Acids, Options{Solids: IsomorphSolutions})
+	out := make([]float64, len(temps))
+	var w Work
+	b.ReportAllocs()
+	for b.Loop() {
+		if err := s.Curve(d.Mol, temps, out, &w); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
 // BenchmarkPredict is one whole prediction from a distribution: TAG set and
 // melting properties built, curve solved, map returned.
 func BenchmarkPredict(b *testing.B) {

@@ -73,7 +73,7 @@ func (p *predicted) addJSON(out map[string]any) {
 	for _, f := range p.fits {
 		fits = append(fits, map[string]any{
 			"stock": f.Stock, "mae": round(f.MAE, 2), "max": round(f.Max, 2),
-			"bias": round(f.Bias, 2), "points": f.Points,
+			"bias": round(f.Bias, 2), "points": len(f.Points),
 		})
 	}
 	out["sfc_model"] = map[string]any{"method": p.model(), "error_vs_measured": fits}
