@@ -145,3 +145,19 @@ func TestBisectionReferenceAgrees(t *testing.T) {
 		}
 	}
 }
+
+// BenchmarkCalibrateDemo fits the five class shifts to every measured curve
+// of the demo catalogue (14 stocks, 4 of them liquid oils), without the
+// held-out check: the fit a user runs with lipoplan calibrate.
+func BenchmarkCalibrateDemo(b *testing.B) {
+	cat := catalogue.DemoStocks()
+	var sts []*catalogue.Stock
+	for i := range cat.Stocks {
+		sts = append(sts, &cat.Stocks[i])
+	}
+	for b.Loop() {
+		if _, err := Calibrate(sts, DefaultOptions(), false); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

@@ -59,6 +59,18 @@ func TestErrorOnTypicalCurves(t *testing.T) {
 		assert.LessOrEqual(t, f.MAE, f.RMS+1e-12, "MAE <= RMS (Cauchy-Schwarz)")
 	}
 	assert.LessOrEqual(t, sle.PooledRMS(fits), 8.4, "pooled RMS error on the typical curves")
+	// MeasuredError states these figures: keep it true.
+	worst := fits[0]
+	for _, f := range fits {
+		if f.Max > worst.Max {
+			worst = f
+		}
+	}
+	assert.Contains(t, sle.MeasuredError, fmt.Sprintf("RMS %.1f %% solid", sle.PooledRMS(fits)))
+	assert.Contains(t, sle.MeasuredError, fmt.Sprintf("worst %.0f %% solid", worst.Max))
+	assert.Equal(t, "palm-olein", worst.Stock)
+	assert.Equal(t, 20.0, worst.MaxAt)
+	assert.Contains(t, sle.MeasuredError, fmt.Sprintf("%d natural fats", len(fits)))
 }
 
 // The alternative solid model and the other polymorphs, measured on the same

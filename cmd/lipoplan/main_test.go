@@ -67,6 +67,8 @@ func TestCheckBadCorpus(t *testing.T) {
 			flag = "--spec"
 		case strings.Contains(head, "# kind: orders"):
 			flag = "--orders"
+		case strings.Contains(head, "# kind: calibration"):
+			flag = "--calibration"
 		}
 		code, out, errs := run(t, "check", flag, f)
 		assert.Equal(t, 2, code, "%s\n%s%s", f, out, errs)

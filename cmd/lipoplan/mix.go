@@ -24,14 +24,19 @@ func (a *app) mix(args []string) error {
 	format := fs.String("format", "text", "text or json")
 	process := fs.String("process", "native", "for --predict: native, chemical or enzymatic interesterification of the whole mix")
 	predict := fs.Bool("predict", false, "add the SFC predicted from the TAG composition")
+	calPath := fs.String("calibration", "", calibrationFlagHelp)
 	if err := a.parse(fs, args); err != nil {
+		return err
+	}
+	opt, err := a.sfcModel(*calPath)
+	if err != nil {
 		return err
 	}
 	if err := checkFormat(*format, "text", "json"); err != nil {
 		return err
 	}
-	method, err := randomise.ParseMethod(*process)
-	if err != nil {
+	method, perr := randomise.ParseMethod(*process)
+	if perr != nil {
 		return catalogue.Badf("--process %q is not known; use native, chemical or enzymatic", *process)
 	}
 	if method != randomise.Native && !*predict {
@@ -58,7 +63,7 @@ func (a *app) mix(args []string) error {
 	}
 	var pred *predicted
 	if *predict {
-		if pred, err = predictMix(parts, method, ts); err != nil {
+		if pred, err = predictMix(parts, method, ts, opt); err != nil {
 			return err
 		}
 	}

@@ -66,7 +66,7 @@ func TestMixPredictText(t *testing.T) {
 	code, out, errs := run(t, "mix", "--use", "palm=60,pko=40", "--predict", "--process", "chemical")
 	require.Equal(t, 0, code, errs)
 	assert.Contains(t, out, "predicted by the TAG model, after chemical (random) interesterification")
-	assert.Contains(t, out, "Model error against each stock's measured curve")
+	assert.Contains(t, out, "Model error against each stock's own measured curve")
 	assert.Contains(t, out, "palm ")
 	assert.Contains(t, out, "sodium methoxide", "the process caution (DESIGN section 10)")
 	assert.Contains(t, out, "Caution: calculated values are estimates")
