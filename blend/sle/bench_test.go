@@ -161,3 +161,30 @@ func BenchmarkCalibrateDemo(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkBlendModelSFC is one prediction of a final blend over all 14
+// demo stocks (two through a chemical reactor) at four spec temperatures:
+// the unit of work of the optimiser's predicted-SFC model.
+func BenchmarkBlendModelSFC(b *testing.B) {
+	cat := catalogue.DemoStocks()
+	var sts []*catalogue.Stock
+	for i := range cat.Stocks {
+		sts = append(sts, &cat.Stocks[i])
+	}
+	m, err := NewBlendModel(sts, randomise.Chemical, []float64{10, 20, 35, 40}, DefaultOptions())
+	if err != nil {
+		b.Fatal(err)
+	}
+	direct, feed := make([]float64, len(sts)), make([]float64, len(sts))
+	for j := range direct {
+		direct[j] = 5
+	}
+	feed[7], feed[8] = 20, 10
+	out := make([]float64, 4)
+	b.ReportAllocs()
+	for b.Loop() {
+		if err := m.SFC(direct, feed, out); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

@@ -263,6 +263,7 @@ type Work struct {
 	acc                  []float64
 	order                []int
 	w                    []float64
+	ids                  []int32
 	phases               Phases
 }
 
@@ -270,15 +271,72 @@ type Work struct {
 // TAG composition mol (positional mole fractions over s.Acids, indexed as
 // randomise.Distribution.Mol), writing into out (len(temps)). w may be nil.
 func (s *Set) Curve(mol []float64, temps []float64, out []float64, w *Work) error {
+	return s.curve(mol, temps, out, w, nil)
+}
+
+// Prepared is a Set with every TAG's inverse solubility 1/xs tabulated at
+// fixed temperatures, for the many Curve calls of an optimiser at those
+// temperatures (no exponentials on that path).
+type Prepared struct {
+	set   *Set
+	temps []float64
+	inv   [][]float64 // [temperature][identity] exp((dH/R)(1/T - 1/Tm)), exponent clipped to ±600
+}
+
+// Prepare tabulates s at temps (deg C).
+func (s *Set) Prepare(temps []float64) (*Prepared, error) {
+	if err := checkTemps(temps); err != nil {
+		return nil, err
+	}
+	p := &Prepared{set: s, temps: append([]float64(nil), temps...), inv: make([][]float64, len(temps))}
+	for ti, t := range temps {
+		p.inv[ti] = make([]float64, len(s.tm))
+		s.inverseSolubility(t+273.15, p.inv[ti])
+	}
+	return p, nil
+}
+
+// Temps are the temperatures the table holds (deg C).
+func (p *Prepared) Temps() []float64 { return p.temps }
+
+// Set is the TAG set the table was made from.
+func (p *Prepared) Set() *Set { return p.set }
+
+// Curve is Set.Curve at the prepared temperatures.
+func (p *Prepared) Curve(mol []float64, out []float64, w *Work) error {
+	return p.set.curve(mol, p.temps, out, w, p.inv)
+}
+
+// inverseSolubility fills out[i] = 1/xs_i = exp((dH_i/R)(1/T - 1/Tm_i)) at
+// T (K), the exponent clipped to ±600 so that it stays finite (far below
+// Tm the TAG is simply solid, far above simply liquid).
+func (s *Set) inverseSolubility(tk float64, out []float64) {
+	for i := range out {
+		out[i] = math.Exp(min(max(s.dhR[i]*(1/tk-1/s.tm[i]), -600), 600))
+	}
+}
+
+func checkTemps(temps []float64) error {
+	for _, t := range temps {
+		if math.IsNaN(t) || math.IsInf(t, 0) || t <= -273.15 {
+			return catalogue.Badf("SFC temperature %v C is not a finite temperature above absolute zero", t)
+		}
+	}
+	return nil
+}
+
+// curve is Curve with an optional table of inverse solubilities per
+// temperature (Prepared); nil computes them.
+func (s *Set) curve(mol []float64, temps []float64, out []float64, w *Work, inv [][]float64) error {
 	if len(mol) != s.n*s.n*s.n {
 		return fmt.Errorf("sle: composition has %d species, want %d for %d acids", len(mol), s.n*s.n*s.n, s.n)
 	}
 	if len(out) < len(temps) {
 		return fmt.Errorf("sle: output has room for %d temperatures, want %d", len(out), len(temps))
 	}
-	for _, t := range temps {
-		if math.IsNaN(t) || math.IsInf(t, 0) || t <= -273.15 {
-			return catalogue.Badf("SFC temperature %v C is not a finite temperature above absolute zero", t)
+	if inv == nil {
+		if err := checkTemps(temps); err != nil {
+			return err
 		}
 	}
 	if w == nil {
@@ -295,9 +353,9 @@ func (s *Set) Curve(mol []float64, temps []float64, out []float64, w *Work) erro
 		}
 	}
 	if s.opt.Solids != PureSolids {
-		return s.curveSolutions(temps, out, w)
+		return s.curveSolutions(temps, out, w, inv)
 	}
-	w.z, w.mass, w.tm, w.dhR = w.z[:0], w.mass[:0], w.tm[:0], w.dhR[:0]
+	w.z, w.mass, w.tm, w.dhR, w.ids = w.z[:0], w.mass[:0], w.tm[:0], w.dhR[:0], w.ids[:0]
 	var total, totalMass float64
 	for g, v := range w.acc {
 		if v <= 0 {
@@ -307,6 +365,7 @@ func (s *Set) Curve(mol []float64, temps []float64, out []float64, w *Work) erro
 		w.mass = append(w.mass, s.mass[g])
 		w.tm = append(w.tm, s.tm[g])
 		w.dhR = append(w.dhR, s.dhR[g])
+		w.ids = append(w.ids, int32(g))
 		total += v
 		totalMass += v * s.mass[g]
 	}
@@ -324,11 +383,18 @@ func (s *Set) Curve(mol []float64, temps []float64, out []float64, w *Work) erro
 	L := 1.0
 	for _, ti := range w.hotFirst(temps) {
 		tk := temps[ti] + 273.15
-		for i := range w.z {
-			if w.dhR[i] <= 0 || tk >= w.tm[i] {
-				w.xs[i] = 1
-			} else {
-				w.xs[i] = math.Exp(w.dhR[i] * (1/w.tm[i] - 1/tk))
+		if inv != nil {
+			row := inv[ti]
+			for i, g := range w.ids {
+				w.xs[i] = min(1, 1/row[g])
+			}
+		} else {
+			for i := range w.z {
+				if w.dhR[i] <= 0 || tk >= w.tm[i] {
+					w.xs[i] = 1
+				} else {
+					w.xs[i] = math.Exp(w.dhR[i] * (1/w.tm[i] - 1/tk))
+				}
 			}
 		}
 		L = LiquidFractionFrom(w.z, w.xs, L)
@@ -357,7 +423,7 @@ func (w *Work) hotFirst(temps []float64) []int {
 // fractions are in w.acc (identity order, phases consecutive); each
 // temperature's equilibrium comes from Phases, warm-started from the
 // previous (higher) temperature.
-func (s *Set) curveSolutions(temps []float64, out []float64, w *Work) error {
+func (s *Set) curveSolutions(temps []float64, out []float64, w *Work, inv [][]float64) error {
 	var total, totalMass float64
 	for g, v := range w.acc {
 		total += v
@@ -374,13 +440,13 @@ func (s *Set) curveSolutions(temps []float64, out []float64, w *Work) error {
 	w.w = grow(w.w, len(w.z))
 	warm := false
 	for _, ti := range w.hotFirst(temps) {
-		tk := temps[ti] + 273.15
-		for i := range w.z {
-			// w_i = 1/xs_i = exp((dH/R)(1/T - 1/Tm)), exponent clipped so
-			// that it stays finite (far below Tm the TAG is simply solid).
-			w.w[i] = math.Exp(min(max(s.dhR[i]*(1/tk-1/s.tm[i]), -600), 600))
+		wv := w.w
+		if inv != nil {
+			wv = inv[ti]
+		} else {
+			s.inverseSolubility(temps[ti]+273.15, wv)
 		}
-		if err := w.phases.Solve(w.z, w.w, s.start, warm); err != nil {
+		if err := w.phases.Solve(w.z, wv, s.start, warm); err != nil {
 			return err
 		}
 		warm = true
@@ -390,7 +456,7 @@ func (s *Set) curveSolutions(temps []float64, out []float64, w *Work) error {
 				continue
 			}
 			for i := s.start[g]; i < s.start[g+1]; i++ {
-				solid += w.phases.SolidMoles(w.z, w.w, g, i) * s.mass[i]
+				solid += w.phases.SolidMoles(w.z, wv, g, i) * s.mass[i]
 			}
 		}
 		out[ti] = 100 * solid / totalMass
