@@ -157,8 +157,30 @@ func propertiesJSON(p blend.Properties) map[string]any {
 			miss[catalogue.TempKey(t)] = ids
 		}
 		out["sfc_missing"] = miss
+	} else if mp := blend.CurveMeltingPoints(p.SFC); mp.SlipFound {
+		out["slip_point"] = round(mp.Slip, 1)
+		if mp.ClearFound {
+			out["clear_point"] = round(mp.Clear, 1)
+		}
 	}
 	return out
+}
+
+// writeMeltingPoints prints the slip and clear point estimates read off a
+// curve, with the thresholds and their basis, or nothing when the curve
+// does not fall through them in its range.
+func writeMeltingPoints(w io.Writer, sfc map[float64]float64, indent string) {
+	mp := blend.CurveMeltingPoints(sfc)
+	if !mp.SlipFound {
+		return
+	}
+	line := fmt.Sprintf("Slip melting point about %.1f C (where the SFC falls to %.0f %% solid)", mp.Slip, blend.SlipThreshold)
+	if mp.ClearFound {
+		line += fmt.Sprintf(", clear point about %.1f C (%.1f %%)", mp.Clear, blend.ClearThreshold)
+	}
+	line += "; estimates read off the curve (common practice), not AOCS Cc 3-25 measurements."
+	lead := strings.Repeat(" ", len(indent)-len(strings.TrimLeft(indent, " ")))
+	fmt.Fprintln(w, indent+wrapText(line, 96-len(indent), lead))
 }
 
 func writeJSON(w io.Writer, v any) error {
@@ -192,6 +214,9 @@ func writePropertiesAs(w io.Writer, p blend.Properties, temps []float64, sfcHead
 	fmt.Fprintln(w)
 	fmt.Fprintln(w)
 	writeSFCRow(w, "  "+sfcHeading, p.SFC, temps)
+	if len(p.SFCMissing) == 0 {
+		writeMeltingPoints(w, p.SFC, "    ")
+	}
 	if len(p.SFCMissing) > 0 {
 		var ts []float64
 		for t := range p.SFCMissing {

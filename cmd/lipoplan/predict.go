@@ -100,9 +100,7 @@ func (p *predicted) writeText(w io.Writer, temps []float64) {
 		fmt.Fprintf(w, "    Model error against each stock's own measured curve, RMS %% solid: %s.\n", wrapText(strings.Join(items, ", "), 96, "    "))
 	}
 	fmt.Fprintf(w, "    %s.\n", wrapText("In general "+sle.MeasuredError, 96, "    "))
-	if mp := blend.CurveMeltingPoints(p.sfc); mp.SlipFound {
-		fmt.Fprintf(w, "    Slip melting point read off the predicted curve: about %.1f C (where it falls to %.0f %% solid; common practice).\n", mp.Slip, blend.SlipThreshold)
-	}
+	writeMeltingPoints(w, p.sfc, "    Predicted curve: ")
 	for _, n := range p.notes {
 		fmt.Fprintf(w, "    Note: %s\n", n)
 	}
