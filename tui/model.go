@@ -450,7 +450,7 @@ func parseValue(s string) (float64, error) {
 		s = strings.Replace(s, ",", ".", 1) // decimal comma
 	}
 	v, err := strconv.ParseFloat(s, 64)
-	if err != nil || math.IsInf(v, 0) {
+	if err != nil || math.IsInf(v, 0) || math.IsNaN(v) {
 		return 0, fmt.Errorf("%q is not a number", s)
 	}
 	return v, nil

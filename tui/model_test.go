@@ -131,6 +131,25 @@ func TestNudgeAndBadInput(t *testing.T) {
 	assert.False(t, h.Limited())
 }
 
+// A price, amount or limit typed beyond the accepted magnitudes (README
+// "Accepted magnitudes") is refused on the status line and changes nothing.
+func TestTypedMagnitudesRefused(t *testing.T) {
+	d := newDriver(t, demoModel(t, "laminating", Files{}), 80, 24)
+	i := stockIndex(t, d.m, "palm")
+	rev := d.m.rev
+	for _, v := range []string{"1e25", "1e-320", "NaN", "-5", "1e400"} {
+		d.keys("2" + "g" + downs(i) + "<enter><ctrl+u>" + v + "<enter>")
+		assert.Equal(t, 1000.0, price(d.m, "palm"), v)
+		assert.True(t, d.m.msgError, v)
+	}
+	d.keys("<right><enter><ctrl+u>1e308<enter>")
+	assert.Contains(t, d.m.Message(), "outside the accepted range 0, or 0.001 to 1e6 t")
+	d.keys("3g<enter><ctrl+u>1e-320<enter>")
+	assert.Contains(t, d.m.Message(), "batch = 1e-320 is outside the accepted range 0.001 to 1e6 t")
+	assert.Equal(t, rev, d.m.rev, "no refused value became an edit")
+	d.requireFrame(80, 24)
+}
+
 func TestLeaveOutAStock(t *testing.T) {
 	d := newDriver(t, demoModel(t, "laminating", Files{}), 80, 24)
 	top := d.m.Snapshot().Result.Blend[0].Stock
@@ -215,7 +234,7 @@ func TestBatchEdit(t *testing.T) {
 	assert.InDelta(t, 40.0, d.m.Snapshot().Result.Batch, 1e-9)
 	d.keys("<enter><ctrl+u>0<enter>")
 	assert.Equal(t, 40.0, d.m.Scenario().Spec.Batch)
-	assert.Contains(t, d.screen(), "above zero")
+	assert.Contains(t, d.screen(), "outside the accepted range")
 }
 
 func TestResizeKeepsTheFrame(t *testing.T) {
