@@ -227,7 +227,7 @@ func (c *collector) faMap(where, table string, lm leafMap) (map[string]float64, 
 	for _, k := range sortedKeys(lm.m) {
 		if _, ok := Lookup(k); !ok {
 			msg := fmt.Sprintf("%s: unknown fatty-acid key %q;", table, k)
-			if s, ok := suggest(k, Keys()); ok {
+			if s, ok := c.suggest(k, Keys()); ok {
 				msg += fmt.Sprintf(" did you mean %q?", s)
 			}
 			c.errf(where, "%s known keys are %s", msg, strings.Join(Keys(), ", "))
@@ -487,7 +487,7 @@ func (c *collector) spec(md toml.MetaData, raw rawSpec, cat *Catalogue) *Spec {
 		if !IsProperty(name) {
 			if _, ok := Lookup(name); !ok {
 				msg := fmt.Sprintf("unknown limit %q; limits are %s, sfc, or a fatty-acid key such as \"C18:2\"", name, strings.Join(Properties, ", "))
-				if sug, ok := suggest(name, limitNames()); ok {
+				if sug, ok := c.suggest(name, limitNames()); ok {
 					msg += fmt.Sprintf("; did you mean %q?", sug)
 				}
 				c.errf(where, "%s", msg)
@@ -505,7 +505,7 @@ func (c *collector) spec(md toml.MetaData, raw rawSpec, cat *Catalogue) *Spec {
 		b, ok := c.bound(md, where, raw.Use[id], QtyPercent, tomlKey(id))
 		if cat != nil {
 			if _, found := cat.Find(id); !found {
-				c.errf(where, "no stock %q in %s; %s", id, catName(cat), stockHint(id, cat))
+				c.errf(where, "no stock %q in %s; %s", id, catName(cat), c.stockHint(id, cat))
 				ok = false
 			}
 		}
@@ -607,7 +607,7 @@ func (c *collector) process(r rawProcess, cat *Catalogue) *Process {
 			seen[id] = true
 			if cat != nil {
 				if _, found := cat.Find(id); !found {
-					c.errf(where, "interesterify names %q, which is not in %s; %s", id, catName(cat), stockHint(id, cat))
+					c.errf(where, "interesterify names %q, which is not in %s; %s", id, catName(cat), c.stockHint(id, cat))
 					continue
 				}
 			}
@@ -641,6 +641,7 @@ func (c *collector) orders(raw rawOrders, dir string, cat *Catalogue) *Orders {
 	if len(raw.Order) == 0 {
 		c.errf("", "no orders: add at least one [[order]] table with spec = \"file.toml\" and tonnes")
 	}
+	specs := map[string]*Spec{} // by path
 	for i, ro := range raw.Order {
 		where := fmt.Sprintf("order #%d", i+1)
 		var o Order
@@ -670,14 +671,24 @@ func (c *collector) orders(raw rawOrders, dir string, cat *Catalogue) *Orders {
 		if !filepath.IsAbs(p) {
 			p = filepath.Join(dir, p)
 		}
-		spec, ps := LoadSpec(p, cat)
-		for _, sp := range ps {
-			// say which line of the orders file led to the spec file
-			sp.Msg += fmt.Sprintf(" (spec of %s in %s)", where, c.file)
-			c.ps = append(c.ps, sp)
+		// each spec file is read once, however many orders name it, and its
+		// problems are reported under the first of them
+		spec, seen := specs[p]
+		if !seen {
+			var ps Problems
+			spec, ps = LoadSpec(p, cat)
+			specs[p] = spec
+			for _, sp := range ps {
+				// say which line of the orders file led to the spec file
+				sp.Msg += fmt.Sprintf(" (spec of %s in %s)", where, c.file)
+				c.add(sp)
+			}
 		}
 		if spec == nil || !good {
 			continue
+		}
+		if seen {
+			spec = spec.Clone()
 		}
 		o.Spec, o.Path = spec, p
 		out.Orders = append(out.Orders, o)
@@ -698,7 +709,7 @@ func (c *collector) orders(raw rawOrders, dir string, cat *Catalogue) *Orders {
 				}
 				if cat != nil {
 					if _, found := cat.Find(id); !found {
-						c.errf(where, "no stock %q in %s; %s", id, catName(cat), stockHint(id, cat))
+						c.errf(where, "no stock %q in %s; %s", id, catName(cat), c.stockHint(id, cat))
 						continue
 					}
 				}
@@ -726,18 +737,27 @@ func catName(cat *Catalogue) string {
 }
 
 // stockHint suggests the nearest stock id, or lists the ids.
-func stockHint(id string, cat *Catalogue) string {
+func (c *collector) stockHint(id string, cat *Catalogue) string {
 	ids := make([]string, len(cat.Stocks))
 	for i, s := range cat.Stocks {
 		ids[i] = s.ID
 	}
-	if s, ok := suggest(id, ids); ok {
+	if s, ok := c.suggest(id, ids); ok {
 		return fmt.Sprintf("did you mean %q?", s)
 	}
 	if len(ids) > 20 {
 		ids = append(ids[:20:20], "...")
 	}
 	return "stock ids are " + strings.Join(ids, ", ")
+}
+
+// suggest is the package's suggest while the file's problems are still
+// listed one by one.
+func (c *collector) suggest(s string, cands []string) (string, bool) {
+	if c.full() {
+		return "", false
+	}
+	return suggest(s, cands)
 }
 
 // suggest returns the candidate nearest to s (ignoring case and spaces) when

@@ -5,7 +5,9 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"syscall"
 	"testing"
+	"time"
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
@@ -219,6 +221,8 @@ func TestScenarioFileBad(t *testing.T) {
 		"not toml":          "this is = = not toml",
 		"unknown stock key": replaceOnce(string(good), "[[stocks.stock]]\n", "[[stocks.stock]]\nflavour = \"nutty\"\n"),
 		"excluded unknown":  replaceOnce(string(good), "excluded = []", `excluded = ["nosuch"]`),
+		"nested too deep":   "[scenario]\nformat = 1\nx = " + strings.Repeat("{ a = ", 3000) + "1" + strings.Repeat(" }", 3000) + "\n",
+		"huge price":        replaceOnce(string(good), "price = 1150.0", "price = 1e25"),
 	}
 	for name, body := range cases {
 		_, err := DecodeScenario("bad.toml", []byte(body))
@@ -226,6 +230,25 @@ func TestScenarioFileBad(t *testing.T) {
 		assert.True(t, catalogue.IsBadInput(err), "%s: %v", name, err)
 		assert.Contains(t, err.Error(), "bad.toml", name)
 	}
+}
+
+// A scenario name that is a FIFO or a folder is refused at once (the
+// loaders' rule, catalogue.ReadInput), naming the file.
+func TestScenarioFileNotRegular(t *testing.T) {
+	dir := t.TempDir()
+	fifo := filepath.Join(dir, "pipe.toml")
+	require.NoError(t, syscall.Mkfifo(fifo, 0o600))
+	done := make(chan error, 1)
+	go func() { _, err := LoadScenario(fifo); done <- err }()
+	select {
+	case err := <-done:
+		assert.True(t, catalogue.IsBadInput(err))
+		assert.ErrorContains(t, err, fifo+": it is a named pipe (FIFO), not a regular file")
+	case <-time.After(20 * time.Second):
+		t.Fatal("LoadScenario waits on a FIFO")
+	}
+	_, err := LoadScenario(dir)
+	assert.ErrorContains(t, err, "it is a folder")
 }
 
 func replaceOnce(s, old, new string) string {

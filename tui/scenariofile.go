@@ -111,6 +111,9 @@ type rawScenario struct {
 // DecodeScenario reads a scenario file's bytes; name is used in messages.
 // Every problem is a catalogue.BadInput naming the file and the section.
 func DecodeScenario(name string, data []byte) (*Scenario, error) {
+	if err := catalogue.CheckTOMLDepth(data); err != nil {
+		return nil, catalogue.Badf("%s: %v", name, err)
+	}
 	var raw rawScenario
 	md, err := toml.Decode(string(data), &raw)
 	if err != nil {
@@ -171,7 +174,7 @@ func reencode(m map[string]any) ([]byte, error) {
 
 // LoadScenario reads a scenario file.
 func LoadScenario(path string) (*Scenario, error) {
-	data, err := os.ReadFile(path)
+	data, err := catalogue.ReadInput(path)
 	if err != nil {
 		return nil, catalogue.Badf("cannot read scenario %s: %v", path, unwrapPathErr(err))
 	}

@@ -131,7 +131,7 @@ func New(cfg Config) (*Server, error) {
 // with golang.org/x/crypto/ssh.ParseAuthorizedKey). Blank lines and # comments
 // are skipped; any other line that is not a key is an error naming the line.
 func LoadAuthorizedKeys(path string) ([]gossh.PublicKey, error) {
-	data, err := os.ReadFile(path)
+	data, err := catalogue.ReadInput(path)
 	if err != nil {
 		return nil, catalogue.Badf("serve: cannot read authorized keys %s: %v", path, pathErr(err))
 	}
@@ -183,7 +183,7 @@ func HostKey(path string) ([]byte, error) {
 	case st.Mode().Perm()&0o077 != 0:
 		return nil, catalogue.Badf("serve: host key %s can be read by others (mode %04o); run chmod 600 %s", path, st.Mode().Perm(), path)
 	}
-	data, err := os.ReadFile(path)
+	data, err := catalogue.ReadInput(path)
 	if err != nil {
 		return nil, catalogue.Badf("serve: cannot read host key %s: %v", path, pathErr(err))
 	}
