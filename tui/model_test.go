@@ -7,7 +7,6 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
-	"time"
 
 	tea "charm.land/bubbletea/v2"
 	"github.com/charmbracelet/x/ansi"
@@ -318,18 +317,51 @@ func TestWriteBack(t *testing.T) {
 	assert.Equal(t, files["laminating.toml"], raw)
 }
 
-// Writing back what is already on disk makes no backup.
-func TestReplaceKeepingBackupSkipsSameContent(t *testing.T) {
-	path := filepath.Join(t.TempDir(), "f.toml")
-	require.NoError(t, os.WriteFile(path, []byte("a = 1\n"), 0o600))
-	bak, err := replaceKeepingBackup(path, []byte("a = 1\n"), time.Now())
+// The workspace's save and write-back follow the rules of every output
+// (catalogue.Output): the stocks and spec it started from are never saved
+// over, "-" and folders are refused, a symlinked stocks file is written
+// through to its target, and writing back what is on disk makes no backup.
+func TestWorkspaceWritesByTheOutputRules(t *testing.T) {
+	dir := t.TempDir()
+	files := catalogue.DemoFiles()
+	real := filepath.Join(dir, "real-stocks.toml")
+	require.NoError(t, os.WriteFile(real, files["stocks.toml"], 0o600))
+	stocks := filepath.Join(dir, "stocks.toml")
+	require.NoError(t, os.Symlink(real, stocks))
+	spec := filepath.Join(dir, "spec.toml")
+	require.NoError(t, os.WriteFile(spec, files["laminating.toml"], 0o644))
+	d := newDriver(t, demoModel(t, "laminating", Files{Dir: dir, StocksPath: stocks, SpecPath: spec}), 80, 24)
+	for _, name := range []string{"stocks.toml", "real-stocks.toml", spec} {
+		d.keys("s<ctrl+u>" + name + "<enter>")
+		assert.Contains(t, d.m.Message(), "an input of this run", name)
+	}
+	d.keys("s<ctrl+u>-<enter>")
+	assert.Contains(t, d.m.Message(), "standard output")
+	require.NoError(t, os.Mkdir(filepath.Join(dir, "folder"), 0o755))
+	d.keys("s<ctrl+u>folder<enter>")
+	assert.Contains(t, d.m.Message(), "is a folder")
+	assert.Equal(t, files["stocks.toml"], []byte(readFile(t, real)), "nothing was written over the stocks")
+
+	// write back unchanged: the spec file is rewritten, the stocks through the
+	// link, and neither needs a backup once it holds what would be written
+	d.keys("W")
+	require.False(t, d.m.msgError, d.m.Message())
+	d.keys("W")
+	assert.NotContains(t, d.m.Message(), "Old files kept", "the second write-back changes nothing on disk")
+	lst, err := os.Lstat(stocks)
 	require.NoError(t, err)
-	assert.Empty(t, bak)
-	bak, err = replaceKeepingBackup(path, []byte("a = 2\n"), time.Now())
+	assert.NotZero(t, lst.Mode()&os.ModeSymlink, "the stocks file is still a link")
+	baks, _ := filepath.Glob(real + ".*.bak")
+	assert.Len(t, baks, 1, "the backup of the real stocks file sits beside it")
+	st, _ := os.Stat(real)
+	assert.Equal(t, os.FileMode(0o600), st.Mode().Perm(), "the rewritten file keeps its mode")
+}
+
+func readFile(t *testing.T, path string) string {
+	t.Helper()
+	b, err := os.ReadFile(path)
 	require.NoError(t, err)
-	st, err := os.Stat(bak)
-	require.NoError(t, err)
-	assert.Equal(t, os.FileMode(0o600), st.Mode().Perm(), "the backup keeps the original's mode")
+	return string(b)
 }
 
 func TestQuitAsksWhileUnsaved(t *testing.T) {

@@ -174,7 +174,7 @@ func HostKey(path string) ([]byte, error) {
 			return nil, fmt.Errorf("serve: encoding the host key: %w", err)
 		}
 		data := pem.EncodeToMemory(block)
-		if err := catalogue.WriteFileAtomic(path, data, 0o600); err != nil {
+		if _, err := (catalogue.Output{Path: path, Perm: 0o600}).Write(data); err != nil {
 			return nil, catalogue.Badf("serve: cannot create host key %s: %v", path, err)
 		}
 		return data, nil
