@@ -85,6 +85,14 @@ func parsePriceRange(s string) (id string, from, to float64, steps int, err erro
 	if steps, err = strconv.Atoi(parts[2]); err != nil {
 		return "", 0, 0, 0, bad("STEPS is not a whole number")
 	}
+	for _, end := range []struct {
+		name string
+		v    float64
+	}{{"FROM", from}, {"TO", to}} {
+		if err := catalogue.QtyPrice.Check("--price "+end.name, end.v); err != nil {
+			return "", 0, 0, 0, err
+		}
+	}
 	return id, from, to, steps, nil
 }
 
