@@ -272,25 +272,33 @@ func (s *Server) logged(next ssh.Handler) ssh.Handler {
 // bounded refuses a session beyond MaxSessions with a message.
 func (s *Server) bounded(next ssh.Handler) ssh.Handler {
 	return func(sess ssh.Session) {
-		s.mu.Lock()
-		full := s.active >= s.cfg.MaxSessions
-		if !full {
-			s.active++
-		}
-		s.mu.Unlock()
-		if full {
+		if !s.take(&s.active, s.cfg.MaxSessions) {
 			s.log.Printf("refused session from %s: %d sessions already open (--max-sessions)", sess.RemoteAddr(), s.cfg.MaxSessions)
 			wish.Println(sess, fmt.Sprintf("lipoplan: the workspace server is full (%d sessions); try again later.\r", s.cfg.MaxSessions))
 			_ = sess.Exit(1)
 			return
 		}
-		defer func() {
-			s.mu.Lock()
-			s.active--
-			s.mu.Unlock()
-		}()
+		defer s.give(&s.active)
 		next(sess)
 	}
+}
+
+// take counts one more in *n (a field of s, under s.mu) unless it has
+// reached limit; give counts one less.
+func (s *Server) take(n *int, limit int) bool {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	if *n >= limit {
+		return false
+	}
+	*n++
+	return true
+}
+
+func (s *Server) give(n *int) {
+	s.mu.Lock()
+	*n--
+	s.mu.Unlock()
 }
 
 // Active returns the number of sessions open now.
@@ -354,21 +362,11 @@ func (p *pendingConn) Close() error {
 // admit counts a new connection as pending, or closes it at once when
 // MaxPending connections are already logging in.
 func (s *Server) admit(ctx ssh.Context, conn net.Conn) net.Conn {
-	s.mu.Lock()
-	full := s.pending >= s.cfg.MaxPending
-	if !full {
-		s.pending++
-	}
-	s.mu.Unlock()
-	if full {
+	if !s.take(&s.pending, s.cfg.MaxPending) {
 		s.log.Printf("refused connection from %s: %d connections are already logging in (--max-pending)", conn.RemoteAddr(), s.cfg.MaxPending)
 		return nil
 	}
-	p := &pendingConn{Conn: conn, done: func() {
-		s.mu.Lock()
-		s.pending--
-		s.mu.Unlock()
-	}}
+	p := &pendingConn{Conn: conn, done: func() { s.give(&s.pending) }}
 	ctx.SetValue(pendingKey{}, p)
 	return p
 }
