@@ -14,10 +14,12 @@ import (
 // fuzzKeys are the keys a fuzz step may press: panels, moves, every edit key
 // (enter, [ ], space, n, d, R, p, u, U, s, o, W, ?), prompt editing and
 // accept/cancel. Typed values come from the fuzzer's second input.
-var fuzzKeys = []string{
-	"1", "2", "3", "4", "5", "<tab>", "<s-tab>", "<up>", "<down>", "<left>", "<right>", "g", "G",
-	"<enter>", "]", "[", "<space>", "n", "d", "R", "u", "U", "s", "o", "W", "?",
-	"<ctrl+u>", "<bs>", "<esc>",
+func fuzzKeys() []string {
+	return []string{
+		"1", "2", "3", "4", "5", "<tab>", "<s-tab>", "<up>", "<down>", "<left>", "<right>", "g", "G",
+		"<enter>", "]", "[", "<space>", "n", "d", "R", "u", "U", "s", "o", "W", "?",
+		"<ctrl+u>", "<bs>", "<esc>",
+	}
 }
 
 // FuzzWorkspaceEdits drives the workspace model with random key sequences
@@ -35,6 +37,7 @@ func FuzzWorkspaceEdits(f *testing.F) {
 	f.Add(fuzzOps("n", "=", "<enter>", "<enter>", "=", "<enter>", "<left>", "<enter>", "=", "<enter>", "d", "R"), "sfc 30|1e300|-1e-9|inf")
 	f.Add(fuzzOps("3", "G", "<enter>", "=", "<enter>", "<up>", "<enter>", "=", "<enter>", "s", "o", "=", "<enter>", "W", "?"), "1e300|1e25|../../etc/passwd|x")
 	dir := f.TempDir()
+	keys := fuzzKeys()
 	f.Fuzz(func(t *testing.T, ops []byte, values string) {
 		vals := strings.Split(values, "|")
 		d := newDriver(t, demoModel(t, "laminating", Files{Dir: dir, Confined: true, ReadOnly: true}), 80, 24)
@@ -55,7 +58,7 @@ func FuzzWorkspaceEdits(f *testing.F) {
 				w, h = 20+int(op)*7%180, 6+int(op)*3%50
 				d.send(tea.WindowSizeMsg{Width: w, Height: h})
 			default:
-				d.keys(fuzzKeys[int(op)%len(fuzzKeys)])
+				d.keys(keys[int(op)%len(keys)])
 			}
 			d.requireFrame(w, h)
 			requireAccepted(t, d.m.Scenario())
@@ -71,7 +74,7 @@ func fuzzOps(keys ...string) []byte {
 			ops = append(ops, 255)
 			continue
 		}
-		for i, fk := range fuzzKeys {
+		for i, fk := range fuzzKeys() {
 			if fk == k {
 				ops = append(ops, byte(i))
 			}
