@@ -450,7 +450,7 @@ func parseValue(s string) (float64, error) {
 		s = strings.Replace(s, ",", ".", 1) // decimal comma
 	}
 	v, err := strconv.ParseFloat(s, 64)
-	if err != nil || math.IsInf(v, 0) {
+	if err != nil || math.IsInf(v, 0) || math.IsNaN(v) {
 		return 0, fmt.Errorf("%q is not a number", s)
 	}
 	return v, nil
@@ -703,20 +703,26 @@ func (m *Model) save(name string) tea.Cmd {
 		m.fail(err)
 		return nil
 	}
-	// saving over an existing file keeps what was there as a backup
-	bak, err := replaceKeepingBackup(path, data, time.Now())
+	// saving over an existing file keeps what was there as a backup; the
+	// stocks and spec files the session started from are never saved over
+	w, err := m.output(path, m.files.StocksPath, m.files.SpecPath).Write(data)
 	if err != nil {
 		m.fail(fmt.Errorf("saving scenario: %w", err))
 		return nil
 	}
 	m.lastPath = strings.TrimSpace(name)
 	m.dirty = false
-	if bak != "" {
-		m.info("Old file kept as " + m.shownPath(bak) + ". Saved the scenario to " + m.shownPath(path) + ".")
+	if w.Backup != "" {
+		m.info("Old file kept as " + m.shownPath(w.Backup) + ". Saved the scenario to " + m.shownPath(path) + ".")
 	} else {
 		m.info("Saved the scenario to " + m.shownPath(path) + ".")
 	}
 	return nil
+}
+
+// output is a file the workspace writes, never over the given inputs.
+func (m *Model) output(path string, inputs ...string) catalogue.Output {
+	return catalogue.Output{Path: path, Inputs: inputs, Now: time.Now()}
 }
 
 func (m *Model) open(name string) tea.Cmd {
@@ -743,28 +749,30 @@ func (m *Model) writeBack() tea.Cmd {
 		return nil
 	}
 	var wrote, kept []string
-	now := time.Now()
-	if m.files.StocksPath != "" {
-		bak, err := writeStocksFile(m.files.StocksPath, m.sc.Catalogue, now)
+	_, spec := m.sc.Effective()
+	for _, f := range []struct {
+		path, other string
+		encode      func() ([]byte, error)
+	}{
+		{m.files.StocksPath, m.files.SpecPath, func() ([]byte, error) { return encodeStocks(m.sc.Catalogue) }},
+		{m.files.SpecPath, m.files.StocksPath, func() ([]byte, error) { return encodeSpec(spec) }},
+	} {
+		if f.path == "" {
+			continue
+		}
+		data, err := f.encode()
 		if err != nil {
 			m.fail(err)
 			return nil
 		}
-		wrote = append(wrote, m.shownPath(m.files.StocksPath))
-		if bak != "" {
-			kept = append(kept, m.shownPath(bak))
-		}
-	}
-	if m.files.SpecPath != "" {
-		_, spec := m.sc.Effective()
-		bak, err := writeSpecFile(m.files.SpecPath, spec, now)
+		w, err := m.output(f.path, f.other).Write(data)
 		if err != nil {
 			m.fail(err)
 			return nil
 		}
-		wrote = append(wrote, m.shownPath(m.files.SpecPath))
-		if bak != "" {
-			kept = append(kept, m.shownPath(bak))
+		wrote = append(wrote, m.shownPath(f.path))
+		if w.Backup != "" {
+			kept = append(kept, m.shownPath(w.Backup))
 		}
 	}
 	m.dirty = false

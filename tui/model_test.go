@@ -7,7 +7,6 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
-	"time"
 
 	tea "charm.land/bubbletea/v2"
 	"github.com/charmbracelet/x/ansi"
@@ -131,6 +130,25 @@ func TestNudgeAndBadInput(t *testing.T) {
 	assert.False(t, h.Limited())
 }
 
+// A price, amount or limit typed beyond the accepted magnitudes (README
+// "Accepted magnitudes") is refused on the status line and changes nothing.
+func TestTypedMagnitudesRefused(t *testing.T) {
+	d := newDriver(t, demoModel(t, "laminating", Files{}), 80, 24)
+	i := stockIndex(t, d.m, "palm")
+	rev := d.m.rev
+	for _, v := range []string{"1e25", "1e-320", "NaN", "-5", "1e400"} {
+		d.keys("2" + "g" + downs(i) + "<enter><ctrl+u>" + v + "<enter>")
+		assert.Equal(t, 1000.0, price(d.m, "palm"), v)
+		assert.True(t, d.m.msgError, v)
+	}
+	d.keys("<right><enter><ctrl+u>1e308<enter>")
+	assert.Contains(t, d.m.Message(), "outside the accepted range 0, or 0.001 to 1e6 t")
+	d.keys("3g<enter><ctrl+u>1e-320<enter>")
+	assert.Contains(t, d.m.Message(), "batch = 1e-320 is outside the accepted range 0.001 to 1e6 t")
+	assert.Equal(t, rev, d.m.rev, "no refused value became an edit")
+	d.requireFrame(80, 24)
+}
+
 func TestLeaveOutAStock(t *testing.T) {
 	d := newDriver(t, demoModel(t, "laminating", Files{}), 80, 24)
 	top := d.m.Snapshot().Result.Blend[0].Stock
@@ -215,7 +233,7 @@ func TestBatchEdit(t *testing.T) {
 	assert.InDelta(t, 40.0, d.m.Snapshot().Result.Batch, 1e-9)
 	d.keys("<enter><ctrl+u>0<enter>")
 	assert.Equal(t, 40.0, d.m.Scenario().Spec.Batch)
-	assert.Contains(t, d.screen(), "above zero")
+	assert.Contains(t, d.screen(), "outside the accepted range")
 }
 
 func TestResizeKeepsTheFrame(t *testing.T) {
@@ -299,18 +317,51 @@ func TestWriteBack(t *testing.T) {
 	assert.Equal(t, files["laminating.toml"], raw)
 }
 
-// Writing back what is already on disk makes no backup.
-func TestReplaceKeepingBackupSkipsSameContent(t *testing.T) {
-	path := filepath.Join(t.TempDir(), "f.toml")
-	require.NoError(t, os.WriteFile(path, []byte("a = 1\n"), 0o600))
-	bak, err := replaceKeepingBackup(path, []byte("a = 1\n"), time.Now())
+// The workspace's save and write-back follow the rules of every output
+// (catalogue.Output): the stocks and spec it started from are never saved
+// over, "-" and folders are refused, a symlinked stocks file is written
+// through to its target, and writing back what is on disk makes no backup.
+func TestWorkspaceWritesByTheOutputRules(t *testing.T) {
+	dir := t.TempDir()
+	files := catalogue.DemoFiles()
+	real := filepath.Join(dir, "real-stocks.toml")
+	require.NoError(t, os.WriteFile(real, files["stocks.toml"], 0o600))
+	stocks := filepath.Join(dir, "stocks.toml")
+	require.NoError(t, os.Symlink(real, stocks))
+	spec := filepath.Join(dir, "spec.toml")
+	require.NoError(t, os.WriteFile(spec, files["laminating.toml"], 0o644))
+	d := newDriver(t, demoModel(t, "laminating", Files{Dir: dir, StocksPath: stocks, SpecPath: spec}), 80, 24)
+	for _, name := range []string{"stocks.toml", "real-stocks.toml", spec} {
+		d.keys("s<ctrl+u>" + name + "<enter>")
+		assert.Contains(t, d.m.Message(), "an input of this run", name)
+	}
+	d.keys("s<ctrl+u>-<enter>")
+	assert.Contains(t, d.m.Message(), "standard output")
+	require.NoError(t, os.Mkdir(filepath.Join(dir, "folder"), 0o755))
+	d.keys("s<ctrl+u>folder<enter>")
+	assert.Contains(t, d.m.Message(), "is a folder")
+	assert.Equal(t, files["stocks.toml"], []byte(readFile(t, real)), "nothing was written over the stocks")
+
+	// write back unchanged: the spec file is rewritten, the stocks through the
+	// link, and neither needs a backup once it holds what would be written
+	d.keys("W")
+	require.False(t, d.m.msgError, d.m.Message())
+	d.keys("W")
+	assert.NotContains(t, d.m.Message(), "Old files kept", "the second write-back changes nothing on disk")
+	lst, err := os.Lstat(stocks)
 	require.NoError(t, err)
-	assert.Empty(t, bak)
-	bak, err = replaceKeepingBackup(path, []byte("a = 2\n"), time.Now())
+	assert.NotZero(t, lst.Mode()&os.ModeSymlink, "the stocks file is still a link")
+	baks, _ := filepath.Glob(real + ".*.bak")
+	assert.Len(t, baks, 1, "the backup of the real stocks file sits beside it")
+	st, _ := os.Stat(real)
+	assert.Equal(t, os.FileMode(0o600), st.Mode().Perm(), "the rewritten file keeps its mode")
+}
+
+func readFile(t *testing.T, path string) string {
+	t.Helper()
+	b, err := os.ReadFile(path)
 	require.NoError(t, err)
-	st, err := os.Stat(bak)
-	require.NoError(t, err)
-	assert.Equal(t, os.FileMode(0o600), st.Mode().Perm(), "the backup keeps the original's mode")
+	return string(b)
 }
 
 func TestQuitAsksWhileUnsaved(t *testing.T) {

@@ -67,8 +67,9 @@ func clip(s string, n int) string {
 	return string(r[:n-1]) + "…"
 }
 
-// writeDemo saves the embedded demo files into dir, atomically, never
-// overwriting a file that is already there.
+// writeDemo saves the embedded demo files into dir by the rules of every
+// output (catalogue.Output), refusing a folder that already holds one of them:
+// the demo files are a start, never mixed into someone's own.
 func (a *app) writeDemo(dir string) error {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return catalogue.Badf("--write %s: cannot create the folder: %v", dir, err)
@@ -87,8 +88,8 @@ func (a *app) writeDemo(dir string) error {
 	}
 	for _, n := range names {
 		path := filepath.Join(dir, n)
-		if err := catalogue.WriteFileAtomic(path, files[n], 0o644); err != nil {
-			return fmt.Errorf("writing %s: %w", path, err)
+		if err := a.write(output{"--write", path}, files[n]); err != nil {
+			return err
 		}
 		fmt.Fprintf(a.stdout, "wrote %s\n", path)
 	}

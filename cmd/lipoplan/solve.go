@@ -21,13 +21,18 @@ func (a *app) solve(args []string) error {
 	stocksPath := fs.String("stocks", "", "stock catalogue TOML (default: embedded demo stocks)")
 	specPath := fs.String("spec", "", "product spec TOML (default: the embedded demo laminating spec)")
 	format := fs.String("format", "text", "text, json or csv")
-	mps := fs.String("mps", "", "also write the model to this file in free MPS format")
-	svg := fs.String("svg", "", "also draw the blend's SFC against the spec's bands into this SVG file")
+	mps := fs.String("mps", "", "also write the model to this `file` in free MPS format (- = standard output, the report then goes to standard error)")
+	svg := fs.String("svg", "", "also draw the blend's SFC against the spec's bands into this SVG `file` (- = standard output)")
 	temps := fs.String("temps", "", `SFC temperatures to report, deg C (default 10,15,...,45 plus the spec's)`)
 	if err := a.parse(fs, args); err != nil {
 		return err
 	}
 	if err := checkFormat(*format, "text", "json", "csv"); err != nil {
+		return err
+	}
+	mpsOut, svgOut := output{"--mps", *mps}, output{"--svg", *svg}
+	report, err := a.reportTo(mpsOut, svgOut)
+	if err != nil {
 		return err
 	}
 	cat, err := a.stocks(*stocksPath)
@@ -46,8 +51,12 @@ func (a *app) solve(args []string) error {
 		ts = blend.SpecTemps(spec)
 	}
 	if *mps != "" {
-		if err := optimise.WriteMPS(*mps, cat, spec); err != nil {
+		model, err := optimise.MPS(cat, spec)
+		if err != nil {
 			return fmt.Errorf("--mps: %w", err)
+		}
+		if err := a.write(mpsOut, model, *stocksPath, *specPath); err != nil {
+			return err
 		}
 	}
 	res, err := optimise.Solve(cat, spec, optimise.Options{Temps: ts})
@@ -55,17 +64,17 @@ func (a *app) solve(args []string) error {
 		return err
 	}
 	if *svg != "" && res.Status == optimise.Optimal {
-		if err := catalogue.WriteFileAtomic(*svg, sfcSVG(res, spec), 0o644); err != nil {
-			return fmt.Errorf("--svg: %w", err)
+		if err := a.write(svgOut, sfcSVG(res, spec), *stocksPath, *specPath); err != nil {
+			return err
 		}
 	}
 	switch *format {
 	case "json":
-		err = writeJSON(a.stdout, solveJSON(res))
+		err = writeJSON(report, solveJSON(res))
 	case "csv":
-		err = writeSolveCSV(a.stdout, res)
+		err = writeSolveCSV(report, res)
 	default:
-		writeSolveText(a.stdout, res, spec, ts)
+		writeSolveText(report, res, spec, ts)
 	}
 	if err != nil {
 		return err
