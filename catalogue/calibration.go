@@ -3,7 +3,6 @@ package catalogue
 import (
 	"fmt"
 	"math"
-	"os"
 	"sort"
 	"strconv"
 	"strings"
@@ -67,7 +66,7 @@ func ParseCalibration(name string, data []byte) (*Calibration, Problems) {
 	var raw rawCalibration
 	md, ok := c.decode(data, &raw)
 	if !ok {
-		return nil, c.ps
+		return nil, c.problems()
 	}
 	c.unknownKeys(md,
 		func(parent toml.Key) ([]string, bool) {
@@ -150,14 +149,14 @@ func ParseCalibration(name string, data []byte) (*Calibration, Problems) {
 		}
 	}
 	if c.failed() {
-		return nil, c.ps
+		return nil, c.problems()
 	}
-	return cal, c.ps
+	return cal, c.problems()
 }
 
 // LoadCalibration reads and checks an SFC-model calibration file.
 func LoadCalibration(path string) (*Calibration, Problems) {
-	data, err := os.ReadFile(path)
+	data, err := ReadInput(path)
 	if err != nil {
 		return nil, readProblem(path, err, "SFC-model calibration")
 	}

@@ -25,6 +25,10 @@ func (a *app) calibrate(args []string) error {
 	if err := checkFormat(*format, "text", "json"); err != nil {
 		return err
 	}
+	rep, err := a.reportTo(output{"--write", *write})
+	if err != nil {
+		return err
+	}
 	sm, err := sle.ParseSolidModel(*solids)
 	if err != nil {
 		return catalogue.Badf("--solids: %w", err)
@@ -59,7 +63,11 @@ func (a *app) calibrate(args []string) error {
 	}
 	file := cal.FileOf(catName)
 	if *write != "" {
-		if err := catalogue.WriteFileAtomic(*write, catalogue.FormatCalibration(file), 0o644); err != nil {
+		in := []string{}
+		if *stocksPath != "" {
+			in = append(in, *stocksPath)
+		}
+		if err := a.write(output{"--write", *write}, catalogue.FormatCalibration(file), in...); err != nil {
 			return err
 		}
 	}
@@ -81,28 +89,28 @@ func (a *app) calibrate(args []string) error {
 		if *write != "" {
 			out["written"] = *write
 		}
-		return writeJSON(a.stdout, out)
+		return writeJSON(rep, out)
 	}
-	fmt.Fprintf(a.stdout, "Calibration of the TAG model on %s: %d stocks with measured curves, %d points\n\n", catName, len(cal.FittedOn), cal.Points)
-	fmt.Fprint(a.stdout, "  melting-point shift per TAG class:")
+	fmt.Fprintf(rep, "Calibration of the TAG model on %s: %d stocks with measured curves, %d points\n\n", catName, len(cal.FittedOn), cal.Points)
+	fmt.Fprint(rep, "  melting-point shift per TAG class:")
 	for i, v := range cal.Options.Shift {
-		fmt.Fprintf(a.stdout, "  %s %+.2f K", sle.ClassName(i), v)
+		fmt.Fprintf(rep, "  %s %+.2f K", sle.ClassName(i), v)
 	}
-	fmt.Fprintf(a.stdout, "\n  RMS error on these stocks: %.2f %% solid before, %.2f after\n", cal.Before, cal.After)
+	fmt.Fprintf(rep, "\n  RMS error on these stocks: %.2f %% solid before, %.2f after\n", cal.Before, cal.After)
 	if !math.IsNaN(cal.HeldOut) {
-		fmt.Fprintf(a.stdout, "  held-out check (each stock predicted with shifts fitted on the others): %.2f %% solid, against %.2f uncalibrated\n", cal.HeldOut, cal.HeldOutBefore)
+		fmt.Fprintf(rep, "  held-out check (each stock predicted with shifts fitted on the others): %.2f %% solid, against %.2f uncalibrated\n", cal.HeldOut, cal.HeldOutBefore)
 		if cal.HeldOut >= cal.HeldOutBefore {
-			fmt.Fprintln(a.stdout, "  The calibration does not improve predictions for stocks it has not seen: prefer the uncalibrated model.")
+			fmt.Fprintln(rep, "  The calibration does not improve predictions for stocks it has not seen: prefer the uncalibrated model.")
 		}
 	} else {
-		fmt.Fprintln(a.stdout, "  held-out check: needs at least 3 stocks with measured curves")
+		fmt.Fprintln(rep, "  held-out check: needs at least 3 stocks with measured curves")
 	}
-	fmt.Fprintln(a.stdout)
-	writeFitText(a.stdout, after, cal.Options)
+	fmt.Fprintln(rep)
+	writeFitText(rep, after, cal.Options)
 	if *write != "" {
-		fmt.Fprintf(a.stdout, "\nWritten to %s; pass it with --calibration %s.\n", *write, *write)
+		fmt.Fprintf(rep, "\nWritten to %s; pass it with --calibration %s.\n", *write, *write)
 	}
-	fmt.Fprintln(a.stdout)
-	fmt.Fprintln(a.stdout, cautionLine)
+	fmt.Fprintln(rep)
+	fmt.Fprintln(rep, cautionLine)
 	return nil
 }
