@@ -105,7 +105,7 @@ func Evaluate(sc *Scenario, rev int) (snap *Snapshot) {
 	}
 	parts := blendParts(cat, res)
 	snap.Curve, snap.CurveGaps = resultCurve(res)
-	snap.TAG = tagView(parts, grid)
+	snap.TAG = tagView(parts, grid, sc.Model)
 	return snap
 }
 

@@ -736,6 +736,7 @@ func (m *Model) open(name string) tea.Cmd {
 		m.fail(firstLines(err, 2))
 		return nil
 	}
+	sc.Model = m.sc.Model // the TAG model is the session's, not the file's
 	m.lastPath = strings.TrimSpace(name)
 	cmd := m.apply(sc, "Opened "+m.shownPath(path)+" (u goes back to what you had).")
 	m.dirty = false

@@ -548,3 +548,31 @@ func TestReactorShownAndCharted(t *testing.T) {
 	}
 	d.requireFrame(80, 24)
 }
+
+// A calibration given to the session (Scenario.Model) is the model the TAG
+// panel and the overlay use: the predictions equal sle's with those options
+// and differ from the uncalibrated ones.
+func TestSessionCalibrationReachesPredictions(t *testing.T) {
+	sc := NewScenario(catalogue.DemoStocks(), catalogue.DemoSpecs()[0])
+	sc.Model = sle.Options{Shift: sle.Shifts{3, 2, 2, 1, 0}}
+	snap := Evaluate(sc, 1)
+	require.True(t, snap.Feasible(), "%v", snap.Err)
+	base := Evaluate(NewScenario(catalogue.DemoStocks(), catalogue.DemoSpecs()[0]), 1)
+	parts := blendParts(sc.Catalogue, snap.Result)
+	col, ok := snap.TAG.Column(randomise.Native)
+	require.True(t, ok)
+	col0, _ := base.TAG.Column(randomise.Native)
+	var temps []float64
+	for _, p := range col.Predicted {
+		temps = append(temps, p.Temp)
+	}
+	want, _, err := sle.PredictParts(parts, randomise.Native, 1, temps, sc.Model)
+	require.NoError(t, err)
+	differs := false
+	for i, p := range col.Predicted {
+		assert.InDelta(t, want[p.Temp], p.Solid, 1e-9)
+		differs = differs || math.Abs(p.Solid-col0.Predicted[i].Solid) > 0.1
+	}
+	assert.True(t, differs, "the calibration changes the prediction")
+	assert.Equal(t, sc.Model, sc.Clone().Model, "clones keep the session's model")
+}

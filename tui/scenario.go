@@ -6,6 +6,7 @@ import (
 	"sort"
 	"strings"
 
+	"lipoplan/blend/sle"
 	"lipoplan/catalogue"
 	"lipoplan/optimise"
 )
@@ -18,6 +19,10 @@ type Scenario struct {
 	Catalogue *catalogue.Catalogue
 	Spec      *catalogue.Spec
 	Excluded  map[string]bool // stock id -> left out of the blend
+	// Model is the TAG model's options for predicted SFC (a calibration);
+	// the zero value is the uncalibrated default. It is a session setting,
+	// not saved in scenario files.
+	Model sle.Options
 }
 
 // NewScenario wraps deep copies of cat and spec, so edits never reach the
@@ -34,7 +39,7 @@ func (s *Scenario) Clone() *Scenario {
 			ex[k] = true
 		}
 	}
-	return &Scenario{Catalogue: s.Catalogue.Clone(), Spec: s.Spec.Clone(), Excluded: ex}
+	return &Scenario{Catalogue: s.Catalogue.Clone(), Spec: s.Spec.Clone(), Excluded: ex, Model: s.Model}
 }
 
 // ExcludedIDs lists the left-out stocks in id order.

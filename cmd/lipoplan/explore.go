@@ -20,21 +20,33 @@ import (
 
 // scenarioFlags are the inputs explore and serve share.
 type scenarioFlags struct {
-	stocks, spec, scenario *string
+	stocks, spec, scenario, calibration *string
 }
 
 func (a *app) scenarioFlags(fs interface {
 	String(name, value, usage string) *string
 }) scenarioFlags {
 	return scenarioFlags{
-		stocks:   fs.String("stocks", "", "stock catalogue `file` (default: the embedded demo stocks)"),
-		spec:     fs.String("spec", "", "product spec `file` (default: the first embedded demo spec)"),
-		scenario: fs.String("scenario", "", "start from a saved scenario `file` instead of --stocks/--spec"),
+		stocks:      fs.String("stocks", "", "stock catalogue `file` (default: the embedded demo stocks)"),
+		spec:        fs.String("spec", "", "product spec `file` (default: the first embedded demo spec)"),
+		scenario:    fs.String("scenario", "", "start from a saved scenario `file` instead of --stocks/--spec"),
+		calibration: fs.String("calibration", "", calibrationFlagHelp),
 	}
 }
 
 // load builds the starting scenario and a description of where it came from.
 func (a *app) load(f scenarioFlags) (*tui.Scenario, string, error) {
+	sc, src, err := a.loadScenario(f)
+	if err != nil {
+		return nil, "", err
+	}
+	if sc.Model, err = a.sfcModel(*f.calibration); err != nil {
+		return nil, "", err
+	}
+	return sc, src, nil
+}
+
+func (a *app) loadScenario(f scenarioFlags) (*tui.Scenario, string, error) {
 	if *f.scenario != "" {
 		if *f.stocks != "" || *f.spec != "" {
 			return nil, "", catalogue.Badf("give either --scenario or --stocks/--spec, not both")
