@@ -31,6 +31,7 @@ package optimise
 
 import (
 	"lipoplan/blend"
+	"lipoplan/blend/sle"
 	"lipoplan/catalogue"
 )
 
@@ -46,6 +47,9 @@ const (
 // Options tune a solve. The zero value is ready to use.
 type Options struct {
 	Temps []float64 // SFC temperatures to report; nil means blend.Temps(spec temps...)
+	// Model is the TAG model for predicted SFC (a [process] step with
+	// sfc = "predicted"); the zero value is sle's default, uncalibrated.
+	Model sle.Options
 }
 
 // Line is one stock in the optimal blend.

@@ -94,7 +94,7 @@ func Evaluate(sc *Scenario, rev int) (snap *Snapshot) {
 	// temperatures), so the chart shows exactly what the optimiser saw,
 	// including a reactor step's predicted SFC.
 	grid := gridTemps(spec, lo, hi)
-	res, err := optimise.Solve(cat, spec, optimise.Options{Temps: grid})
+	res, err := optimise.Solve(cat, spec, optimise.Options{Temps: grid, Model: sc.Model})
 	if err != nil {
 		snap.Err = err
 		return snap

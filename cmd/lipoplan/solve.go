@@ -24,10 +24,15 @@ func (a *app) solve(args []string) error {
 	mps := fs.String("mps", "", "also write the model to this `file` in free MPS format (- = standard output, the report then goes to standard error)")
 	svg := fs.String("svg", "", "also draw the blend's SFC against the spec's bands into this SVG `file` (- = standard output)")
 	temps := fs.String("temps", "", `SFC temperatures to report, deg C (default 10,15,...,45 plus the spec's)`)
+	calPath := fs.String("calibration", "", calibrationFlagHelp)
 	if err := a.parse(fs, args); err != nil {
 		return err
 	}
 	if err := checkFormat(*format, "text", "json", "csv"); err != nil {
+		return err
+	}
+	model, err := a.sfcModel(*calPath)
+	if err != nil {
 		return err
 	}
 	mpsOut, svgOut := output{"--mps", *mps}, output{"--svg", *svg}
@@ -51,15 +56,15 @@ func (a *app) solve(args []string) error {
 		ts = blend.SpecTemps(spec)
 	}
 	if *mps != "" {
-		model, err := optimise.MPS(cat, spec)
+		lp, err := optimise.MPS(cat, spec)
 		if err != nil {
 			return fmt.Errorf("--mps: %w", err)
 		}
-		if err := a.write(mpsOut, model, *stocksPath, *specPath); err != nil {
+		if err := a.write(mpsOut, lp, *stocksPath, *specPath); err != nil {
 			return err
 		}
 	}
-	res, err := optimise.Solve(cat, spec, optimise.Options{Temps: ts})
+	res, err := optimise.Solve(cat, spec, optimise.Options{Temps: ts, Model: model})
 	if err != nil {
 		return err
 	}
@@ -219,8 +224,8 @@ func writeSolveText(w io.Writer, r *optimise.Result, spec *catalogue.Spec, temps
 	}
 	fmt.Fprintln(w, "Properties of the blend")
 	heading := "SFC (% solid, linear in measured curves)"
-	if r.Process != nil && r.Process.SFCModel == "predicted" && len(r.Process.Feed) > 0 {
-		heading = "SFC (% solid: reacted fat by the TAG model, the other stocks by their measured curves, mass-weighted)"
+	if r.Process != nil && r.Process.SFCModel == "predicted" {
+		heading = "SFC (% solid, predicted by the TAG model for the whole blend: the stocks as they are and the reacted fat)"
 	}
 	writePropertiesAs(w, r.Properties, temps, heading)
 	fmt.Fprintln(w)
