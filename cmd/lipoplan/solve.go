@@ -9,6 +9,7 @@ import (
 	"strings"
 
 	"lipoplan/blend"
+	"lipoplan/blend/sle"
 	"lipoplan/catalogue"
 	"lipoplan/optimise"
 )
@@ -75,7 +76,11 @@ func (a *app) solve(args []string) error {
 	}
 	switch *format {
 	case "json":
-		err = writeJSON(report, solveJSON(res))
+		out := solveJSON(res)
+		if res.Process != nil && res.Process.SFCModel == "predicted" {
+			out["sfc_model"] = map[string]any{"method": sle.Describe(model), "measured_error": sle.MeasuredError}
+		}
+		err = writeJSON(report, out)
 	case "csv":
 		err = writeSolveCSV(report, res)
 	default:
@@ -135,6 +140,9 @@ func solveJSON(r *optimise.Result) map[string]any {
 	out["ranging"] = ranging
 	if r.Process != nil {
 		out["process"] = processJSON(r.Process)
+	}
+	if len(r.Notes) > 0 {
+		out["notes"] = r.Notes
 	}
 	return out
 }
