@@ -48,6 +48,7 @@ const (
 	promptNewLimit
 	promptSave
 	promptOpen
+	promptMatch
 )
 
 type prompt struct {
@@ -305,6 +306,8 @@ func (m *Model) key(k tea.KeyPressMsg) tea.Cmd {
 		return m.ask(prompt{kind: promptSave}, "save scenario as: ", m.suggestPath())
 	case key.Matches(k, ks.Open):
 		return m.ask(prompt{kind: promptOpen}, "open scenario: ", m.lastPath)
+	case key.Matches(k, ks.Match):
+		return m.ask(prompt{kind: promptMatch}, "match which fat (id and tolerance in % solid, e.g. ph-soy 3): ", m.matchGuess())
 	case key.Matches(k, ks.WriteBack):
 		return m.writeBack()
 	default:
@@ -508,8 +511,52 @@ func (m *Model) finishPrompt(p prompt, text string) tea.Cmd {
 		return m.save(text)
 	case promptOpen:
 		return m.open(text)
+	case promptMatch:
+		id, tol, err := parseMatch(text)
+		if err != nil {
+			m.fail(err)
+			return nil
+		}
+		next, err := m.sc.WithMatch(id, tol)
+		if err != nil {
+			m.fail(err)
+			return nil
+		}
+		m.panel = panelSFC
+		return m.apply(next, fmt.Sprintf("Matching %s: SFC bands are its measured curve ±%s %% solid, trans at most 1 %%, %s left out (u undoes).", id, showValue(tol), id))
 	}
 	return nil
+}
+
+// matchGuess offers the stock with the most trans fat (over 1 %) and a
+// measured curve: a partially hardened fat is what one replaces.
+func (m *Model) matchGuess() string {
+	best, most := "", 1.0
+	for _, st := range m.sc.Catalogue.Stocks {
+		if tr := st.FattyAcids["C18:1t"] + st.FattyAcids["C18:2t"]; len(st.SFC) > 0 && tr > most {
+			best, most = st.ID, tr
+		}
+	}
+	if best == "" {
+		return ""
+	}
+	return best + " 3"
+}
+
+// parseMatch reads "id" or "id tolerance" (default 3 % solid).
+func parseMatch(text string) (string, float64, error) {
+	f := strings.Fields(text)
+	switch len(f) {
+	case 1:
+		return f[0], 3, nil
+	case 2:
+		v, err := strconv.ParseFloat(f[1], 64)
+		if err != nil || math.IsNaN(v) || v < 0 || v > 100 {
+			return "", 0, catalogue.Badf("tolerance %q is not %% solid within 0..100; write e.g. ph-soy 3", f[1])
+		}
+		return f[0], v, nil
+	}
+	return "", 0, catalogue.Badf("give the stock id of the fat to match and a tolerance, e.g. ph-soy 3")
 }
 
 func sideWord(r Row, s Side) string {

@@ -576,3 +576,40 @@ func TestSessionCalibrationReachesPredictions(t *testing.T) {
 	assert.True(t, differs, "the calibration changes the prediction")
 	assert.Equal(t, sc.Model, sc.Clone().Model, "clones keep the session's model")
 }
+
+// m matches a fat: the offered default is the demo's trans-containing stock,
+// the scenario's SFC limits become its measured curve ± the tolerance, it is
+// left out, trans is held at most 1 %, and the blend costs what
+// optimise.Replace finds with the same spec as base; u undoes it.
+func TestMatchMode(t *testing.T) {
+	d := newDriver(t, demoModel(t, "laminating", Files{}), 100, 30)
+	before := d.m.Scenario()
+	d.keys("m")
+	assert.Contains(t, d.screen(), "ph-soy 3", "the partially hardened stock is offered")
+	d.keys("<enter>")
+	sc := d.m.Scenario()
+	inc, _ := sc.Catalogue.Find("ph-soy")
+	require.Len(t, sc.Spec.SFC, len(inc.SFC))
+	for i, p := range inc.SFC {
+		assert.InDelta(t, math.Max(0, p.Solid-3), sc.Spec.SFC[i].Min, 1e-12)
+		assert.InDelta(t, p.Solid+3, sc.Spec.SFC[i].Max, 1e-12)
+	}
+	snap := d.m.Snapshot()
+	require.True(t, snap.Feasible(), "%v", snap.Err)
+	cat, spec := before.Effective()
+	want, err := optimise.Replace(cat, optimise.Replacement{Incumbent: "ph-soy", Tolerance: 3, TransMax: 1, Base: spec}, optimise.Options{})
+	require.NoError(t, err)
+	require.Equal(t, optimise.Optimal, want.Status)
+	assert.InDelta(t, want.Result.CostPerTonne, snap.Result.CostPerTonne, 1e-6)
+	for _, l := range snap.Result.Blend {
+		assert.NotEqual(t, "ph-soy", l.Stock)
+	}
+	assert.Contains(t, d.screen(), "Matching ph-soy")
+	d.requireFrame(100, 30)
+	d.keys("u")
+	assert.Equal(t, before.Spec.SFC, d.m.Scenario().Spec.SFC, "undo restores the spec's own bands")
+	// a bad answer is refused with a message, the scenario unchanged
+	d.keys("m<ctrl+u>lard 3<enter>")
+	assert.Contains(t, d.screen(), "lard")
+	assert.Equal(t, before.Spec.SFC, d.m.Scenario().Spec.SFC)
+}

@@ -417,6 +417,27 @@ func (s *Scenario) WithAllowed(id string, allowed bool) (*Scenario, error) {
 	return out, nil
 }
 
+// WithMatch is the scenario set to replace stock id: its measured curve ±
+// tol (% solid) becomes the SFC limits, trans is held at most 1 %, and the
+// stock is left out (optimise.ReplacementSpec, as lipoplan replace solves).
+// The spec's other limits and [use] bounds stay.
+func (s *Scenario) WithMatch(id string, tol float64) (*Scenario, error) {
+	spec, err := optimise.ReplacementSpec(s.Catalogue, optimise.Replacement{Incumbent: id, Tolerance: tol, TransMax: 1, Base: s.Spec})
+	if err != nil {
+		return nil, err
+	}
+	out := s.Clone()
+	spec.Name = s.Spec.Name
+	spec.Batch = s.Spec.Batch
+	spec.Process = s.Spec.Process
+	if spec.Process != nil {
+		p := *s.Spec.Process
+		spec.Process = &p
+	}
+	out.Spec = spec
+	return out, nil
+}
+
 // WithRelaxation returns a new scenario with every suggested relaxation
 // applied: a minimum is lowered and a maximum raised by Relax.By, and
 // "avail.<stock>" raises what is on hand. Names it cannot place (for example

@@ -7,6 +7,7 @@ import (
 	"sort"
 
 	"lipoplan/blend"
+	"lipoplan/blend/sle"
 	"lipoplan/catalogue"
 	"lipoplan/optimise"
 )
@@ -96,8 +97,12 @@ func (a *app) writeDemo(dir string) error {
 	return nil
 }
 
+// demoIncumbent is the demo's partially hardened fat to replace.
+const demoIncumbent = "ph-soy"
+
 // demoSolve solves every embedded demo spec and prints its full report, as
-// `lipoplan solve` would for that spec.
+// `lipoplan solve` would for that spec, then the replacement of the demo's
+// partially hardened fat, as `lipoplan replace` would.
 func (a *app) demoSolve(cat *catalogue.Catalogue) error {
 	infeasible := false
 	for i, spec := range catalogue.DemoSpecs() {
@@ -114,6 +119,14 @@ func (a *app) demoSolve(cat *catalogue.Catalogue) error {
 		writeSolveText(a.stdout, res, spec, ts)
 		infeasible = infeasible || res.Status != optimise.Optimal
 	}
+	// The third job: replace the incumbent partially hardened base.
+	rep, err := optimise.Replace(cat, optimise.Replacement{Incumbent: demoIncumbent, Tolerance: 3, TransMax: 1, Batch: 20}, optimise.Options{})
+	if err != nil {
+		return fmt.Errorf("demo replacement of %q: %w", demoIncumbent, err)
+	}
+	fmt.Fprintf(a.stdout, "\n=== Demo replacement: the partially hardened %s, trans-free (lipoplan replace --incumbent %s) ===\n\n", demoIncumbent, demoIncumbent)
+	writeReplace(a.stdout, rep, sle.DefaultOptions())
+	infeasible = infeasible || rep.Status != optimise.Optimal
 	if infeasible {
 		return errInfeasible
 	}

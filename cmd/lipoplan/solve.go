@@ -193,6 +193,23 @@ func money(v float64, cur string) string {
 	return s + " " + cur
 }
 
+// writeBlendLines prints the blend table: each stock's share, tonnes and
+// price, and the totals.
+func writeBlendLines(w io.Writer, r *optimise.Result) {
+	fmt.Fprintf(w, "  %-14s %-34s %8s %9s %11s\n", "stock", "name", "%", "tonnes", "price/t")
+	prices := map[string]float64{}
+	for _, g := range r.Ranging {
+		prices[g.Stock] = g.Price
+	}
+	var sum, tonnes float64
+	for _, l := range r.Blend {
+		fmt.Fprintf(w, "  %-14s %-34s %8.2f %9.3f %11s\n", l.Stock, clip(l.Name, 34), l.Pct, l.Tonnes, money(prices[l.Stock], ""))
+		sum += l.Pct
+		tonnes += l.Tonnes
+	}
+	fmt.Fprintf(w, "  %-14s %-34s %8.2f %9.3f\n\n", "total", "", sum, tonnes)
+}
+
 // writeSolveText prints the report: blend table, costs, properties,
 // limits against the blend, what each binding limit costs, price ranging,
 // stocks left out, and the caution.
@@ -213,18 +230,7 @@ func writeSolveText(w io.Writer, r *optimise.Result, spec *catalogue.Spec, temps
 		return
 	}
 	fmt.Fprintf(w, "Cheapest blend found (%s):\n\n", engine)
-	fmt.Fprintf(w, "  %-14s %-34s %8s %9s %11s\n", "stock", "name", "%", "tonnes", "price/t")
-	prices := map[string]float64{}
-	for _, g := range r.Ranging {
-		prices[g.Stock] = g.Price
-	}
-	var sum, tonnes float64
-	for _, l := range r.Blend {
-		fmt.Fprintf(w, "  %-14s %-34s %8.2f %9.3f %11s\n", l.Stock, clip(l.Name, 34), l.Pct, l.Tonnes, money(prices[l.Stock], ""))
-		sum += l.Pct
-		tonnes += l.Tonnes
-	}
-	fmt.Fprintf(w, "  %-14s %-34s %8.2f %9.3f\n\n", "total", "", sum, tonnes)
+	writeBlendLines(w, r)
 	fmt.Fprintf(w, "  Cost: %s per tonne, %s per batch\n\n", money(r.CostPerTonne, r.Currency), money(r.BatchCost, r.Currency))
 
 	if r.Process != nil {
