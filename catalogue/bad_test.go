@@ -15,7 +15,7 @@ import (
 // lines say what it must produce:
 //
 //	# expect: <fragment of an error message>
-//	# kind: stocks|spec|orders
+//	# kind: stocks|spec|orders|calibration
 type badFile struct {
 	path, expect, kind string
 	data               []byte
@@ -40,7 +40,7 @@ func readBadCorpus(t testing.TB) []badFile {
 			}
 		}
 		require.NotEmpty(t, b.expect, "%s: first line must be # expect: <fragment>", p)
-		require.Contains(t, []string{"stocks", "spec", "orders"}, b.kind, "%s: second line must be # kind: stocks|spec|orders", p)
+		require.Contains(t, []string{"stocks", "spec", "orders", "calibration"}, b.kind, "%s: second line must be # kind: stocks|spec|orders|calibration", p)
 		out = append(out, b)
 	}
 	return out
@@ -68,6 +68,9 @@ func TestBadCorpus(t *testing.T) {
 				case "orders":
 					o, p := LoadOrders(b.path, cat)
 					ps, isNil = p, o == nil
+				case "calibration":
+					c, p := ParseCalibration(filepath.Base(b.path), b.data)
+					ps, isNil = p, c == nil
 				}
 			})
 			require.True(t, isNil, "a bad file must not give a value")

@@ -116,21 +116,60 @@ var (
 	keysOrder     = []string{"spec", "tonnes"}
 )
 
+// maxProblems is how many problems one file reports; the rest are counted
+// in a last line. It keeps a file of a million bad keys from costing a
+// million messages and suggestions.
+const maxProblems = 100
+
 // collector gathers the problems of one file.
 type collector struct {
-	file string
-	ps   Problems
+	file    string
+	ps      Problems
+	errors  int // errors found, reported or not
+	dropped int // problems beyond maxProblems
+}
+
+func (c *collector) add(p Problem) {
+	if !p.Warning {
+		c.errors++
+	}
+	if c.full() {
+		c.dropped++
+		return
+	}
+	c.ps = append(c.ps, p)
 }
 
 func (c *collector) errf(where, format string, args ...any) {
-	c.ps = append(c.ps, Problem{File: c.file, Where: where, Msg: fmt.Sprintf(format, args...)})
+	if c.full() {
+		c.add(Problem{})
+		return
+	}
+	c.add(Problem{File: c.file, Where: where, Msg: fmt.Sprintf(format, args...)})
 }
 
 func (c *collector) warnf(where, format string, args ...any) {
-	c.ps = append(c.ps, Problem{File: c.file, Where: where, Msg: fmt.Sprintf(format, args...), Warning: true})
+	if c.full() {
+		c.add(Problem{Warning: true})
+		return
+	}
+	c.add(Problem{File: c.file, Where: where, Msg: fmt.Sprintf(format, args...), Warning: true})
 }
 
-func (c *collector) failed() bool { return len(c.ps.Errors()) > 0 }
+// full reports whether no more problems are reported one by one; costly
+// hints (suggestions) are skipped then.
+func (c *collector) full() bool { return len(c.ps) >= maxProblems }
+
+func (c *collector) failed() bool { return c.errors > 0 }
+
+// problems returns what was found, with a last line counting what was not
+// reported one by one.
+func (c *collector) problems() Problems {
+	if c.dropped == 0 {
+		return c.ps
+	}
+	return append(c.ps, Problem{File: c.file, Msg: fmt.Sprintf("and %d more problems not listed; fix those above and run check again", c.dropped), Warning: c.errors == len(c.ps.Errors())})
+}
 
 // decode runs the TOML decoder and turns a syntax or structure error into a
 // problem with the line number.
@@ -149,6 +188,13 @@ func (c *collector) decode(data []byte, v any) (toml.MetaData, bool) {
 		}
 		c.errf(fmt.Sprintf("line %d", line), "the file is not valid UTF-8 text; save it as UTF-8 (TOML requires it)")
 		return toml.MetaData{}, false
+	}
+	if err := CheckTOMLDepth(data); err != nil {
+		var de *DepthError
+		if errors.As(err, &de) {
+			c.errf(fmt.Sprintf("line %d", de.Line), "%s", de.Problem())
+			return toml.MetaData{}, false
+		}
 	}
 	md, err := toml.Decode(string(data), v)
 	if err == nil {
@@ -206,7 +252,7 @@ func (c *collector) unknownKeys(md toml.MetaData, knownAt func(parent toml.Key) 
 	for _, k := range md.Undecoded() {
 		undecoded[k.String()] = true
 	}
-	var reported []toml.Key
+	reported := map[string]bool{} // keys reported, joined by NUL
 	for i, k := range md.Keys() {
 		if hasReportedPrefix(reported, k) {
 			continue
@@ -220,7 +266,7 @@ func (c *collector) unknownKeys(md toml.MetaData, knownAt func(parent toml.Key) 
 		if !bad {
 			continue
 		}
-		reported = append(reported, k)
+		reported[strings.Join(k, "\x00")] = true
 		w := where(i, k)
 		if w == "" && len(parent) > 0 {
 			w = "table [" + keyLabel(parent) + "]"
@@ -230,16 +276,21 @@ func (c *collector) unknownKeys(md toml.MetaData, knownAt func(parent toml.Key) 
 			continue
 		}
 		msg := fmt.Sprintf("unknown key %q; known keys are %s", last, strings.Join(known, ", "))
-		if s, ok := suggest(last, known); ok {
+		if s, ok := c.suggest(last, known); ok {
 			msg += fmt.Sprintf("; did you mean %q?", s)
 		}
 		c.errf(w, "%s", msg)
 	}
 }
 
-func hasReportedPrefix(reported []toml.Key, k toml.Key) bool {
-	for _, r := range reported {
-		if len(r) < len(k) && strings.Join(k[:len(r)], "\x00") == strings.Join(r, "\x00") {
+// hasReportedPrefix reports whether a table holding k (a proper prefix of
+// it) was reported already; the key depth is bounded by MaxTOMLDepth.
+func hasReportedPrefix(reported map[string]bool, k toml.Key) bool {
+	if len(reported) == 0 {
+		return false
+	}
+	for n := 1; n < len(k); n++ {
+		if reported[strings.Join(k[:n], "\x00")] {
 			return true
 		}
 	}
@@ -263,7 +314,7 @@ func ParseStocks(name string, data []byte) (*Catalogue, Problems) {
 	var raw rawStocks
 	md, ok := c.decode(data, &raw)
 	if !ok {
-		return nil, c.ps
+		return nil, c.problems()
 	}
 	// Stock labels by document position: each [[stock]] header is one key "stock".
 	labels := make([]string, len(raw.Stock))
@@ -303,15 +354,15 @@ func ParseStocks(name string, data []byte) (*Catalogue, Problems) {
 		})
 	cat := c.stocks(raw)
 	if c.failed() {
-		return nil, c.ps
+		return nil, c.problems()
 	}
 	cat.File = name
-	return cat, c.ps
+	return cat, c.problems()
 }
 
 // LoadStocks reads and parses a stock catalogue file.
 func LoadStocks(path string) (*Catalogue, Problems) {
-	data, err := os.ReadFile(path)
+	data, err := ReadInput(path)
 	if err != nil {
 		return nil, readProblem(path, err, "stock catalogue")
 	}
@@ -319,7 +370,12 @@ func LoadStocks(path string) (*Catalogue, Problems) {
 }
 
 func readProblem(path string, err error, what string) Problems {
-	msg := fmt.Sprintf("cannot read the %s: %v; check the path and the file's permissions", what, unwrapPath(err))
+	fix := "check the path and the file's permissions"
+	var r *refusedInput
+	if errors.As(err, &r) {
+		fix = "give the path of a TOML file"
+	}
+	msg := fmt.Sprintf("cannot read the %s: %v; %s", what, unwrapPath(err), fix)
 	return Problems{{File: path, Msg: msg}}
 }
 
@@ -340,7 +396,7 @@ func ParseSpec(name string, data []byte, cat *Catalogue) (*Spec, Problems) {
 	var raw rawSpec
 	md, ok := c.decode(data, &raw)
 	if !ok {
-		return nil, c.ps
+		return nil, c.problems()
 	}
 	spec := c.spec(md, raw, cat)
 	c.unknownKeys(md,
@@ -373,11 +429,11 @@ func ParseSpec(name string, data []byte, cat *Catalogue) (*Spec, Problems) {
 			return ""
 		})
 	if c.failed() {
-		return nil, c.ps
+		return nil, c.problems()
 	}
 	spec.File = name
 	spec.ID = SpecID(name)
-	return spec, c.ps
+	return spec, c.problems()
 }
 
 // SpecID is the short id of a spec file: its base name without extension.
@@ -388,7 +444,7 @@ func SpecID(name string) string {
 
 // LoadSpec reads and parses a product spec file.
 func LoadSpec(path string, cat *Catalogue) (*Spec, Problems) {
-	data, err := os.ReadFile(path)
+	data, err := ReadInput(path)
 	if err != nil {
 		return nil, readProblem(path, err, "product spec")
 	}
@@ -401,7 +457,7 @@ func LoadSpec(path string, cat *Catalogue) (*Spec, Problems) {
 // Each spec is loaded and checked against cat; its problems are reported
 // under its own file name.
 func LoadOrders(path string, cat *Catalogue) (*Orders, Problems) {
-	data, err := os.ReadFile(path)
+	data, err := ReadInput(path)
 	if err != nil {
 		return nil, readProblem(path, err, "orders file")
 	}
@@ -415,7 +471,7 @@ func ParseOrders(name string, data []byte, dir string, cat *Catalogue) (*Orders,
 	var raw rawOrders
 	md, ok := c.decode(data, &raw)
 	if !ok {
-		return nil, c.ps
+		return nil, c.problems()
 	}
 	var pos []int
 	for i, k := range md.Keys() {
@@ -447,8 +503,8 @@ func ParseOrders(name string, data []byte, dir string, cat *Catalogue) (*Orders,
 		})
 	out := c.orders(raw, dir, cat)
 	if c.failed() {
-		return nil, c.ps
+		return nil, c.problems()
 	}
 	out.File = name
-	return out, c.ps
+	return out, c.problems()
 }

@@ -1,6 +1,7 @@
 package catalogue
 
 import (
+	"fmt"
 	"math"
 	"os"
 	"path/filepath"
@@ -267,4 +268,45 @@ func TestImpossibleSpecIsValidInput(t *testing.T) {
 	s, ps := LoadSpec(filepath.Join("..", "testdata", "impossible-laminating.toml"), DemoStocks())
 	require.Empty(t, ps, "%v", ps)
 	assert.Equal(t, "impossible-laminating", s.ID)
+}
+
+// One file reports at most maxProblems problems one by one and counts the
+// rest, so a file of many thousands of bad keys costs no more than a few.
+func TestProblemsAreCapped(t *testing.T) {
+	var b strings.Builder
+	b.WriteString("name = \"x\"\nbatch = 1.0\n")
+	for i := 0; i < 5000; i++ {
+		fmt.Fprintf(&b, "colour%d = 1\n", i)
+	}
+	s, ps := ParseSpec("many.toml", []byte(b.String()), nil)
+	assert.Nil(t, s)
+	require.Len(t, ps, maxProblems+1)
+	last := ps[len(ps)-1]
+	assert.False(t, last.Warning)
+	assert.Equal(t, "many.toml", last.File)
+	assert.Equal(t, fmt.Sprintf("and %d more problems not listed; fix those above and run check again", 5000-maxProblems), last.Msg)
+}
+
+// A spec file named by many orders is read once and its problems are
+// reported once, under the first order that names it.
+func TestOrdersReadEachSpecOnce(t *testing.T) {
+	dir := t.TempDir()
+	require.NoError(t, os.WriteFile(filepath.Join(dir, "bad.toml"), []byte("name = \"x\"\nbatch = 0.0\n"), 0o600))
+	require.NoError(t, os.WriteFile(filepath.Join(dir, "good.toml"), DemoFiles()["laminating.toml"], 0o600))
+	var b strings.Builder
+	for i := 0; i < 300; i++ {
+		fmt.Fprintf(&b, "[[order]]\nspec = \"good.toml\"\ntonnes = 10\n[[order]]\nspec = \"bad.toml\"\ntonnes = 10\n")
+	}
+	orders := filepath.Join(dir, "orders.toml")
+	require.NoError(t, os.WriteFile(orders, []byte(b.String()), 0o600))
+	o, ps := LoadOrders(orders, DemoStocks())
+	assert.Nil(t, o)
+	require.Len(t, ps.Errors(), 1, "%v", ps)
+	assert.Contains(t, ps[0].String(), "spec of order #2 in "+orders)
+	require.NoError(t, os.WriteFile(orders, []byte(strings.Repeat("[[order]]\nspec = \"good.toml\"\ntonnes = 10\n", 3)), 0o600))
+	o, ps = LoadOrders(orders, DemoStocks())
+	require.Empty(t, ps.Errors())
+	require.Len(t, o.Orders, 3)
+	assert.Equal(t, o.Orders[0].Spec, o.Orders[2].Spec)
+	assert.NotSame(t, o.Orders[0].Spec, o.Orders[2].Spec, "each order has its own copy")
 }

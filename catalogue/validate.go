@@ -85,6 +85,21 @@ func (c *collector) num(where, label string, x val) (float64, bool) {
 	return f, true
 }
 
+// magnitude reports v under where when it is outside the accepted range of
+// q (Quantity.Check), with an optional hint; it returns whether v is good.
+func (c *collector) magnitude(where string, q Quantity, label string, v float64, hint string) bool {
+	err := q.Check(label, v)
+	if err == nil {
+		return true
+	}
+	if hint != "" {
+		c.errf(where, "%v; %s", err, hint)
+	} else {
+		c.errf(where, "%v", err)
+	}
+	return false
+}
+
 // str reads a string value; ok false when absent or not a string (reported).
 func (c *collector) str(where, label string, x val) (string, bool) {
 	if !x.set {
@@ -161,16 +176,12 @@ func (c *collector) stock(i int, rs rawStock) Stock {
 	if !rs.Price.set {
 		c.errf(where, "price is missing; add price = <currency per tonne>, e.g. price = 1150.0")
 	} else if p, ok := c.num(where, "price", rs.Price); ok {
-		if p < 0 {
-			c.errf(where, "price = %g is negative; give the price per tonne as 0 or more", p)
-		} else {
+		if c.magnitude(where, QtyPrice, "price", p, "give the price in currency per tonne") {
 			s.Price = p
 		}
 	}
 	if a, ok := c.num(where, "available", rs.Available); ok {
-		if a < 0 {
-			c.errf(where, "available = %g is negative; give tonnes on hand (0 or more), or leave it out for unlimited purchase", a)
-		} else {
+		if c.magnitude(where, QtyOnHand, "available", a, "give tonnes on hand, or leave it out for unlimited purchase") {
 			s.Available = a
 		}
 	}
@@ -216,7 +227,7 @@ func (c *collector) faMap(where, table string, lm leafMap) (map[string]float64, 
 	for _, k := range sortedKeys(lm.m) {
 		if _, ok := Lookup(k); !ok {
 			msg := fmt.Sprintf("%s: unknown fatty-acid key %q;", table, k)
-			if s, ok := suggest(k, Keys()); ok {
+			if s, ok := c.suggest(k, Keys()); ok {
 				msg += fmt.Sprintf(" did you mean %q?", s)
 			}
 			c.errf(where, "%s known keys are %s", msg, strings.Join(Keys(), ", "))
@@ -388,12 +399,9 @@ func (c *collector) tags(where string, lm leafMap) map[string]float64 {
 	return out
 }
 
-// pctName reports whether a limit is a percentage (0..100): everything but
-// iv, sv and cox.
-func pctName(name string) bool { return name != "iv" && name != "sv" && name != "cox" }
-
-// bound decodes and checks one { min = ..., max = ... } table.
-func (c *collector) bound(md toml.MetaData, where string, p toml.Primitive, pct bool, example string) (Bound, bool) {
+// bound decodes and checks one { min = ..., max = ... } table whose sides
+// are values of q.
+func (c *collector) bound(md toml.MetaData, where string, p toml.Primitive, q Quantity, example string) (Bound, bool) {
 	var rb rawBound
 	if err := md.PrimitiveDecode(p, &rb); err != nil {
 		var v any
@@ -430,14 +438,7 @@ func (c *collector) bound(md toml.MetaData, where string, p toml.Primitive, pct 
 		v    float64
 		set  bool
 	}{{"min", b.Min, rb.Min.set}, {"max", b.Max, rb.Max.set}} {
-		if !side.set {
-			continue
-		}
-		if pct && (side.v < 0 || side.v > 100) {
-			c.errf(where, "%s = %g is outside 0..100 %%; give a percentage", side.name, side.v)
-			good = false
-		} else if side.v < 0 {
-			c.errf(where, "%s = %g is negative; give 0 or more", side.name, side.v)
+		if side.set && !c.magnitude(where, q, side.name, side.v, "") {
 			good = false
 		}
 	}
@@ -467,9 +468,7 @@ func (c *collector) spec(md toml.MetaData, raw rawSpec, cat *Catalogue) *Spec {
 	if !raw.Batch.set {
 		c.errf(`key "batch"`, "batch is missing; add batch = <tonnes>, e.g. batch = 25.0")
 	} else if b, ok := c.num(`key "batch"`, "batch", raw.Batch); ok {
-		if b <= 0 {
-			c.errf(`key "batch"`, "batch = %g must be above 0 tonnes", b)
-		}
+		c.magnitude(`key "batch"`, QtyTonnes, "batch", b, "give the tonnes of one batch")
 		s.Batch = b
 	}
 	for _, key := range []string{"limits", "use"} {
@@ -488,7 +487,7 @@ func (c *collector) spec(md toml.MetaData, raw rawSpec, cat *Catalogue) *Spec {
 		if !IsProperty(name) {
 			if _, ok := Lookup(name); !ok {
 				msg := fmt.Sprintf("unknown limit %q; limits are %s, sfc, or a fatty-acid key such as \"C18:2\"", name, strings.Join(Properties, ", "))
-				if sug, ok := suggest(name, limitNames()); ok {
+				if sug, ok := c.suggest(name, limitNames()); ok {
 					msg += fmt.Sprintf("; did you mean %q?", sug)
 				}
 				c.errf(where, "%s", msg)
@@ -497,16 +496,16 @@ func (c *collector) spec(md toml.MetaData, raw rawSpec, cat *Catalogue) *Spec {
 				continue
 			}
 		}
-		if b, ok := c.bound(md, where, p, pctName(name), tomlKey(name)); ok {
+		if b, ok := c.bound(md, where, p, LimitQuantity(name), tomlKey(name)); ok {
 			s.Limits = append(s.Limits, Limit{Name: name, Bound: b})
 		}
 	}
 	for _, id := range sortedPrims(raw.Use) {
 		where := fmt.Sprintf("use %q", id)
-		b, ok := c.bound(md, where, raw.Use[id], true, tomlKey(id))
+		b, ok := c.bound(md, where, raw.Use[id], QtyPercent, tomlKey(id))
 		if cat != nil {
 			if _, found := cat.Find(id); !found {
-				c.errf(where, "no stock %q in %s; %s", id, catName(cat), stockHint(id, cat))
+				c.errf(where, "no stock %q in %s; %s", id, catName(cat), c.stockHint(id, cat))
 				ok = false
 			}
 		}
@@ -545,7 +544,7 @@ func (c *collector) sfcLimits(md toml.MetaData, s *Spec, p toml.Primitive) {
 	for _, k := range sortedPrims(temps) {
 		where := fmt.Sprintf("limit \"sfc.%s\"", k)
 		t, ok := c.temp(where, "limits.sfc", k)
-		b, bok := c.bound(md, where, temps[k], true, tomlKey(k))
+		b, bok := c.bound(md, where, temps[k], QtyPercent, tomlKey(k))
 		if !ok || !bok {
 			continue
 		}
@@ -608,7 +607,7 @@ func (c *collector) process(r rawProcess, cat *Catalogue) *Process {
 			seen[id] = true
 			if cat != nil {
 				if _, found := cat.Find(id); !found {
-					c.errf(where, "interesterify names %q, which is not in %s; %s", id, catName(cat), stockHint(id, cat))
+					c.errf(where, "interesterify names %q, which is not in %s; %s", id, catName(cat), c.stockHint(id, cat))
 					continue
 				}
 			}
@@ -624,9 +623,7 @@ func (c *collector) process(r rawProcess, cat *Catalogue) *Process {
 		p.Method = m
 	}
 	if v, ok := c.num(where, "cost", r.Cost); ok {
-		if v < 0 {
-			c.errf(where, "cost = %g is negative; give the processing cost per tonne, 0 or more", v)
-		}
+		c.magnitude(where, QtyPrice, "cost", v, "give the processing cost per tonne")
 		p.Cost = v
 	}
 	if m, ok := c.str(where, "sfc", r.SFC); ok {
@@ -644,6 +641,7 @@ func (c *collector) orders(raw rawOrders, dir string, cat *Catalogue) *Orders {
 	if len(raw.Order) == 0 {
 		c.errf("", "no orders: add at least one [[order]] table with spec = \"file.toml\" and tonnes")
 	}
+	specs := map[string]*Spec{} // by path
 	for i, ro := range raw.Order {
 		where := fmt.Sprintf("order #%d", i+1)
 		var o Order
@@ -653,8 +651,7 @@ func (c *collector) orders(raw rawOrders, dir string, cat *Catalogue) *Orders {
 			good = false
 		} else if t, ok := c.num(where, "tonnes", ro.Tonnes); !ok {
 			good = false
-		} else if t <= 0 {
-			c.errf(where, "tonnes = %g must be above 0", t)
+		} else if !c.magnitude(where, QtyTonnes, "tonnes", t, "give the tonnes to make") {
 			good = false
 		} else {
 			o.Tonnes = t
@@ -674,14 +671,24 @@ func (c *collector) orders(raw rawOrders, dir string, cat *Catalogue) *Orders {
 		if !filepath.IsAbs(p) {
 			p = filepath.Join(dir, p)
 		}
-		spec, ps := LoadSpec(p, cat)
-		for _, sp := range ps {
-			// say which line of the orders file led to the spec file
-			sp.Msg += fmt.Sprintf(" (spec of %s in %s)", where, c.file)
-			c.ps = append(c.ps, sp)
+		// each spec file is read once, however many orders name it, and its
+		// problems are reported under the first of them
+		spec, seen := specs[p]
+		if !seen {
+			var ps Problems
+			spec, ps = LoadSpec(p, cat)
+			specs[p] = spec
+			for _, sp := range ps {
+				// say which line of the orders file led to the spec file
+				sp.Msg += fmt.Sprintf(" (spec of %s in %s)", where, c.file)
+				c.add(sp)
+			}
 		}
 		if spec == nil || !good {
 			continue
+		}
+		if seen {
+			spec = spec.Clone()
 		}
 		o.Spec, o.Path = spec, p
 		out.Orders = append(out.Orders, o)
@@ -697,13 +704,12 @@ func (c *collector) orders(raw rawOrders, dir string, cat *Catalogue) *Orders {
 				if !ok {
 					continue
 				}
-				if v < 0 {
-					c.errf(where, "price = %g is negative; give 0 or more per tonne", v)
+				if !c.magnitude(where, QtyPrice, "price", v, "") {
 					continue
 				}
 				if cat != nil {
 					if _, found := cat.Find(id); !found {
-						c.errf(where, "no stock %q in %s; %s", id, catName(cat), stockHint(id, cat))
+						c.errf(where, "no stock %q in %s; %s", id, catName(cat), c.stockHint(id, cat))
 						continue
 					}
 				}
@@ -731,18 +737,27 @@ func catName(cat *Catalogue) string {
 }
 
 // stockHint suggests the nearest stock id, or lists the ids.
-func stockHint(id string, cat *Catalogue) string {
+func (c *collector) stockHint(id string, cat *Catalogue) string {
 	ids := make([]string, len(cat.Stocks))
 	for i, s := range cat.Stocks {
 		ids[i] = s.ID
 	}
-	if s, ok := suggest(id, ids); ok {
+	if s, ok := c.suggest(id, ids); ok {
 		return fmt.Sprintf("did you mean %q?", s)
 	}
 	if len(ids) > 20 {
 		ids = append(ids[:20:20], "...")
 	}
 	return "stock ids are " + strings.Join(ids, ", ")
+}
+
+// suggest is the package's suggest while the file's problems are still
+// listed one by one.
+func (c *collector) suggest(s string, cands []string) (string, bool) {
+	if c.full() {
+		return "", false
+	}
+	return suggest(s, cands)
 }
 
 // suggest returns the candidate nearest to s (ignoring case and spaces) when

@@ -62,7 +62,7 @@ func TestWriteStocksRoundTripOdd(t *testing.T) {
 		ID:         "x-1",
 		Name:       "Tab\there, quote \" backslash \\ newline\n bell \a, crème, 油",
 		Price:      0.1 + 0.2, // 0.30000000000000004 must come back exactly
-		Available:  1e-7,
+		Available:  0.001,     // the smallest amount accepted (1 kg)
 		FattyAcids: map[string]float64{"C16:0": 33.333333333333336, "C18:1": 66.66666666666667},
 		SN2:        map[string]float64{"C16:0": 5, "C18:1": 95},
 		SFC:        Curve{{-5, 80}, {0, 70}, {37.5, 1e-3}, {99.9, 0}},

@@ -34,6 +34,7 @@ import (
 	"time"
 
 	"lipoplan/blend"
+	"lipoplan/blend/sle"
 	"lipoplan/catalogue"
 )
 
@@ -58,6 +59,9 @@ type Options struct {
 	// limit gives Status NotProven.
 	MaxNodes int
 	MaxTime  time.Duration
+	// Model is the TAG model for predicted SFC (a [process] step with
+	// sfc = "predicted"); the zero value is sle's default, uncalibrated.
+	Model sle.Options
 }
 
 // EngineInfo names the engines of this build, for lipoplan --version.

@@ -29,6 +29,9 @@ type colInfo struct {
 	// frozen: excluded by use max = 0 while lacking SFC data the spec
 	// needs, so it may never enter, not even in a relaxation.
 	frozen bool
+	// noCurve: lacks a measured SFC value the spec's temperatures need,
+	// which a predicted-SFC model does without (buildPredicted).
+	noCurve bool
 }
 
 // layout maps the user's stocks and spec onto the model.
@@ -98,17 +101,25 @@ func finiteNum(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 // bounds. Integer rules are added by withRules. Input faults are
 // catalogue.BadInput.
 func build(cat *catalogue.Catalogue, spec *catalogue.Spec) (*model, *layout, error) {
-	return buildIn(cat, spec, nil, nil)
+	return buildIn(cat, spec, nil, nil, false)
+}
+
+// buildPredicted is build for a model whose SFC rows the TAG model will
+// fill (a [process] step with sfc = "predicted"): a stock without a measured
+// curve is no error, its coefficient in an SFC row is 0 until replaced.
+func buildPredicted(cat *catalogue.Catalogue, spec *catalogue.Spec) (*model, *layout, error) {
+	return buildIn(cat, spec, nil, nil, true)
 }
 
 // buildWith is build taking the stocks' profiles from pc (nil: computed).
 func buildWith(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache) (*model, *layout, error) {
-	return buildIn(cat, spec, pc, nil)
+	return buildIn(cat, spec, pc, nil, false)
 }
 
 // buildIn is buildWith taking its arrays from sc (nil: allocated); the
-// model and layout it returns live in sc until sc's next build.
-func buildIn(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache, sc *scratch) (*model, *layout, error) {
+// model and layout it returns live in sc until sc's next build. With
+// predicted set, SFC rows need no measured curves (buildPredicted).
+func buildIn(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache, sc *scratch, predicted bool) (*model, *layout, error) {
 	if cat == nil || len(cat.Stocks) == 0 {
 		return nil, nil, catalogue.Badf("the stock catalogue has no stocks; add [[stock]] entries")
 	}
@@ -267,6 +278,10 @@ func buildIn(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache, s
 		var lacking []string
 		for j, c := range lay.cols {
 			v, ok := c.stock.SFC.At(l.Temp)
+			if !ok && predicted {
+				v, ok = 0, true
+				lay.cols[j].noCurve = true
+			}
 			if !ok {
 				if m.colUp[j] > 0 {
 					lacking = append(lacking, fmt.Sprintf("%q", c.stock.ID))

@@ -4,10 +4,8 @@ import (
 	"fmt"
 	"math"
 	"sort"
-	"strings"
 
 	"lipoplan/blend"
-	"lipoplan/blend/sle"
 	"lipoplan/catalogue"
 	"lipoplan/randomise"
 )
@@ -29,13 +27,15 @@ type ProcessReport struct {
 
 // Tolerances and limits of the successive LP.
 const (
-	slpMaxIter  = 50   // LP solves at most
-	slpStepTol  = 1e-4 // % of batch: the reactor feed has stopped moving
-	slpSFCTol   = 0.05 // % solid: the product's true SFC meets each limit within this
-	slpFDStep   = 1e-3 // finite-difference step along e_k - q (fraction of the feed)
-	slpBoxStart = 25.0 // initial trust region, % of batch per feed stock
-	slpBoxMin   = 1e-6 // trust region below which a rejected step ends the search
+	slpMaxIter  = 90   // LP solves at most, over all starts
+	slpStepTol  = 1e-4 // % of batch: the blend has stopped moving
+	slpSFCTol   = 0.05 // % solid: the blend's predicted SFC meets each limit within this
+	slpFDStep   = 1e-2 // % of batch: forward-difference step of the linearisation
+	slpBoxStart = 25.0 // initial trust region, % of batch per column
+	slpBoxMin   = 1e-3 // % of batch: trust region below which a rejected step ends the search
 	slpPenalty  = 10.0 // merit weight of SFC violation per unit of the largest SFC shadow price
+	slpReactor  = 30.0 // % of batch fed to the reactor in the reactor start point
+	slpGainTol  = 1e-4 // relative to the cost: a promised saving below this ends the search
 )
 
 // solveProcess is Solve for a spec with a [process] step: stocks listed
@@ -52,52 +52,53 @@ const (
 // so every [limits] row (fatty acids, IV, SV, SAFA, trans, Cox ...) is linear
 // in x and z with the stock's own coefficient in both. Availability and [use]
 // bounds apply to the total inclusion x_k + z_k. (The LP is solved in an
-// equivalent total form, see procModel.lp.) SFC rows: the directly blended stocks contribute their
-// measured curves linearly (as the plain model); the interesterified product
-// contributes g(z) = Z·S(z/Z), with Z = Σ z_k and S(q) the SFC of the reacted
-// feed of proportions q; the final blend's SFC is the mass-weighted sum of
-// the two (the usual first estimate: physical mixes of a reacted and an
-// unreacted fat are not exactly additive either).
+// equivalent total form, see procModel.lp.)
 //
-// With sfc = "measured", S(q) = Σ q_k S_k is linear in the feed stocks'
-// measured curves, so g(z) = Σ z_k S_k and the model is one LP. Measured
-// curves do not see the reaction: in this mode the reactor only adds cost
-// and is never used unless it costs nothing.
+// With sfc = "measured" the SFC rows are linear in the stocks' measured
+// curves, the reacted fat's curve being its feed's mass-weighted one, so the
+// model is one LP. Measured curves do not see the reaction: in this mode the
+// reactor only adds cost and is never used unless it costs nothing.
 //
-// With sfc = "predicted", S(q) is the TAG model: randomise.Distribute of the
-// feed (chemical or enzymatic, degree 1), then sle's solid-liquid
-// equilibrium. g is positively homogeneous of degree 1, so by Euler's
-// theorem its linearisation at z0 is g(z) ≈ ∇g(z0)·z, exact at z0 and along
-// the ray through it. ∂g/∂z_k = S(q0) + ∇S(q0)·(e_k - q0), the directional
-// derivative taken by a central difference of S along e_k - q0 (see
-// reactor.gradient). The successive linear programme
-// (SLP; e.g. Griffith & Stewart, Management Science 7 (1961) 379, and the
-// trust-region form in Nocedal & Wright, Numerical Optimization (2006),
-// ch. 4 and 18, references from memory) starts from the LP with measured
-// curves for the product (which leaves the reactor idle unless it is free;
-// when that LP is infeasible, from the LP linearised at equal proportions),
-// linearised first at the feed stocks' proportions in that blend and then,
-// in a second run, at equal proportions (the SLP finds a local optimum, and
-// from a feed poor in hardstock the reaction's effect looks negligible); the
-// cheaper answer that meets the limits wins, the two runs sharing the cap of
-// 50 LP solves. Each iteration linearises at the current point
-// and solves the LP with the feed boxed to ±Δ around it. The merit of a
-// point is cost + μ·(Σ violation of the SFC limits by the true predicted
-// SFC, % solid), μ ten times the largest SFC shadow price seen (an exact
-// penalty); a step is accepted when the merit falls by at least a tenth of
-// what the LP promised (Δ doubles when by three quarters), else Δ shrinks
-// to half the step. The search stops
-// when an accepted step moves the feed by less than 1e-4 % of batch and the
-// product's true predicted SFC meets every limit within 0.05 % solid, or
-// after 50 LP solves. Shadow prices and cost ranging are those of the final
-// LP: of the linearised model at the answer.
+// With sfc = "predicted" the SFC of the final blend is the TAG model's for
+// the whole blend (wholeBlend): the native TAGs of the stocks blended as
+// they are and the interesterified TAGs of the reactor's product go through
+// one solid-liquid equilibrium (sle.BlendModel). Solid fat does not add up
+// over the parts of a mix, and no stock needs a measured curve. The SFC rows
+// are then nonlinear in (x, z) and the cheapest blend is found by
+// successive linear programming (SLP; Griffith & Stewart, Management
+// Science 7 (1961) 379; the trust-region form in Nocedal & Wright,
+// Numerical Optimization, 2nd ed. (2006), ch. 4 and 18): each LP has the SFC
+// rows linearised at the current blend (forward differences of the TAG
+// model along every column) and every column boxed to ±Δ around it. The
+// merit of a blend is cost + μ·(Σ violation of the SFC limits by its
+// predicted SFC, % solid), μ ten times the largest SFC shadow price seen (an
+// exact penalty); a step is accepted when the merit falls by at least a
+// tenth of what the LP promised (Δ doubles when by three quarters), else Δ
+// shrinks to half the step. A search stops when an accepted step moves the
+// blend by less than 1e-4 % of batch and the predicted SFC meets every limit
+// within 0.05 % solid, or at the shared cap of 90 LP solves. SLP finds a
+// local optimum, so it runs from up to three starts and keeps the cheapest
+// blend that meets the limits: the LP with measured curves (when every
+// stock that may enter has them), the cheapest blend ignoring the SFC
+// limits, and that blend with 30 % of the batch sent through the reactor in
+// equal parts of its feed stocks. Shadow prices and cost ranging are those
+// of the final LP: of the linearised model at the answer.
 //
-// An impossible spec is reported with the relaxation of the plain model
-// (measured curves, no reactor): for sfc = "measured" the two models have
-// the same feasible blends, for "predicted" it is an estimate (a Note says
-// so). Integer [rules] together with a [process] step are not supported.
+// An impossible spec is reported with the relaxation of a model without
+// the reactor: for "measured" the plain model (the two have the same
+// feasible blends), for "predicted" the blend model with its SFC rows
+// linearised at the last blend tried (an estimate; a Note says so). Integer
+// [rules] together with a [process] step are not supported.
 func solveProcess(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result, error) {
-	base, lay, err := build(cat, spec)
+	mode := "predicted"
+	if spec.Process != nil && spec.Process.SFC == "measured" {
+		mode = "measured"
+	}
+	builder := build
+	if mode == "predicted" {
+		builder = buildPredicted
+	}
+	base, lay, err := builder(cat, spec)
 	if err != nil {
 		return nil, err
 	}
@@ -109,221 +110,301 @@ func solveProcess(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (
 	defer eng.close()
 	res := &Result{Engine: eng.name(), Currency: cat.Currency, Spec: spec.Name, Batch: spec.Batch}
 	temps := reportTemps(spec, opt)
-
 	pr := spec.Process
 	rep := &ProcessReport{Method: pr.Method, SFCModel: pm.mode}
 	res.Process = rep
 
-	// Start: the LP with measured curves for the product.
-	m := pm.lp(pm.measuredCoef(), nil, 0)
-	sol, err := eng.solveLP(m)
-	if err != nil {
-		return nil, fmt.Errorf("optimise %s: process LP: %w", specWhere(spec), err)
-	}
-	rep.Iterations = 1
-	if sol.status == solUnbounded {
-		return nil, fmt.Errorf("optimise %s: the process programme is unbounded, which a blend with shares adding to 100 %% cannot be", specWhere(spec))
-	}
-	if sol.status != solOptimal && pm.mode == "measured" {
-		return pm.infeasible(eng, res, base, "")
-	}
 	if pm.mode == "measured" {
+		m := pm.lp(pm.measuredLin(), nil, 0)
+		sol, err := eng.solveLP(m)
+		if err != nil {
+			return nil, fmt.Errorf("optimise %s: process LP: %w", specWhere(spec), err)
+		}
+		rep.Iterations = 1
+		if sol.status == solUnbounded {
+			return nil, fmt.Errorf("optimise %s: the process programme is unbounded, which a blend with shares adding to 100 %% cannot be", specWhere(spec))
+		}
+		if sol.status != solOptimal {
+			return pm.infeasible(eng, res, base, "")
+		}
 		rep.Converged = true
 		return pm.finish(res, m, sol, temps, nil, "[process] sfc = \"measured\": the reacted fat's SFC is taken as the mass-weighted sum of its feed stocks' measured curves, "+
 			"which do not see the reaction, so the reactor only adds cost; use sfc = \"predicted\" to let the TAG model judge what interesterification does.")
 	}
 
-	// Predicted: successive LP with a trust region on the reactor feed,
-	// from each start guess of the feed proportions; the cheapest blend
-	// that meets the limits wins (the SLP finds a local optimum).
-	ev := newReactor(pm.feedStocks(), randomise.Method(pr.Method), pm.sfcTemps)
-	var best *slpRun
-	linInfeasible := false
-	starts := pm.starts(sol.x)
-	if sol.status != solOptimal {
-		// No physical blend meets the limits; the reaction may. Start
-		// from the LP linearised at equal feed proportions instead.
-		q0 := starts[len(starts)-1]
-		starts = starts[len(starts)-1:]
-		coef, err := ev.gradient(q0)
+	wb, err := newWholeBlend(pm, randomise.Method(pr.Method), opt.Model)
+	if err != nil {
+		return nil, fmt.Errorf("optimise %s: %w", specWhere(spec), err)
+	}
+	if len(pm.sfcRows) == 0 {
+		// No SFC limit: one LP; the TAG model only reports the SFC.
+		m := pm.lp(pm.measuredLin(), nil, 0)
+		sol, err := eng.solveLP(m)
 		if err != nil {
-			return nil, fmt.Errorf("optimise %s: %w", specWhere(spec), err)
-		}
-		m = pm.lp(coef, nil, 0)
-		if sol, err = eng.solveLP(m); err != nil {
 			return nil, fmt.Errorf("optimise %s: process LP: %w", specWhere(spec), err)
 		}
-		rep.Iterations++
+		rep.Iterations, rep.Converged = 1, true
 		if sol.status != solOptimal {
-			return pm.infeasible(eng, res, base, "neither the physical blends nor the linearised model of the reacted fat (at equal feed proportions) meet the limits; ")
+			return pm.infeasible(eng, res, base, "")
 		}
+		return pm.finish(res, m, sol, temps, wb, "[process] sfc = \"predicted\" with no SFC limit: the blend is one LP, and its SFC is the TAG model's for the whole blend.")
 	}
-	for _, q0 := range starts {
-		run, err := pm.slp(eng, ev, m, sol, q0, slpMaxIter-rep.Iterations)
+	var best *slpRun
+	var last *procPoint
+	linInfeasible := false
+	starts, n0, err := pm.starts(eng, wb)
+	if err != nil {
+		return nil, fmt.Errorf("optimise %s: %w", specWhere(spec), err)
+	}
+	rep.Iterations = n0
+	for i, st := range starts {
+		left := slpMaxIter - rep.Iterations
+		if left <= 0 {
+			break
+		}
+		// each start its share of what is left (the last one all of it)
+		run, err := pm.slp(eng, wb, st, max(left/(len(starts)-i), min(left, 8)))
 		if err != nil {
 			return nil, fmt.Errorf("optimise %s: %w", specWhere(spec), err)
 		}
 		rep.Iterations += run.iters
 		linInfeasible = linInfeasible || run.linInfeasible
-		if run.viol.max <= slpSFCTol && (best == nil || run.cost < best.cost-1e-9*(1+math.Abs(best.cost))) {
-			best = run
+		if run.cur != nil {
+			last = run.cur
 		}
-		if rep.Iterations >= slpMaxIter {
-			break
+		if run.sol != nil && run.viol.max <= slpSFCTol && (best == nil || run.cost < best.cost-1e-9*(1+math.Abs(best.cost))) {
+			best = run
 		}
 	}
 	if best == nil {
 		why := ""
 		if linInfeasible {
-			why = "the linearised model (predicted SFC of the reacted fat) has no feasible blend; "
+			why = "the linearised model (predicted SFC of the whole blend) has no feasible blend; "
 		}
 		res.Notes = append(res.Notes, fmt.Sprintf("the successive LP found no blend whose predicted SFC meets the limits within %.2g %% solid in %d LP solves", slpSFCTol, rep.Iterations))
-		return pm.infeasible(eng, res, base, why)
+		return pm.infeasiblePredicted(eng, wb, res, base, last, why)
 	}
 	rep.Converged = best.converged
 	if !best.converged {
-		res.Notes = append(res.Notes, fmt.Sprintf("the successive LP stopped at its cap of %d LP solves before the reactor feed settled; the blend meets the limits but may not be the cheapest", slpMaxIter))
+		res.Notes = append(res.Notes, fmt.Sprintf("the successive LP stopped at its cap of %d LP solves before the blend settled; the blend meets the limits but may not be the cheapest", slpMaxIter))
 	}
 	curM, curSol := best.m, best.sol
 	// Duals of the linearisation at the answer without the trust-region
 	// box, when that LP stays at the answer; otherwise those of the boxed LP.
-	if coef, err := ev.gradient(best.q); err == nil {
-		fm := pm.lp(coef, nil, 0)
+	if lin, err := wb.linearise(best.cur); err == nil {
+		fm := pm.lp(lin, nil, 0)
 		if s, err := eng.solveLP(fm); err == nil && s.status == solOptimal {
 			p := pm.point(s.x)
-			if maxDiff(p.z, best.cur.z) < 1e3*slpStepTol && fm.objective(s.x) <= best.cost+1e-7*(1+math.Abs(best.cost)) {
-				if v, err := pm.violation(ev, p); err == nil && v.max <= slpSFCTol {
+			if pm.dist(p, best.cur) < 1e3*slpStepTol && fm.objective(s.x) <= best.cost+1e-7*(1+math.Abs(best.cost)) {
+				if v, err := pm.violation(wb, p); err == nil && v.max <= slpSFCTol {
 					curM, curSol = fm, s
 				}
 			}
 		}
 	}
 	if boxed(curM, pm) {
-		res.Notes = append(res.Notes, "the last LP of the successive LP keeps the reactor feed in a trust-region box; shadow prices do not price that box")
+		res.Notes = append(res.Notes, "the last LP of the successive LP keeps the blend within a trust-region box; shadow prices do not price that box")
 	}
-	return pm.finish(res, curM, curSol, temps, ev, "[process] sfc = \"predicted\": the reacted fat's SFC is the TAG model's (randomise, then solid-liquid equilibrium in blend/sle), "+
-		"the directly blended stocks keep their measured curves, and the final blend's SFC is the mass-weighted sum of the two (the usual first estimate; "+
-		"mixes of reacted and unreacted fat are not exactly additive). Shadow prices and cost ranging are those of the linearised model at the answer (the last LP of the successive LP).")
+	return pm.finish(res, curM, curSol, temps, wb, "[process] sfc = \"predicted\": the SFC of the final blend is the TAG model's for the whole blend "+
+		"(the native TAGs of the stocks blended as they are and the interesterified TAGs of the reactor's product in one solid-liquid equilibrium; "+
+		"no stock needs a measured curve). Shadow prices and cost ranging are those of the linearised model at the answer (the last LP of the successive LP).")
 }
 
-// slpRun is one successive-LP search from a start guess.
+// slpRun is one successive-LP search from a start point.
 type slpRun struct {
 	cur           *procPoint
-	q             []float64 // feed proportions the last linearisation used
-	viol          viol      // true SFC violation at cur
+	viol          viol // predicted SFC violation at cur
 	cost          float64
-	m             *model    // the LP whose solution cur is
+	m             *model    // the LP whose solution cur is; nil until one is accepted
 	sol           *solution // its solution
 	iters         int
 	converged     bool
 	linInfeasible bool
 }
 
-// slp runs the successive LP from the start LP's solution (m, sol) with the
-// feed proportions q0 as the first linearisation point, at most maxIter LP
-// solves.
-func (pm *procModel) slp(eng *engine, ev *reactor, m *model, sol *solution, q0 []float64, maxIter int) (*slpRun, error) {
-	cur := pm.point(sol.x)
-	q0 = ev.proportionsOf(cur, q0)
-	v0, err := pm.violation(ev, cur)
+// slpStart is a start point of the successive LP: the blend to linearise at
+// first, and whether it is an LP answer (then the first box is around it).
+type slpStart struct {
+	at       *procPoint
+	feasible bool // an LP answer meeting every linear row
+}
+
+// slp runs the successive LP from start st, at most maxIter LP solves. Its
+// LPs are elastic in the SFC rows (Fletcher & de la Maza (1989), "Nonlinear
+// programming and nonsmooth optimization by successive linear programming",
+// Math. Programming 43:235): each row may give way by a slack costing
+// pm.mu per % solid, so every LP has an answer and its objective is the
+// linear model of the merit function cost + mu · Σ violation.
+func (pm *procModel) slp(eng *engine, wb *wholeBlend, st slpStart, maxIter int) (*slpRun, error) {
+	v0, err := pm.violation(wb, st.at)
 	if err != nil {
 		return nil, err
 	}
-	// The start has no reactor feed unless the reactor costs nothing, so
-	// its true SFC is usually the measured one: a valid first point.
-	run := &slpRun{cur: cur, q: q0, viol: v0, cost: m.objective(sol.x), m: m, sol: sol}
-	mu := pm.penalty(sol, 0)
+	run := &slpRun{cur: st.at, viol: v0, cost: pm.costOf(st.at)}
+	mu := pm.mu
 	delta := slpBoxStart
+	var lin *sfcLin
 	for run.iters < maxIter {
-		coef, err := ev.gradient(run.q)
-		if err != nil {
+		if lin, err = wb.linearise(run.cur); err != nil {
 			return nil, err
 		}
-		lm := pm.lp(coef, run.cur, delta)
+		lin.mu = mu
+		lm := pm.lp(lin, run.cur, delta)
 		s, err := eng.solveLP(lm)
 		run.iters++
 		if err != nil {
 			return nil, fmt.Errorf("process LP: %w", err)
 		}
 		if s.status != solOptimal && run.iters < maxIter {
-			// The box may cut off every point the linearisation allows.
-			lm = pm.lp(coef, nil, 0)
-			s, err = eng.solveLP(lm)
-			run.iters++
-			if err != nil {
+			// The box around a start that breaks other limits may hold no
+			// blend that meets them: the elastic LP unboxed.
+			lm = pm.lp(lin, nil, 0)
+			if s, err = eng.solveLP(lm); err != nil {
 				return nil, fmt.Errorf("process LP: %w", err)
 			}
+			run.iters++
 		}
 		if s.status != solOptimal {
 			run.linInfeasible = true
 			return run, nil
 		}
-		mu = pm.penalty(s, mu)
 		next := pm.point(s.x)
-		v, err := pm.violation(ev, next)
+		v, err := pm.violation(wb, next)
 		if err != nil {
 			return nil, err
 		}
-		cost := lm.objective(s.x)
-		step := maxDiff(next.z, run.cur.z)
+		cost := pm.costOf(next)
+		if run.m == nil && !st.feasible {
+			// A start that is not an LP answer: the first LP answer is the
+			// search's first point.
+			run.cur, run.viol, run.cost, run.m, run.sol = next, v, cost, lm, s
+			continue
+		}
+		step := pm.dist(next, run.cur)
 		merit := run.cost + mu*run.viol.sum
-		pred := merit - cost // the LP point meets the linearised limits
+		pred := merit - lm.objective(s.x) // the LP's own model of the merit
 		actual := merit - (cost + mu*v.sum)
 		tiny := 1e-9 * (1 + math.Abs(merit))
 		if step < slpStepTol && v.max <= slpSFCTol {
-			run.cur, run.q, run.viol, run.cost, run.m, run.sol = next, ev.proportionsOf(next, run.q), v, cost, lm, s
+			run.cur, run.viol, run.cost, run.m, run.sol = next, v, cost, lm, s
 			run.converged = true
 			return run, nil
 		}
 		if pred > tiny && actual >= 0.1*pred {
-			run.cur, run.q, run.viol, run.cost, run.m, run.sol = next, ev.proportionsOf(next, run.q), v, cost, lm, s
+			run.cur, run.viol, run.cost, run.m, run.sol = next, v, cost, lm, s
 			if actual >= 0.75*pred {
 				delta = math.Min(2*math.Max(delta, step), 100)
 			}
 			continue
 		}
-		if pred <= tiny && run.viol.max <= slpSFCTol {
-			// No LP step promises a saving: the point is a stationary one
-			// of the linearised model.
+		if pred <= math.Max(tiny, slpGainTol*math.Abs(run.cost)) && run.viol.max <= slpSFCTol {
+			// No LP step promises a saving worth having: the point is a
+			// stationary one of the linearised model.
 			run.converged = true
-			return run, nil
+			break
 		}
 		delta = step / 2
 		if delta < slpBoxMin {
 			run.converged = run.viol.max <= slpSFCTol
-			return run, nil
+			break
+		}
+	}
+	if run.m == nil && lin != nil && run.iters < maxIter+1 {
+		// Stopped at the start itself: the LP boxed tightly around it
+		// gives its duals.
+		lm := pm.lp(lin, run.cur, 1e-9)
+		if s, err := eng.solveLP(lm); err == nil && s.status == solOptimal {
+			run.m, run.sol = lm, s
+			run.iters++
 		}
 	}
 	return run, nil
 }
 
-// penalty is the merit weight of SFC violations: at least slpPenalty
-// times the largest SFC-row shadow price seen (an exact penalty needs a
-// weight above the multipliers), and never below the last weight mu.
-func (pm *procModel) penalty(s *solution, mu float64) float64 {
-	for _, i := range pm.sfcRows {
-		mu = math.Max(mu, slpPenalty*math.Abs(s.y[i]))
+// starts are the start points of the successive LP (see solveProcess):
+// the cheapest blend ignoring the SFC limits, that blend with slpReactor %
+// of the batch through the reactor in equal parts of its feed stocks, and
+// the LP with measured curves when every stock that may enter has them. It
+// returns them with the number of LP solves spent. A start LP without a
+// feasible answer gives no start; with none at all the SFC-free blend's
+// absence means the other limits cannot be met, and the linearisation at
+// an equal mix of the allowed stocks is the one start.
+func (pm *procModel) starts(eng *engine, wb *wholeBlend) ([]slpStart, int, error) {
+	var out []slpStart
+	iters := 0
+	solve := func(lin *sfcLin) (*solution, error) {
+		s, err := eng.solveLP(pm.lp(lin, nil, 0))
+		iters++
+		if err != nil {
+			return nil, fmt.Errorf("process LP: %w", err)
+		}
+		if s.status == solUnbounded {
+			return nil, fmt.Errorf("the process programme is unbounded, which a blend with shares adding to 100 %% cannot be")
+		}
+		return s, nil
 	}
-	return math.Max(mu, 1e-6)
+	s, err := solve(pm.freeLin())
+	if err != nil {
+		return nil, iters, err
+	}
+	if s.status != solOptimal {
+		// The limits other than SFC cannot be met: start anywhere, the
+		// search will say the spec is impossible.
+		return []slpStart{{at: pm.equalMix()}}, iters, nil
+	}
+	free := pm.point(s.x)
+	out = append(out, slpStart{at: free, feasible: true}, slpStart{at: pm.withReactor(free, slpReactor)})
+	if pm.curvesFor() {
+		s, err := solve(pm.measuredLin())
+		if err != nil {
+			return nil, iters, err
+		}
+		if s.status == solOptimal {
+			out = append(out, slpStart{at: pm.point(s.x), feasible: true})
+		}
+	}
+	return out, iters, nil
 }
 
-// starts are the first linearisation points of the feed proportions: the
-// feed stocks' shares among themselves in the start blend (when it has any),
-// then equal shares.
-func (pm *procModel) starts(x []float64) [][]float64 {
-	K := len(pm.feed)
-	eq := make([]float64, K)
-	for k := range eq {
-		eq[k] = 1 / float64(K)
+// equalMix is the blend of equal shares of every stock that may enter.
+func (pm *procModel) equalMix() *procPoint {
+	p := pm.newPoint()
+	var open []int
+	for j := range p.x {
+		if pm.base.colUp[j] > 0 {
+			open = append(open, j)
+		}
 	}
-	if len(x) < pm.lay.n() { // no start blend
-		return [][]float64{eq}
+	for _, j := range open {
+		p.x[j] = 100 / float64(len(open))
 	}
-	q := pm.startProportions(x)
-	if K == 1 || maxDiff(q, eq) < 1e-6 {
-		return [][]float64{eq}
+	return p
+}
+
+// withReactor is p scaled to (100 - f) % with f % of the batch fed to the
+// reactor in equal parts of the feed stocks: a start that tries the
+// reaction.
+func (pm *procModel) withReactor(p *procPoint, f float64) *procPoint {
+	q := pm.newPoint()
+	for j, x := range p.x {
+		q.x[j] = x * (100 - f) / 100
 	}
-	return [][]float64{q, eq}
+	for k, z := range p.z {
+		q.z[k] = z*(100-f)/100 + f/float64(len(p.z))
+	}
+	return q
+}
+
+// costOf is the cost per tonne of product of blend p.
+func (pm *procModel) costOf(p *procPoint) float64 {
+	var c float64
+	for j, x := range p.x {
+		c += pm.base.obj[j] * x
+	}
+	for k, j := range pm.feed {
+		c += (pm.base.obj[j] + pm.cost/100) * p.z[k]
+	}
+	return c
 }
 
 // procModel is the process model's layout: the base model's rows and
@@ -332,6 +413,7 @@ type procModel struct {
 	base     *model
 	lay      *layout
 	mode     string    // "measured" | "predicted"
+	mu       float64   // merit weight of SFC violation, currency per tonne per % solid
 	cost     float64   // process cost per tonne processed
 	feed     []int     // stock column of each feed stock
 	isFeed   []int     // feed index of each stock column, -1 when not fed
@@ -366,6 +448,13 @@ func newProcModel(base *model, lay *layout) (*procModel, error) {
 	}
 	n := lay.n()
 	pm := &procModel{base: base, lay: lay, mode: mode, cost: pr.Cost, isFeed: make([]int, n)}
+	// An exact penalty needs a weight above every SFC shadow price; a
+	// shadow price is a cost per tonne per % solid, which no blend of these
+	// stocks can make larger than ten times the dearest stock's price.
+	pm.mu = 1000.0
+	for j := 0; j < n; j++ {
+		pm.mu = math.Max(pm.mu, 10*100*base.obj[j])
+	}
 	for j := range pm.isFeed {
 		pm.isFeed[j] = -1
 	}
@@ -405,36 +494,73 @@ func (pm *procModel) feedStocks() []*catalogue.Stock {
 	return out
 }
 
-// measuredCoef is the SFC coefficient of each reactor column (per % of
-// batch) for every SFC row, from the feed stocks' measured curves: row r,
-// feed k at [r*K+k].
-func (pm *procModel) measuredCoef() []float64 {
-	K := len(pm.feed)
-	out := make([]float64, len(pm.sfcRows)*K)
-	for r, i := range pm.sfcRows {
-		for k, j := range pm.feed {
-			out[r*K+k] = pm.base.at(i, j)
+// curvesFor reports whether every stock that may enter has a measured SFC
+// at each of the spec's SFC temperatures.
+func (pm *procModel) curvesFor() bool {
+	for j, c := range pm.lay.cols {
+		if c.noCurve && pm.base.colUp[j] > 0 {
+			return false
 		}
 	}
-	return out
+	return true
 }
 
-// lp is the process LP with reactor SFC coefficients sfc (per % of batch,
-// as measuredCoef), the reactor feed boxed to ±delta around at.z when at is
-// non-nil.
+// sfcLin is a linear model of the SFC rows: row r has coefficient
+// coef[r][c] per % of batch for LP column c (the n stock totals, then the K
+// reactor columns) and its bounds moved by shift[r] (the constant of a
+// linearisation carried to the right-hand side). With free set the rows
+// hold no limit. With mu > 0 each side of an SFC row may give way by a
+// slack column ("slack.<row>.min"/".max", cost mu per % solid).
+type sfcLin struct {
+	coef  [][]float64
+	shift []float64
+	free  bool
+	mu    float64 // > 0: each SFC row side gets an elastic slack costing mu per % solid
+}
+
+// measuredLin is the SFC rows linear in the measured curves: a stock's
+// coefficient is its curve's value, and a reactor column's is zero, since
+// the reacted fat's measured-linear curve is its feed's.
+func (pm *procModel) measuredLin() *sfcLin {
+	n, K := pm.lay.n(), len(pm.feed)
+	lin := &sfcLin{coef: make([][]float64, len(pm.sfcRows)), shift: make([]float64, len(pm.sfcRows))}
+	for r, i := range pm.sfcRows {
+		lin.coef[r] = make([]float64, n+K)
+		copy(lin.coef[r], pm.base.row(i))
+	}
+	return lin
+}
+
+// freeLin is the SFC rows holding no limit: the cheapest blend that meets
+// every other limit.
+func (pm *procModel) freeLin() *sfcLin {
+	lin := pm.measuredLin()
+	for r := range lin.coef {
+		clear(lin.coef[r])
+	}
+	lin.free = true
+	return lin
+}
+
+// lp is the process LP with the SFC rows of lin, every column boxed to
+// ±delta around blend at when at is non-nil.
 //
 // It is written in total form: the column of a feed stock is its total
 // inclusion t_k = x_k + z_k (cost price/100, [use] and availability as its
 // column bounds, as in the plain model), and the reactor column z_k costs
-// the process alone, cost/100, with coefficients (reacted - as blended):
-// zero in the sum and every fatty-acid-linear row, S'_k - S_k in an SFC
-// row; a row "direct.<id>" t_k - z_k >= 0 keeps x_k >= 0. It is the model
-// of solveProcess's doc comment with x_k = t_k - z_k substituted, so that
-// each stock's price sits in one column (exact cost ranging) and its
-// bounds stay column bounds (shadow prices as the plain report's).
-func (pm *procModel) lp(sfc []float64, at *procPoint, delta float64) *model {
+// the process alone, cost/100, with coefficient zero in the sum and every
+// fatty-acid-linear row and lin's in the SFC rows; a row "direct.<id>"
+// t_k - z_k >= 0 keeps x_k >= 0. It is the model of solveProcess's doc
+// comment with x_k = t_k - z_k substituted, so that each stock's price sits
+// in one column (exact cost ranging) and its bounds stay column bounds
+// (shadow prices as the plain report's).
+func (pm *procModel) lp(lin *sfcLin, at *procPoint, delta float64) *model {
 	b, n, K := pm.base, pm.lay.n(), len(pm.feed)
-	m := newModel(n + K)
+	E := 0
+	if lin.mu > 0 && !lin.free {
+		E = 2 * len(pm.sfcRows)
+	}
+	m := newModel(n + K + E)
 	copy(m.colName, b.colName)
 	copy(m.obj, b.obj)
 	copy(m.colLo, b.colLo)
@@ -444,27 +570,64 @@ func (pm *procModel) lp(sfc []float64, at *procPoint, delta float64) *model {
 		m.colName[c] = "ie." + b.colName[j]
 		m.obj[c] = pm.cost / 100
 		m.colLo[c], m.colUp[c] = 0, b.colUp[j]
-		if at != nil {
+	}
+	if at != nil {
+		for j := 0; j < n; j++ {
+			t := at.x[j]
+			if k := pm.isFeed[j]; k >= 0 {
+				t += at.z[k]
+			}
+			m.colLo[j] = math.Max(b.colLo[j], t-delta)
+			m.colUp[j] = math.Min(b.colUp[j], t+delta)
+			if m.colLo[j] > m.colUp[j] { // at lies outside the bounds: keep them
+				m.colLo[j], m.colUp[j] = b.colLo[j], b.colUp[j]
+			}
+		}
+		for k := range pm.feed {
+			c := n + k
 			m.colLo[c] = math.Max(0, at.z[k]-delta)
 			m.colUp[c] = math.Min(m.colUp[c], at.z[k]+delta)
+			if m.colLo[c] > m.colUp[c] {
+				m.colLo[c], m.colUp[c] = 0, b.colUp[pm.feed[k]]
+			}
 		}
 	}
-	m.a = make([]float64, 0, (b.nRows+K)*(n+K))
-	coef := make([]float64, n+K)
+	for r, i := range pm.sfcRows {
+		if E == 0 {
+			break
+		}
+		for side, name := range []string{".min", ".max"} {
+			c := n + K + 2*r + side
+			m.colName[c] = "slack." + b.rowName[i] + name
+			m.obj[c] = lin.mu
+			m.colLo[c], m.colUp[c] = 0, math.Inf(1)
+		}
+	}
+	m.a = make([]float64, 0, (b.nRows+K)*(n+K+E))
+	coef := make([]float64, n+K+E)
 	sfcAt := make(map[int]int, len(pm.sfcRows))
 	for r, i := range pm.sfcRows {
 		sfcAt[i] = r
 	}
 	for i := 0; i < b.nRows; i++ {
-		copy(coef, b.row(i))
-		r, isSFC := sfcAt[i]
-		for k, j := range pm.feed {
-			coef[n+k] = 0 // interesterification keeps the fatty acids
-			if isSFC {
-				coef[n+k] = sfc[r*K+k] - b.at(i, j)
+		lo, up := b.rowLo[i], b.rowUp[i]
+		clear(coef)
+		if r, isSFC := sfcAt[i]; isSFC {
+			copy(coef, lin.coef[r])
+			lo, up = lo+lin.shift[r], up+lin.shift[r]
+			if lin.free {
+				lo, up = math.Inf(-1), math.Inf(1)
+			}
+			if E > 0 {
+				coef[n+K+2*r], coef[n+K+2*r+1] = 1, -1 // row + s_min - s_max
+			}
+		} else {
+			copy(coef, b.row(i))
+			for k := range pm.feed {
+				coef[n+k] = 0 // interesterification keeps the fatty acids
 			}
 		}
-		m.addRow(b.rowName[i], coef, b.rowLo[i], b.rowUp[i])
+		m.addRow(b.rowName[i], coef, lo, up)
 	}
 	for k, j := range pm.feed {
 		clear(coef)
@@ -474,10 +637,15 @@ func (pm *procModel) lp(sfc []float64, at *procPoint, delta float64) *model {
 	return m
 }
 
-// boxed reports whether a reactor column of m is held by a trust-region
-// bound rather than by its own.
+// boxed reports whether a column of m is held by a trust-region bound
+// rather than by its own.
 func boxed(m *model, pm *procModel) bool {
 	n := pm.lay.n()
+	for j := 0; j < n; j++ {
+		if m.colLo[j] > pm.base.colLo[j] || m.colUp[j] < pm.base.colUp[j] {
+			return true
+		}
+	}
 	for k, j := range pm.feed {
 		if m.colLo[n+k] > 0 || m.colUp[n+k] < pm.base.colUp[j] {
 			return true
@@ -492,9 +660,14 @@ type procPoint struct {
 	x, z []float64
 }
 
+func (pm *procModel) newPoint() *procPoint {
+	return &procPoint{x: make([]float64, pm.lay.n()), z: make([]float64, len(pm.feed))}
+}
+
+// point is the blend of an LP solution (total form: t then z).
 func (pm *procModel) point(sol []float64) *procPoint {
 	n := pm.lay.n()
-	p := &procPoint{x: make([]float64, n), z: make([]float64, len(pm.feed))}
+	p := pm.newPoint()
 	for j := range p.x {
 		p.x[j] = math.Max(sol[j], 0)
 	}
@@ -505,32 +678,27 @@ func (pm *procModel) point(sol []float64) *procPoint {
 	return p
 }
 
-// startProportions is the first guess of the feed proportions: the feed
-// stocks' shares among themselves in the start blend, or equal shares.
-func (pm *procModel) startProportions(x []float64) []float64 {
-	q := make([]float64, len(pm.feed))
-	var s float64
-	for k, j := range pm.feed {
-		q[k] = math.Max(x[j], 0) // the feed stock's total inclusion
-		s += q[k]
-	}
-	for k := range q {
-		if s > usedTol {
-			q[k] /= s
-		} else {
-			q[k] = 1 / float64(len(q))
+// dist is the largest difference between p and q in any LP column (a
+// stock's total inclusion or a reactor column), % of batch: the measure of
+// the trust-region box.
+func (pm *procModel) dist(p, q *procPoint) float64 {
+	d := maxDiff(p.z, q.z)
+	for j := range p.x {
+		tp, tq := p.x[j], q.x[j]
+		if k := pm.isFeed[j]; k >= 0 {
+			tp, tq = tp+p.z[k], tq+q.z[k]
 		}
+		d = math.Max(d, math.Abs(tp-tq))
 	}
-	return q
+	return d
 }
 
-// violation is how far the true SFC of point p (measured curves for
-// direct stocks, the reactor's model for the product) lies outside each
-// SFC limit: the largest and the sum, in % solid.
+// violation is how far the predicted SFC of point p lies outside each SFC
+// limit: the largest and the sum, in % solid.
 type viol struct{ max, sum float64 }
 
-func (pm *procModel) violation(ev *reactor, p *procPoint) (viol, error) {
-	vals, err := pm.trueSFC(ev, p)
+func (pm *procModel) violation(wb *wholeBlend, p *procPoint) (viol, error) {
+	vals, err := wb.rows(p)
 	if err != nil {
 		return viol{}, err
 	}
@@ -542,151 +710,6 @@ func (pm *procModel) violation(ev *reactor, p *procPoint) (viol, error) {
 		v.max = math.Max(v.max, e)
 	}
 	return v, nil
-}
-
-// trueSFC is the blend's SFC at each SFC row: Σ_j x_j S_j/100 over direct
-// stocks (measured) plus Z/100 · S(q) of the reacted feed.
-func (pm *procModel) trueSFC(ev *reactor, p *procPoint) ([]float64, error) {
-	out := make([]float64, len(pm.sfcRows))
-	for r, i := range pm.sfcRows {
-		for j, x := range p.x {
-			out[r] += pm.base.at(i, j) * x
-		}
-	}
-	var Z float64
-	for _, z := range p.z {
-		Z += z
-	}
-	if Z <= usedTol {
-		return out, nil
-	}
-	q := make([]float64, len(p.z))
-	for k, z := range p.z {
-		q[k] = z / Z
-	}
-	s, err := ev.sfc(q)
-	if err != nil {
-		return nil, err
-	}
-	for r := range out {
-		out[r] += Z / 100 * s[r]
-	}
-	return out, nil
-}
-
-// reactor evaluates S(q), the predicted SFC of the reacted feed of
-// proportions q, at the SFC limit temperatures. It keeps one sle.Set per
-// acid set (the acids present change only when a feed share is zero).
-type reactor struct {
-	stocks []*catalogue.Stock
-	method randomise.Method
-	temps  []float64
-	sets   map[string]*sle.Set
-	work   sle.Work
-	parts  []blend.Part
-}
-
-func newReactor(stocks []*catalogue.Stock, method randomise.Method, temps []float64) *reactor {
-	return &reactor{stocks: stocks, method: method, temps: temps, sets: map[string]*sle.Set{}}
-}
-
-// distribute is the TAG distribution of the feed of proportions q after the
-// reaction run to equilibrium (degree 1).
-func (ev *reactor) distribute(q []float64) (*randomise.Distribution, error) {
-	ev.parts = ev.parts[:0]
-	for k, v := range q {
-		if v > 0 {
-			ev.parts = append(ev.parts, blend.Part{Stock: ev.stocks[k], Pct: 100 * v})
-		}
-	}
-	d, err := randomise.Distribute(ev.parts, ev.method, 1)
-	if err != nil {
-		return nil, fmt.Errorf("[process] %s interesterification of the reactor feed: %w", ev.method, err)
-	}
-	return d, nil
-}
-
-// sfcAt is S(q) at the given temperatures.
-func (ev *reactor) sfcAt(q []float64, temps []float64) ([]float64, error) {
-	d, err := ev.distribute(q)
-	if err != nil {
-		return nil, err
-	}
-	var key strings.Builder
-	for _, a := range d.Acids {
-		key.WriteString(a.Key)
-		key.WriteByte(' ')
-	}
-	set, ok := ev.sets[key.String()]
-	if !ok {
-		set = sle.NewSet(d.Acids, sle.DefaultOptions())
-		ev.sets[key.String()] = set
-	}
-	out := make([]float64, len(temps))
-	if err := set.Curve(d.Mol, temps, out, &ev.work); err != nil {
-		return nil, fmt.Errorf("[process] predicted SFC of the reacted feed: %w", err)
-	}
-	return out, nil
-}
-
-func (ev *reactor) sfc(q []float64) ([]float64, error) { return ev.sfcAt(q, ev.temps) }
-
-// gradient is ∂g/∂z_k = S(q) + dS along (e_k - q), per % of batch: row r,
-// feed k at [r*K+k] (as procModel.measuredCoef). The directional derivative
-// is a central difference of step slpFDStep, (S(q + ε(e_k - q)) -
-// S(q - ε(e_k - q))) / 2ε, whose points stay within the feed proportions
-// while q_k >= ε/(1+ε); otherwise a forward difference.
-func (ev *reactor) gradient(q []float64) ([]float64, error) {
-	K, R := len(q), len(ev.temps)
-	s0, err := ev.sfc(q)
-	if err != nil {
-		return nil, err
-	}
-	out := make([]float64, R*K)
-	qe := make([]float64, K)
-	const h = slpFDStep
-	for k := range q {
-		for i := range qe {
-			qe[i] = (1 - h) * q[i]
-		}
-		qe[k] += h
-		s1, err := ev.sfc(qe)
-		if err != nil {
-			return nil, err
-		}
-		sb, span := s0, h
-		if q[k] >= h/(1+h) {
-			for i := range qe {
-				qe[i] = (1 + h) * q[i]
-			}
-			qe[k] -= h
-			if sb, err = ev.sfc(qe); err != nil {
-				return nil, err
-			}
-			span = 2 * h
-		}
-		for r := range s0 {
-			out[r*K+k] = (s0[r] + (s1[r]-sb[r])/span) / 100
-		}
-	}
-	return out, nil
-}
-
-// proportionsOf is the feed proportions of p, or q when the reactor is not
-// used.
-func (ev *reactor) proportionsOf(p *procPoint, q []float64) []float64 {
-	var Z float64
-	for _, z := range p.z {
-		Z += z
-	}
-	if Z <= usedTol {
-		return q
-	}
-	out := make([]float64, len(p.z))
-	for k, z := range p.z {
-		out[k] = z / Z
-	}
-	return out
 }
 
 func maxDiff(a, b []float64) float64 {
@@ -720,9 +743,43 @@ func (pm *procModel) infeasible(eng *engine, res *Result, base *model, why strin
 	return res, nil
 }
 
-// finish fills res from the optimal solution sol of the process LP m. ev is
+// infeasiblePredicted reports an impossible predicted-SFC spec with the
+// relaxation of the blend model without the reactor whose SFC rows are the
+// TAG model linearised at the physical mix of last (the last blend the
+// search tried; an equal mix of the allowed stocks when there is none).
+func (pm *procModel) infeasiblePredicted(eng *engine, wb *wholeBlend, res *Result, base *model, last *procPoint, why string) (*Result, error) {
+	res.Status = Infeasible
+	res.Process.Feed = nil
+	at := pm.equalMix()
+	if last != nil {
+		copy(at.x, last.x)
+		for k, j := range pm.feed {
+			at.x[j] += last.z[k]
+		}
+	}
+	lin, err := wb.linearise(at)
+	if err != nil {
+		return nil, fmt.Errorf("optimise %s: %w", specWhere(pm.lay.spec), err)
+	}
+	m := base.clone()
+	n := pm.lay.n()
+	for r, i := range pm.sfcRows {
+		copy(m.row(i), lin.coef[r][:n])
+		m.rowLo[i] += lin.shift[r]
+		m.rowUp[i] += lin.shift[r]
+	}
+	rel, err := pm.lay.relaxation(eng, m)
+	if err != nil {
+		return nil, err
+	}
+	res.Relaxation = rel
+	res.Notes = append(res.Notes, why+"the relaxation shown is that of the blend without the reactor, with the TAG model's SFC linearised at the last blend tried: an estimate; solve again with it to check")
+	return res, nil
+}
+
+// finish fills res from the optimal solution sol of the process LP m. wb is
 // nil for measured SFC. note, the model's caveats, goes first in res.Notes.
-func (pm *procModel) finish(res *Result, m *model, sol *solution, temps []float64, ev *reactor, note string) (*Result, error) {
+func (pm *procModel) finish(res *Result, m *model, sol *solution, temps []float64, wb *wholeBlend, note string) (*Result, error) {
 	lay, spec := pm.lay, pm.lay.spec
 	n, batch := lay.n(), spec.Batch
 	p := pm.point(sol.x)
@@ -769,48 +826,21 @@ func (pm *procModel) finish(res *Result, m *model, sol *solution, temps []float6
 	if err != nil {
 		return nil, fmt.Errorf("optimise %s: properties of the blend: %w", specWhere(spec), err)
 	}
-	var rowSFC []float64 // true SFC at each SFC row
-	if ev != nil {
-		rowSFC, err = pm.trueSFC(ev, p)
+	var rowSFC []float64 // predicted SFC at each SFC row
+	if wb != nil {
+		rowSFC, err = wb.rows(p)
 		if err != nil {
 			return nil, fmt.Errorf("optimise %s: %w", specWhere(spec), err)
 		}
-		if Z > 0 {
-			q := make([]float64, len(p.z))
-			for k, z := range p.z {
-				q[k] = z / Z
-			}
-			prod, err := ev.sfcAt(q, temps)
-			if err != nil {
-				return nil, fmt.Errorf("optimise %s: %w", specWhere(spec), err)
-			}
-			rep.SFC = make(map[float64]float64, len(temps))
-			for i, t := range temps {
-				rep.SFC[t] = prod[i]
-			}
-			d, err := ev.distribute(q)
-			if err == nil {
-				res.Notes = appendUnique(res.Notes, d.Notes...)
-			}
-			var direct []blend.Part
-			for j, x := range p.x {
-				if x > usedTol {
-					direct = append(direct, blend.Part{Stock: lay.cols[j].stock, Pct: x})
-				}
-			}
-			dsfc, missing := blend.SFC(direct, temps)
-			props.SFC, props.SFCMissing = map[float64]float64{}, missing
-			for i, t := range temps {
-				if _, lack := missing[t]; lack {
-					continue
-				}
-				var xs float64
-				for _, pt := range direct {
-					xs += pt.Pct
-				}
-				props.SFC[t] = (xs*dsfc[t] + Z*prod[i]) / 100
-			}
+		whole, product, err := wb.report(p, temps)
+		if err != nil {
+			return nil, fmt.Errorf("optimise %s: %w", specWhere(spec), err)
 		}
+		props.SFC, props.SFCMissing = whole, nil
+		if Z > 0 {
+			rep.SFC = product
+		}
+		res.Notes = appendUnique(res.Notes, wb.notes(parts)...)
 	} else if Z > 0 {
 		rep.SFC, _ = blend.SFC(feedParts(lay, pm, p), temps)
 	}
@@ -829,8 +859,10 @@ func (pm *procModel) finish(res *Result, m *model, sol *solution, temps []float6
 		if r, ok := sfcIdx[i]; ok && rowSFC != nil {
 			val = rowSFC[r]
 		}
+		// binding in the LP: at its row bound (moved by a linearisation's
+		// constant in a predicted SFC row)
 		if ri.bound.HasMin() {
-			lr := LimitReport{Name: ri.key + ".min", Value: val, Bound: ri.bound.Min, Binding: near(v, ri.bound.Min)}
+			lr := LimitReport{Name: ri.key + ".min", Value: val, Bound: ri.bound.Min, Binding: near(v, m.rowLo[i])}
 			if y > 0 {
 				lr.ShadowPrice = -y
 			}
@@ -838,7 +870,7 @@ func (pm *procModel) finish(res *Result, m *model, sol *solution, temps []float6
 			res.Limits = append(res.Limits, lr)
 		}
 		if ri.bound.HasMax() {
-			lr := LimitReport{Name: ri.key + ".max", Value: val, Bound: ri.bound.Max, Binding: near(v, ri.bound.Max)}
+			lr := LimitReport{Name: ri.key + ".max", Value: val, Bound: ri.bound.Max, Binding: near(v, m.rowUp[i])}
 			if y < 0 {
 				lr.ShadowPrice = -y
 			}

@@ -35,7 +35,7 @@ func solveWith(eng *engine, cat *catalogue.Catalogue, spec *catalogue.Spec, opt 
 // solveIn is solveWith taking stock profiles from pc (nil: computed) and
 // working buffers from sc (nil: allocated).
 func solveIn(eng *engine, pc *profileCache, sc *scratch, cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result, error) {
-	base, lay, err := buildIn(cat, spec, pc, sc)
+	base, lay, err := buildIn(cat, spec, pc, sc, false)
 	if err != nil {
 		return nil, err
 	}

@@ -2,6 +2,7 @@ package optimise
 
 import (
 	"math"
+	"strings"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -305,7 +306,10 @@ func TestProcessStepNoted(t *testing.T) {
 		Process: &catalogue.Process{Interesterify: []string{"hard", "soft"}, Method: "chemical"}}
 	r, err := Solve(twoStocks(), spec, Options{})
 	require.NoError(t, err)
-	require.Len(t, r.Notes, 1)
+	require.NotEmpty(t, r.Notes)
 	assert.Contains(t, r.Notes[0], "[process]")
+	joined := strings.Join(r.Notes, "\n")
+	assert.Contains(t, joined, "TAG model:", "the model used is named")
+	assert.Contains(t, joined, "RMS 7.9 % solid", "the measured error is stated")
 	assert.InDelta(t, 1150, r.CostPerTonne, 1e-9) // the paper case, unchanged
 }

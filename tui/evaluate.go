@@ -101,7 +101,7 @@ func Evaluate(sc *Scenario, rev int) (snap *Snapshot) {
 	// temperatures), so the chart shows exactly what the optimiser saw,
 	// including a reactor step's predicted SFC.
 	grid := gridTemps(spec, lo, hi)
-	res, err := optimise.Solve(cat, spec, optimise.Options{Temps: grid})
+	res, err := optimise.Solve(cat, spec, optimise.Options{Temps: grid, Model: sc.Model})
 	if err != nil {
 		snap.Err = err
 		return snap
@@ -112,7 +112,7 @@ func Evaluate(sc *Scenario, rev int) (snap *Snapshot) {
 	}
 	parts := blendParts(cat, res)
 	snap.Curve, snap.CurveGaps = resultCurve(res)
-	snap.TAG = tagView(parts, grid)
+	snap.TAG = tagView(parts, grid, sc.Model)
 	return snap
 }
 

@@ -34,8 +34,11 @@ var plainName = regexp.MustCompile(`^[A-Za-z0-9][A-Za-z0-9._-]{0,63}$`)
 // without ".toml") and never leaves Dir.
 func (f Files) ScenarioPath(name string) (string, error) {
 	name = strings.TrimSpace(name)
-	if name == "" {
+	switch name {
+	case "":
 		return "", fmt.Errorf("type a file name for the scenario")
+	case "-":
+		return "", fmt.Errorf("- (standard output) cannot be used in the workspace; type a file name")
 	}
 	if !f.Confined {
 		if f.Dir != "" && !filepath.IsAbs(name) {

@@ -14,6 +14,7 @@ type keyMap struct {
 	NewLimit, DropLimit   key.Binding
 	Relax                 key.Binding
 	Predict               key.Binding
+	Match                 key.Binding
 	Undo, Redo            key.Binding
 	Save, Open, WriteBack key.Binding
 	Quit, Keys            key.Binding
@@ -40,6 +41,7 @@ func newKeyMap() keyMap {
 		DropLimit: key.NewBinding(key.WithKeys("d", "delete"), key.WithHelp("d", "drop")),
 		Relax:     key.NewBinding(key.WithKeys("R"), key.WithHelp("R", "relax")),
 		Predict:   key.NewBinding(key.WithKeys("p"), key.WithHelp("p", "predicted")),
+		Match:     key.NewBinding(key.WithKeys("m"), key.WithHelp("m", "match a fat")),
 		Undo:      key.NewBinding(key.WithKeys("u", "ctrl+z"), key.WithHelp("u", "undo")),
 		Redo:      key.NewBinding(key.WithKeys("U", "ctrl+y"), key.WithHelp("U", "redo")),
 		Save:      key.NewBinding(key.WithKeys("s", "ctrl+s"), key.WithHelp("s", "save")),
@@ -70,7 +72,7 @@ func (k keyMap) helpFor(p panel, infeasible bool) []key.Binding {
 	case panelLimits:
 		out = append(out, k.Left, k.Edit, k.Raise, k.NewLimit, k.DropLimit)
 	case panelSFC:
-		out = append(out, k.Predict, k.Panel[0])
+		out = append(out, k.Predict, k.Match, k.Panel[0])
 	default:
 		out = append(out, k.Panel[0], k.Redo, k.Open, k.WriteBack)
 	}
@@ -90,6 +92,7 @@ func (k keyMap) keyGroups() [][2]string {
 		{"d  delete", "drop the limit under the cursor"},
 		{"R", "apply the relaxation suggested for an impossible spec"},
 		{"p", "SFC curve: overlay the TAG model's prediction, as blended / chemical IE / enzymatic IE / off"},
+		{"m", "match a fat: its measured curve ± a tolerance becomes the SFC bands, trans <= 1, the fat left out"},
 		{"u ctrl+z / U ctrl+y", "undo / redo an edit"},
 		{"s / o", "save the scenario as one TOML file / open one"},
 		{"W", "write stocks and spec back to the files they came from"},

@@ -48,6 +48,7 @@ const (
 	promptNewLimit
 	promptSave
 	promptOpen
+	promptMatch
 )
 
 type prompt struct {
@@ -305,6 +306,8 @@ func (m *Model) key(k tea.KeyPressMsg) tea.Cmd {
 		return m.ask(prompt{kind: promptSave}, "save scenario as: ", m.suggestPath())
 	case key.Matches(k, ks.Open):
 		return m.ask(prompt{kind: promptOpen}, "open scenario: ", m.lastPath)
+	case key.Matches(k, ks.Match):
+		return m.ask(prompt{kind: promptMatch}, "match which fat (id and tolerance in % solid, e.g. ph-soy 3): ", m.matchGuess())
 	case key.Matches(k, ks.WriteBack):
 		return m.writeBack()
 	default:
@@ -450,7 +453,7 @@ func parseValue(s string) (float64, error) {
 		s = strings.Replace(s, ",", ".", 1) // decimal comma
 	}
 	v, err := strconv.ParseFloat(s, 64)
-	if err != nil || math.IsInf(v, 0) {
+	if err != nil || math.IsInf(v, 0) || math.IsNaN(v) {
 		return 0, fmt.Errorf("%q is not a number", s)
 	}
 	return v, nil
@@ -508,8 +511,52 @@ func (m *Model) finishPrompt(p prompt, text string) tea.Cmd {
 		return m.save(text)
 	case promptOpen:
 		return m.open(text)
+	case promptMatch:
+		id, tol, err := parseMatch(text)
+		if err != nil {
+			m.fail(err)
+			return nil
+		}
+		next, err := m.sc.WithMatch(id, tol)
+		if err != nil {
+			m.fail(err)
+			return nil
+		}
+		m.panel = panelSFC
+		return m.apply(next, fmt.Sprintf("Matching %s: SFC bands are its measured curve ±%s %% solid, trans at most 1 %%, %s left out (u undoes).", id, showValue(tol), id))
 	}
 	return nil
+}
+
+// matchGuess offers the stock with the most trans fat (over 1 %) and a
+// measured curve: a partially hardened fat is what one replaces.
+func (m *Model) matchGuess() string {
+	best, most := "", 1.0
+	for _, st := range m.sc.Catalogue.Stocks {
+		if tr := st.FattyAcids["C18:1t"] + st.FattyAcids["C18:2t"]; len(st.SFC) > 0 && tr > most {
+			best, most = st.ID, tr
+		}
+	}
+	if best == "" {
+		return ""
+	}
+	return best + " 3"
+}
+
+// parseMatch reads "id" or "id tolerance" (default 3 % solid).
+func parseMatch(text string) (string, float64, error) {
+	f := strings.Fields(text)
+	switch len(f) {
+	case 1:
+		return f[0], 3, nil
+	case 2:
+		v, err := strconv.ParseFloat(f[1], 64)
+		if err != nil || math.IsNaN(v) || v < 0 || v > 100 {
+			return "", 0, catalogue.Badf("tolerance %q is not %% solid within 0..100; write e.g. ph-soy 3", f[1])
+		}
+		return f[0], v, nil
+	}
+	return "", 0, catalogue.Badf("give the stock id of the fat to match and a tolerance, e.g. ph-soy 3")
 }
 
 func sideWord(r Row, s Side) string {
@@ -703,20 +750,26 @@ func (m *Model) save(name string) tea.Cmd {
 		m.fail(err)
 		return nil
 	}
-	// saving over an existing file keeps what was there as a backup
-	bak, err := replaceKeepingBackup(path, data, time.Now())
+	// saving over an existing file keeps what was there as a backup; the
+	// stocks and spec files the session started from are never saved over
+	w, err := m.output(path, m.files.StocksPath, m.files.SpecPath).Write(data)
 	if err != nil {
 		m.fail(fmt.Errorf("saving scenario: %w", err))
 		return nil
 	}
 	m.lastPath = strings.TrimSpace(name)
 	m.dirty = false
-	if bak != "" {
-		m.info("Old file kept as " + m.shownPath(bak) + ". Saved the scenario to " + m.shownPath(path) + ".")
+	if w.Backup != "" {
+		m.info("Old file kept as " + m.shownPath(w.Backup) + ". Saved the scenario to " + m.shownPath(path) + ".")
 	} else {
 		m.info("Saved the scenario to " + m.shownPath(path) + ".")
 	}
 	return nil
+}
+
+// output is a file the workspace writes, never over the given inputs.
+func (m *Model) output(path string, inputs ...string) catalogue.Output {
+	return catalogue.Output{Path: path, Inputs: inputs, Now: time.Now()}
 }
 
 func (m *Model) open(name string) tea.Cmd {
@@ -730,6 +783,7 @@ func (m *Model) open(name string) tea.Cmd {
 		m.fail(firstLines(err, 2))
 		return nil
 	}
+	sc.Model = m.sc.Model // the TAG model is the session's, not the file's
 	m.lastPath = strings.TrimSpace(name)
 	cmd := m.apply(sc, "Opened "+m.shownPath(path)+" (u goes back to what you had).")
 	m.dirty = false
@@ -743,28 +797,30 @@ func (m *Model) writeBack() tea.Cmd {
 		return nil
 	}
 	var wrote, kept []string
-	now := time.Now()
-	if m.files.StocksPath != "" {
-		bak, err := writeStocksFile(m.files.StocksPath, m.sc.Catalogue, now)
+	_, spec := m.sc.Effective()
+	for _, f := range []struct {
+		path, other string
+		encode      func() ([]byte, error)
+	}{
+		{m.files.StocksPath, m.files.SpecPath, func() ([]byte, error) { return encodeStocks(m.sc.Catalogue) }},
+		{m.files.SpecPath, m.files.StocksPath, func() ([]byte, error) { return encodeSpec(spec) }},
+	} {
+		if f.path == "" {
+			continue
+		}
+		data, err := f.encode()
 		if err != nil {
 			m.fail(err)
 			return nil
 		}
-		wrote = append(wrote, m.shownPath(m.files.StocksPath))
-		if bak != "" {
-			kept = append(kept, m.shownPath(bak))
-		}
-	}
-	if m.files.SpecPath != "" {
-		_, spec := m.sc.Effective()
-		bak, err := writeSpecFile(m.files.SpecPath, spec, now)
+		w, err := m.output(f.path, f.other).Write(data)
 		if err != nil {
 			m.fail(err)
 			return nil
 		}
-		wrote = append(wrote, m.shownPath(m.files.SpecPath))
-		if bak != "" {
-			kept = append(kept, m.shownPath(bak))
+		wrote = append(wrote, m.shownPath(f.path))
+		if w.Backup != "" {
+			kept = append(kept, m.shownPath(w.Backup))
 		}
 	}
 	m.dirty = false

@@ -7,7 +7,6 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
-	"time"
 
 	tea "charm.land/bubbletea/v2"
 	"github.com/charmbracelet/x/ansi"
@@ -131,6 +130,25 @@ func TestNudgeAndBadInput(t *testing.T) {
 	assert.False(t, h.Limited())
 }
 
+// A price, amount or limit typed beyond the accepted magnitudes (README
+// "Accepted magnitudes") is refused on the status line and changes nothing.
+func TestTypedMagnitudesRefused(t *testing.T) {
+	d := newDriver(t, demoModel(t, "laminating", Files{}), 80, 24)
+	i := stockIndex(t, d.m, "palm")
+	rev := d.m.rev
+	for _, v := range []string{"1e25", "1e-320", "NaN", "-5", "1e400"} {
+		d.keys("2" + "g" + downs(i) + "<enter><ctrl+u>" + v + "<enter>")
+		assert.Equal(t, 1000.0, price(d.m, "palm"), v)
+		assert.True(t, d.m.msgError, v)
+	}
+	d.keys("<right><enter><ctrl+u>1e308<enter>")
+	assert.Contains(t, d.m.Message(), "outside the accepted range 0, or 0.001 to 1e6 t")
+	d.keys("3g<enter><ctrl+u>1e-320<enter>")
+	assert.Contains(t, d.m.Message(), "batch = 1e-320 is outside the accepted range 0.001 to 1e6 t")
+	assert.Equal(t, rev, d.m.rev, "no refused value became an edit")
+	d.requireFrame(80, 24)
+}
+
 func TestLeaveOutAStock(t *testing.T) {
 	d := newDriver(t, demoModel(t, "laminating", Files{}), 80, 24)
 	top := d.m.Snapshot().Result.Blend[0].Stock
@@ -215,7 +233,7 @@ func TestBatchEdit(t *testing.T) {
 	assert.InDelta(t, 40.0, d.m.Snapshot().Result.Batch, 1e-9)
 	d.keys("<enter><ctrl+u>0<enter>")
 	assert.Equal(t, 40.0, d.m.Scenario().Spec.Batch)
-	assert.Contains(t, d.screen(), "above zero")
+	assert.Contains(t, d.screen(), "outside the accepted range")
 }
 
 func TestResizeKeepsTheFrame(t *testing.T) {
@@ -299,18 +317,51 @@ func TestWriteBack(t *testing.T) {
 	assert.Equal(t, files["laminating.toml"], raw)
 }
 
-// Writing back what is already on disk makes no backup.
-func TestReplaceKeepingBackupSkipsSameContent(t *testing.T) {
-	path := filepath.Join(t.TempDir(), "f.toml")
-	require.NoError(t, os.WriteFile(path, []byte("a = 1\n"), 0o600))
-	bak, err := replaceKeepingBackup(path, []byte("a = 1\n"), time.Now())
+// The workspace's save and write-back follow the rules of every output
+// (catalogue.Output): the stocks and spec it started from are never saved
+// over, "-" and folders are refused, a symlinked stocks file is written
+// through to its target, and writing back what is on disk makes no backup.
+func TestWorkspaceWritesByTheOutputRules(t *testing.T) {
+	dir := t.TempDir()
+	files := catalogue.DemoFiles()
+	real := filepath.Join(dir, "real-stocks.toml")
+	require.NoError(t, os.WriteFile(real, files["stocks.toml"], 0o600))
+	stocks := filepath.Join(dir, "stocks.toml")
+	require.NoError(t, os.Symlink(real, stocks))
+	spec := filepath.Join(dir, "spec.toml")
+	require.NoError(t, os.WriteFile(spec, files["laminating.toml"], 0o644))
+	d := newDriver(t, demoModel(t, "laminating", Files{Dir: dir, StocksPath: stocks, SpecPath: spec}), 80, 24)
+	for _, name := range []string{"stocks.toml", "real-stocks.toml", spec} {
+		d.keys("s<ctrl+u>" + name + "<enter>")
+		assert.Contains(t, d.m.Message(), "an input of this run", name)
+	}
+	d.keys("s<ctrl+u>-<enter>")
+	assert.Contains(t, d.m.Message(), "standard output")
+	require.NoError(t, os.Mkdir(filepath.Join(dir, "folder"), 0o755))
+	d.keys("s<ctrl+u>folder<enter>")
+	assert.Contains(t, d.m.Message(), "is a folder")
+	assert.Equal(t, files["stocks.toml"], []byte(readFile(t, real)), "nothing was written over the stocks")
+
+	// write back unchanged: the spec file is rewritten, the stocks through the
+	// link, and neither needs a backup once it holds what would be written
+	d.keys("W")
+	require.False(t, d.m.msgError, d.m.Message())
+	d.keys("W")
+	assert.NotContains(t, d.m.Message(), "Old files kept", "the second write-back changes nothing on disk")
+	lst, err := os.Lstat(stocks)
 	require.NoError(t, err)
-	assert.Empty(t, bak)
-	bak, err = replaceKeepingBackup(path, []byte("a = 2\n"), time.Now())
+	assert.NotZero(t, lst.Mode()&os.ModeSymlink, "the stocks file is still a link")
+	baks, _ := filepath.Glob(real + ".*.bak")
+	assert.Len(t, baks, 1, "the backup of the real stocks file sits beside it")
+	st, _ := os.Stat(real)
+	assert.Equal(t, os.FileMode(0o600), st.Mode().Perm(), "the rewritten file keeps its mode")
+}
+
+func readFile(t *testing.T, path string) string {
+	t.Helper()
+	b, err := os.ReadFile(path)
 	require.NoError(t, err)
-	st, err := os.Stat(bak)
-	require.NoError(t, err)
-	assert.Equal(t, os.FileMode(0o600), st.Mode().Perm(), "the backup keeps the original's mode")
+	return string(b)
 }
 
 func TestQuitAsksWhileUnsaved(t *testing.T) {
@@ -496,4 +547,69 @@ func TestReactorShownAndCharted(t *testing.T) {
 		}
 	}
 	d.requireFrame(80, 24)
+}
+
+// A calibration given to the session (Scenario.Model) is the model the TAG
+// panel and the overlay use: the predictions equal sle's with those options
+// and differ from the uncalibrated ones.
+func TestSessionCalibrationReachesPredictions(t *testing.T) {
+	sc := NewScenario(catalogue.DemoStocks(), catalogue.DemoSpecs()[0])
+	sc.Model = sle.Options{Shift: sle.Shifts{3, 2, 2, 1, 0}}
+	snap := Evaluate(sc, 1)
+	require.True(t, snap.Feasible(), "%v", snap.Err)
+	base := Evaluate(NewScenario(catalogue.DemoStocks(), catalogue.DemoSpecs()[0]), 1)
+	parts := blendParts(sc.Catalogue, snap.Result)
+	col, ok := snap.TAG.Column(randomise.Native)
+	require.True(t, ok)
+	col0, _ := base.TAG.Column(randomise.Native)
+	var temps []float64
+	for _, p := range col.Predicted {
+		temps = append(temps, p.Temp)
+	}
+	want, _, err := sle.PredictParts(parts, randomise.Native, 1, temps, sc.Model)
+	require.NoError(t, err)
+	differs := false
+	for i, p := range col.Predicted {
+		assert.InDelta(t, want[p.Temp], p.Solid, 1e-9)
+		differs = differs || math.Abs(p.Solid-col0.Predicted[i].Solid) > 0.1
+	}
+	assert.True(t, differs, "the calibration changes the prediction")
+	assert.Equal(t, sc.Model, sc.Clone().Model, "clones keep the session's model")
+}
+
+// m matches a fat: the offered default is the demo's trans-containing stock,
+// the scenario's SFC limits become its measured curve ± the tolerance, it is
+// left out, trans is held at most 1 %, and the blend costs what
+// optimise.Replace finds with the same spec as base; u undoes it.
+func TestMatchMode(t *testing.T) {
+	d := newDriver(t, demoModel(t, "laminating", Files{}), 100, 30)
+	before := d.m.Scenario()
+	d.keys("m")
+	assert.Contains(t, d.screen(), "ph-soy 3", "the partially hardened stock is offered")
+	d.keys("<enter>")
+	sc := d.m.Scenario()
+	inc, _ := sc.Catalogue.Find("ph-soy")
+	require.Len(t, sc.Spec.SFC, len(inc.SFC))
+	for i, p := range inc.SFC {
+		assert.InDelta(t, math.Max(0, p.Solid-3), sc.Spec.SFC[i].Min, 1e-12)
+		assert.InDelta(t, p.Solid+3, sc.Spec.SFC[i].Max, 1e-12)
+	}
+	snap := d.m.Snapshot()
+	require.True(t, snap.Feasible(), "%v", snap.Err)
+	cat, spec := before.Effective()
+	want, err := optimise.Replace(cat, optimise.Replacement{Incumbent: "ph-soy", Tolerance: 3, TransMax: 1, Base: spec}, optimise.Options{})
+	require.NoError(t, err)
+	require.Equal(t, optimise.Optimal, want.Status)
+	assert.InDelta(t, want.Result.CostPerTonne, snap.Result.CostPerTonne, 1e-6)
+	for _, l := range snap.Result.Blend {
+		assert.NotEqual(t, "ph-soy", l.Stock)
+	}
+	assert.Contains(t, d.screen(), "Matching ph-soy")
+	d.requireFrame(100, 30)
+	d.keys("u")
+	assert.Equal(t, before.Spec.SFC, d.m.Scenario().Spec.SFC, "undo restores the spec's own bands")
+	// a bad answer is refused with a message, the scenario unchanged
+	d.keys("m<ctrl+u>lard 3<enter>")
+	assert.Contains(t, d.screen(), "lard")
+	assert.Equal(t, before.Spec.SFC, d.m.Scenario().Spec.SFC)
 }

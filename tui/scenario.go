@@ -6,6 +6,7 @@ import (
 	"sort"
 	"strings"
 
+	"lipoplan/blend/sle"
 	"lipoplan/catalogue"
 	"lipoplan/optimise"
 )
@@ -18,6 +19,10 @@ type Scenario struct {
 	Catalogue *catalogue.Catalogue
 	Spec      *catalogue.Spec
 	Excluded  map[string]bool // stock id -> left out of the blend
+	// Model is the TAG model's options for predicted SFC (a calibration);
+	// the zero value is the uncalibrated default. It is a session setting,
+	// not saved in scenario files.
+	Model sle.Options
 }
 
 // NewScenario wraps deep copies of cat and spec, so edits never reach the
@@ -34,7 +39,7 @@ func (s *Scenario) Clone() *Scenario {
 			ex[k] = true
 		}
 	}
-	return &Scenario{Catalogue: s.Catalogue.Clone(), Spec: s.Spec.Clone(), Excluded: ex}
+	return &Scenario{Catalogue: s.Catalogue.Clone(), Spec: s.Spec.Clone(), Excluded: ex, Model: s.Model}
 }
 
 // ExcludedIDs lists the left-out stocks in id order.
@@ -180,12 +185,19 @@ func (sd Side) String() string {
 }
 
 // WithBound returns a new scenario with one side of row r set to v
-// (NaN or ±Inf clears that side). Single-value rows ignore side.
+// (NaN or ±Inf clears that side). Single-value rows ignore side. A value
+// outside its quantity's accepted range is refused with the loader's words
+// (catalogue.Quantity.Check).
 func (s *Scenario) WithBound(r Row, side Side, v float64) (*Scenario, error) {
 	out := s.Clone()
 	sp := out.Spec
 	clear := math.IsNaN(v) || math.IsInf(v, 0)
 	set := func(b *catalogue.Bound) error {
+		if !clear {
+			if err := r.quantity().Check(r.Label+" "+side.String(), v); err != nil {
+				return err
+			}
+		}
 		switch {
 		case side == Min && clear:
 			b.Min = math.Inf(-1)
@@ -207,24 +219,27 @@ func (s *Scenario) WithBound(r Row, side Side, v float64) (*Scenario, error) {
 	var err error
 	switch r.Kind {
 	case RowBatch:
-		if clear || v <= 0 {
+		if clear {
 			return nil, fmt.Errorf("batch must be a number of tonnes above zero")
+		}
+		if err := catalogue.QtyTonnes.Check("batch", v); err != nil {
+			return nil, err
 		}
 		sp.Batch = v
 	case RowMaxStocks:
 		if clear {
 			v = 0
 		}
-		if v < 0 || v != math.Trunc(v) {
-			return nil, fmt.Errorf("max stocks must be a whole number (0 = no rule)")
+		if v < 0 || v != math.Trunc(v) || v > maxStocksRule {
+			return nil, fmt.Errorf("max stocks must be a whole number from 0 (no rule) to %g", float64(maxStocksRule))
 		}
 		sp.Rules.MaxStocks = int(v)
 	case RowMinIfUsed:
 		if clear {
 			v = 0
 		}
-		if v < 0 || v > 100 {
-			return nil, fmt.Errorf("min if used must be between 0 and 100 %% of batch")
+		if err := catalogue.QtyPercent.Check("min if used", v); err != nil {
+			return nil, err
 		}
 		sp.Rules.MinIfUsed = v
 	case RowLimit:
@@ -236,16 +251,10 @@ func (s *Scenario) WithBound(r Row, side Side, v float64) (*Scenario, error) {
 		if r.index >= len(sp.SFC) {
 			return nil, fmt.Errorf("limit %s is gone", r.Key)
 		}
-		if !clear && (v < 0 || v > 100) {
-			return nil, fmt.Errorf("%s must be between 0 and 100 %% solid", r.Label)
-		}
 		err = set(&sp.SFC[r.index].Bound)
 	case RowUse:
 		if r.index >= len(sp.Use) {
 			return nil, fmt.Errorf("limit %s is gone", r.Key)
-		}
-		if !clear && (v < 0 || v > 100) {
-			return nil, fmt.Errorf("%s must be between 0 and 100 %% of batch", r.Label)
 		}
 		err = set(&sp.Use[r.index].Bound)
 	}
@@ -253,6 +262,17 @@ func (s *Scenario) WithBound(r Row, side Side, v float64) (*Scenario, error) {
 		return nil, err
 	}
 	return out, nil
+}
+
+// maxStocksRule is the largest max_stocks the loader accepts.
+const maxStocksRule = 1_000_000
+
+// quantity is the kind of value a min/max row holds.
+func (r Row) quantity() catalogue.Quantity {
+	if r.Kind == RowLimit {
+		return catalogue.LimitQuantity(r.Key)
+	}
+	return catalogue.QtyPercent
 }
 
 // WithoutRow returns a new scenario without limit row r (batch and rules
@@ -367,16 +387,15 @@ func (s *Scenario) WithStock(id string, f StockField, v float64) (*Scenario, err
 	}
 	switch f {
 	case FieldPrice:
-		if math.IsNaN(v) || math.IsInf(v, 0) || v < 0 {
-			return nil, fmt.Errorf("price of %s must be a number of %s per tonne, 0 or more", id, out.Catalogue.Currency)
+		if err := catalogue.QtyPrice.Check("price of "+id, v); err != nil {
+			return nil, err
 		}
 		st.Price = v
 	case FieldAvailable:
-		if math.IsNaN(v) {
+		if math.IsNaN(v) || math.IsInf(v, 1) {
 			v = math.Inf(1)
-		}
-		if v < 0 {
-			return nil, fmt.Errorf("availability of %s must be tonnes on hand, 0 or more (empty = unlimited)", id)
+		} else if err := catalogue.QtyOnHand.Check(id+" on hand", v); err != nil {
+			return nil, fmt.Errorf("%w (empty = unlimited)", err)
 		}
 		st.Available = v
 	}
@@ -395,6 +414,27 @@ func (s *Scenario) WithAllowed(id string, allowed bool) (*Scenario, error) {
 	} else {
 		out.Excluded[id] = true
 	}
+	return out, nil
+}
+
+// WithMatch is the scenario set to replace stock id: its measured curve ±
+// tol (% solid) becomes the SFC limits, trans is held at most 1 %, and the
+// stock is left out (optimise.ReplacementSpec, as lipoplan replace solves).
+// The spec's other limits and [use] bounds stay.
+func (s *Scenario) WithMatch(id string, tol float64) (*Scenario, error) {
+	spec, err := optimise.ReplacementSpec(s.Catalogue, optimise.Replacement{Incumbent: id, Tolerance: tol, TransMax: 1, Base: s.Spec})
+	if err != nil {
+		return nil, err
+	}
+	out := s.Clone()
+	spec.Name = s.Spec.Name
+	spec.Batch = s.Spec.Batch
+	spec.Process = s.Spec.Process
+	if spec.Process != nil {
+		p := *s.Spec.Process
+		spec.Process = &p
+	}
+	out.Spec = spec
 	return out, nil
 }
 

@@ -5,7 +5,9 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"syscall"
 	"testing"
+	"time"
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
@@ -86,9 +88,9 @@ func TestBoundChecks(t *testing.T) {
 	_, err := sc.WithBound(r, Min, 50)
 	assert.ErrorContains(t, err, "above its maximum")
 	_, err = sc.WithBound(r, Max, 120)
-	assert.ErrorContains(t, err, "between 0 and 100")
+	assert.ErrorContains(t, err, "outside the accepted range 0 to 100 %")
 	_, err = sc.WithBound(rowByKey(t, sc, "batch"), Max, 0)
-	assert.ErrorContains(t, err, "above zero")
+	assert.ErrorContains(t, err, "outside the accepted range 0.001 to 1e6 t")
 	_, err = sc.WithBound(rowByKey(t, sc, "rules.max_stocks"), Max, 2.5)
 	assert.ErrorContains(t, err, "whole number")
 	cleared, err := sc.WithBound(r, Min, math.NaN())
@@ -100,6 +102,43 @@ func TestBoundChecks(t *testing.T) {
 	require.NoError(t, err)
 	h, _ := unl.Catalogue.Find("hosun")
 	assert.False(t, h.Limited())
+}
+
+// Every workspace edit refuses a magnitude no plant has with the loader's own
+// check and words (catalogue.Quantity.Check; README "Accepted magnitudes"),
+// and leaves the scenario as it was.
+func TestEditsRefuseMagnitudes(t *testing.T) {
+	sc := demoScenario(t, "laminating")
+	sc, _, err := sc.WithNewRow("iv")
+	require.NoError(t, err)
+	for _, tc := range []struct {
+		name string
+		edit func() (*Scenario, error)
+		q    catalogue.Quantity
+	}{
+		{"price 1e25", func() (*Scenario, error) { return sc.WithStock("palm", FieldPrice, 1e25) }, catalogue.QtyPrice},
+		{"price 1e-320", func() (*Scenario, error) { return sc.WithStock("palm", FieldPrice, 1e-320) }, catalogue.QtyPrice},
+		{"on hand 1e308", func() (*Scenario, error) { return sc.WithStock("hosun", FieldAvailable, 1e308) }, catalogue.QtyOnHand},
+		{"batch 1e-320", func() (*Scenario, error) { return sc.WithBound(rowByKey(t, sc, "batch"), Max, 1e-320) }, catalogue.QtyTonnes},
+		{"batch 1e308", func() (*Scenario, error) { return sc.WithBound(rowByKey(t, sc, "batch"), Max, 1e308) }, catalogue.QtyTonnes},
+		{"iv max 1e25", func() (*Scenario, error) { return sc.WithBound(rowByKey(t, sc, "iv"), Max, 1e25) }, catalogue.QtyIV},
+		{"sfc min -1", func() (*Scenario, error) { return sc.WithBound(rowByKey(t, sc, "sfc.20"), Min, -1) }, catalogue.QtyPercent},
+		{"min if used 1e25", func() (*Scenario, error) {
+			return sc.WithBound(rowByKey(t, sc, "rules.min_if_used"), Max, 1e25)
+		}, catalogue.QtyPercent},
+	} {
+		next, err := tc.edit()
+		require.Error(t, err, tc.name)
+		assert.Nil(t, next, tc.name)
+		assert.Contains(t, err.Error(), tc.q.Range().String(), "%s: the loader's range, in its words", tc.name)
+	}
+	_, err = sc.WithBound(rowByKey(t, sc, "rules.max_stocks"), Max, 1e300)
+	assert.ErrorContains(t, err, "whole number from 0")
+	// the same value is refused in the same words by the catalogue loader
+	_, err = sc.WithStock("palm", FieldPrice, 1e25)
+	assert.EqualError(t, err, catalogue.QtyPrice.Check("price of palm", 1e25).Error())
+	p, _ := sc.Catalogue.Find("palm")
+	assert.Less(t, p.Price, 1e9, "the scenario is unchanged")
 }
 
 func TestNewAndDropRows(t *testing.T) {
@@ -182,6 +221,8 @@ func TestScenarioFileBad(t *testing.T) {
 		"not toml":          "this is = = not toml",
 		"unknown stock key": replaceOnce(string(good), "[[stocks.stock]]\n", "[[stocks.stock]]\nflavour = \"nutty\"\n"),
 		"excluded unknown":  replaceOnce(string(good), "excluded = []", `excluded = ["nosuch"]`),
+		"nested too deep":   "[scenario]\nformat = 1\nx = " + strings.Repeat("{ a = ", 3000) + "1" + strings.Repeat(" }", 3000) + "\n",
+		"huge price":        replaceOnce(string(good), "price = 1150.0", "price = 1e25"),
 	}
 	for name, body := range cases {
 		_, err := DecodeScenario("bad.toml", []byte(body))
@@ -189,6 +230,25 @@ func TestScenarioFileBad(t *testing.T) {
 		assert.True(t, catalogue.IsBadInput(err), "%s: %v", name, err)
 		assert.Contains(t, err.Error(), "bad.toml", name)
 	}
+}
+
+// A scenario name that is a FIFO or a folder is refused at once (the
+// loaders' rule, catalogue.ReadInput), naming the file.
+func TestScenarioFileNotRegular(t *testing.T) {
+	dir := t.TempDir()
+	fifo := filepath.Join(dir, "pipe.toml")
+	require.NoError(t, syscall.Mkfifo(fifo, 0o600))
+	done := make(chan error, 1)
+	go func() { _, err := LoadScenario(fifo); done <- err }()
+	select {
+	case err := <-done:
+		assert.True(t, catalogue.IsBadInput(err))
+		assert.ErrorContains(t, err, fifo+": it is a named pipe (FIFO), not a regular file")
+	case <-time.After(20 * time.Second):
+		t.Fatal("LoadScenario waits on a FIFO")
+	}
+	_, err := LoadScenario(dir)
+	assert.ErrorContains(t, err, "it is a folder")
 }
 
 func replaceOnce(s, old, new string) string {

@@ -2,14 +2,11 @@ package tui
 
 import (
 	"bytes"
-	"errors"
 	"fmt"
-	"io/fs"
 	"os"
 	"regexp"
 	"sort"
 	"strings"
-	"time"
 
 	"github.com/BurntSushi/toml"
 
@@ -38,8 +35,8 @@ import (
 // The [stocks] and [spec] sections are written by catalogue.WriteStocks and
 // catalogue.WriteSpec with their table headers moved under the section, and
 // read back by catalogue.ParseStocks and catalogue.ParseSpec, so they obey
-// the same strict rules (unknown keys are errors). The file is written to a
-// temporary file in the same folder and renamed (catalogue.WriteFileAtomic).
+// the same strict rules (unknown keys are errors). The file is written by the
+// rules of every output (catalogue.Output): atomically, keeping a backup.
 
 const scenarioFormat = 1
 
@@ -87,13 +84,14 @@ func EncodeScenario(sc *Scenario) ([]byte, error) {
 	return b.Bytes(), nil
 }
 
-// SaveScenario writes sc to path atomically.
+// SaveScenario writes sc to path by the rules of every output
+// (catalogue.Output): atomically, keeping a file it replaces as a backup.
 func SaveScenario(path string, sc *Scenario) error {
 	data, err := EncodeScenario(sc)
 	if err != nil {
 		return err
 	}
-	if err := catalogue.WriteFileAtomic(path, data, 0o644); err != nil {
+	if _, err := (catalogue.Output{Path: path}).Write(data); err != nil {
 		return fmt.Errorf("saving scenario: %w", err)
 	}
 	return nil
@@ -111,6 +109,9 @@ type rawScenario struct {
 // DecodeScenario reads a scenario file's bytes; name is used in messages.
 // Every problem is a catalogue.BadInput naming the file and the section.
 func DecodeScenario(name string, data []byte) (*Scenario, error) {
+	if err := catalogue.CheckTOMLDepth(data); err != nil {
+		return nil, catalogue.Badf("%s: %v", name, err)
+	}
 	var raw rawScenario
 	md, err := toml.Decode(string(data), &raw)
 	if err != nil {
@@ -171,7 +172,7 @@ func reencode(m map[string]any) ([]byte, error) {
 
 // LoadScenario reads a scenario file.
 func LoadScenario(path string) (*Scenario, error) {
-	data, err := os.ReadFile(path)
+	data, err := catalogue.ReadInput(path)
 	if err != nil {
 		return nil, catalogue.Badf("cannot read scenario %s: %v", path, unwrapPathErr(err))
 	}
@@ -185,47 +186,15 @@ func unwrapPathErr(err error) error {
 	return err
 }
 
-func writeStocksFile(path string, cat *catalogue.Catalogue, now time.Time) (backup string, err error) {
+// encodeStocks and encodeSpec give the bytes write-back puts in the files.
+func encodeStocks(cat *catalogue.Catalogue) ([]byte, error) {
 	var b bytes.Buffer
-	if err := catalogue.WriteStocks(&b, cat); err != nil {
-		return "", err
-	}
-	return replaceKeepingBackup(path, b.Bytes(), now)
+	err := catalogue.WriteStocks(&b, cat)
+	return b.Bytes(), err
 }
 
-func writeSpecFile(path string, spec *catalogue.Spec, now time.Time) (backup string, err error) {
+func encodeSpec(spec *catalogue.Spec) ([]byte, error) {
 	var b bytes.Buffer
-	if err := catalogue.WriteSpec(&b, spec); err != nil {
-		return "", err
-	}
-	return replaceKeepingBackup(path, b.Bytes(), now)
-}
-
-// replaceKeepingBackup writes data to path atomically. The file it replaces
-// (with the user's comments and layout, which the TOML writer cannot keep)
-// is first copied, also atomically, to a new backup beside it named by the
-// time, so nothing the user wrote is lost; backup is "" when path did not
-// exist or already held data.
-func replaceKeepingBackup(path string, data []byte, now time.Time) (backup string, err error) {
-	old, err := os.ReadFile(path)
-	switch {
-	case errors.Is(err, fs.ErrNotExist):
-	case err != nil:
-		return "", fmt.Errorf("reading %s before replacing it: %w", path, err)
-	case bytes.Equal(old, data):
-		return "", nil
-	default:
-		perm := fs.FileMode(0o644)
-		if st, err := os.Stat(path); err == nil {
-			perm = st.Mode().Perm()
-		}
-		backup = fmt.Sprintf("%s.%s.bak", path, now.UTC().Format("20060102T150405.000Z"))
-		if err := catalogue.WriteFileAtomic(backup, old, perm); err != nil {
-			return "", fmt.Errorf("keeping a backup of %s: %w", path, err)
-		}
-	}
-	if err := catalogue.WriteFileAtomic(path, data, 0o644); err != nil {
-		return "", err
-	}
-	return backup, nil
+	err := catalogue.WriteSpec(&b, spec)
+	return b.Bytes(), err
 }

@@ -35,7 +35,7 @@ const topSpecies = 6
 // tagView distributes the blend three ways and predicts each one's SFC at
 // temps (the chart's grid). Each method fails on its own (e.g. an acid with
 // no letter code) without hiding the others.
-func tagView(parts []blend.Part, temps []float64) TAGView {
+func tagView(parts []blend.Part, temps []float64, opt sle.Options) TAGView {
 	var v TAGView
 	for _, m := range []randomise.Method{randomise.Native, randomise.Chemical, randomise.Enzymatic} {
 		c := TAGColumn{Method: m}
@@ -47,7 +47,7 @@ func tagView(parts []blend.Part, temps []float64) TAGView {
 			sp := d.SpeciesBy(randomise.Regio)
 			c.Top = sp[:min(topSpecies, len(sp))]
 			c.Notes = d.Notes
-			c.Predicted, c.PredErr = predicted(d, temps)
+			c.Predicted, c.PredErr = predicted(d, temps, opt)
 		}
 		v.Columns = append(v.Columns, c)
 	}
@@ -56,8 +56,8 @@ func tagView(parts []blend.Part, temps []float64) TAGView {
 
 // predicted runs the TAG model over temps and returns the curve sorted by
 // temperature.
-func predicted(d *randomise.Distribution, temps []float64) ([]catalogue.Point, error) {
-	vals, err := sle.Predict(d, temps, sle.DefaultOptions())
+func predicted(d *randomise.Distribution, temps []float64, opt sle.Options) ([]catalogue.Point, error) {
+	vals, err := sle.Predict(d, temps, opt)
 	if err != nil {
 		return nil, err
 	}

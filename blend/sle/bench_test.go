@@ -42,6 +42,22 @@ func BenchmarkCurve(b *testing.B) {
 	}
 }
 
+// BenchmarkCurveIsomorph is BenchmarkCurve with the solid-solution model
+// (Phases, one ideal solid solution per saturation pattern and carbon
+// number).
+func BenchmarkCurveIsomorph(b *testing.B) {
+	d, temps := bench550(b)
+	s := NewSet(d.Acids, Options{Solids: IsomorphSolutions})
+	out := make([]float64, len(temps))
+	var w Work
+	b.ReportAllocs()
+	for b.Loop() {
+		if err := s.Curve(d.Mol, temps, out, &w); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
 // BenchmarkPredict is one whole prediction from a distribution: TAG set and
 // melting properties built, curve solved, map returned.
 func BenchmarkPredict(b *testing.B) {
@@ -126,6 +142,49 @@ func TestBisectionReferenceAgrees(t *testing.T) {
 		}
 		if got := 100 * solid / total; math.Abs(got-out[ti]) > 1e-9 {
 			t.Errorf("%v C: bisection %.12f, Curve %.12f", tc, got, out[ti])
+		}
+	}
+}
+
+// BenchmarkCalibrateDemo fits the five class shifts to every measured curve
+// of the demo catalogue (14 stocks, 4 of them liquid oils), without the
+// held-out check: the fit a user runs with lipoplan calibrate.
+func BenchmarkCalibrateDemo(b *testing.B) {
+	cat := catalogue.DemoStocks()
+	var sts []*catalogue.Stock
+	for i := range cat.Stocks {
+		sts = append(sts, &cat.Stocks[i])
+	}
+	for b.Loop() {
+		if _, err := Calibrate(sts, DefaultOptions(), false); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// BenchmarkBlendModelSFC is one prediction of a final blend over all 14
+// demo stocks (two through a chemical reactor) at four spec temperatures:
+// the unit of work of the optimiser's predicted-SFC model.
+func BenchmarkBlendModelSFC(b *testing.B) {
+	cat := catalogue.DemoStocks()
+	var sts []*catalogue.Stock
+	for i := range cat.Stocks {
+		sts = append(sts, &cat.Stocks[i])
+	}
+	m, err := NewBlendModel(sts, randomise.Chemical, []float64{10, 20, 35, 40}, DefaultOptions())
+	if err != nil {
+		b.Fatal(err)
+	}
+	direct, feed := make([]float64, len(sts)), make([]float64, len(sts))
+	for j := range direct {
+		direct[j] = 5
+	}
+	feed[7], feed[8] = 20, 10
+	out := make([]float64, 4)
+	b.ReportAllocs()
+	for b.Loop() {
+		if err := m.SFC(direct, feed, out); err != nil {
+			b.Fatal(err)
 		}
 	}
 }

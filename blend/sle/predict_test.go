@@ -185,3 +185,64 @@ func TestPredictBadInput(t *testing.T) {
 	assert.Error(t, s.Curve([]float64{1}, []float64{20, 30}, make([]float64, 1), nil), "output too short")
 	assert.Error(t, s.Curve([]float64{0}, []float64{20}, make([]float64, 1), nil), "empty composition")
 }
+
+// A prepared table gives the same curve as computing the solubilities on
+// the way (the same equations, tabulated once), for both solid models.
+func TestPreparedCurveEqualsCurve(t *testing.T) {
+	cat := catalogue.DemoStocks()
+	temps := []float64{10, 20, 30, 35, 40}
+	for _, sm := range []sle.SolidModel{sle.PureSolids, sle.IsomorphSolutions} {
+		for i := range cat.Stocks {
+			d, err := randomise.Distribute([]blend.Part{{Stock: &cat.Stocks[i], Pct: 100}}, randomise.Chemical, 1)
+			require.NoError(t, err)
+			set := sle.NewSet(d.Acids, sle.Options{Solids: sm})
+			a, b := make([]float64, len(temps)), make([]float64, len(temps))
+			require.NoError(t, set.Curve(d.Mol, temps, a, nil))
+			p, err := set.Prepare(temps)
+			require.NoError(t, err)
+			require.NoError(t, p.Curve(d.Mol, b, nil))
+			for k := range a {
+				assert.InDelta(t, a[k], b[k], 1e-9, "%s %s %v C", cat.Stocks[i].ID, sm, temps[k])
+			}
+		}
+	}
+}
+
+// BlendModel against PredictParts (Distribute, then the equilibrium on the
+// mix's own acid set): a blend of stocks as they are equals the native
+// prediction, and one wholly through the reactor the interesterified one.
+// The extra acids of the blender's common acid set are absent TAGs and must
+// not change the answer.
+func TestBlendModelMatchesPredictParts(t *testing.T) {
+	cat := catalogue.DemoStocks()
+	var sts []*catalogue.Stock
+	for i := range cat.Stocks {
+		sts = append(sts, &cat.Stocks[i])
+	}
+	temps := []float64{10, 20, 30, 35, 40}
+	for _, method := range []randomise.Method{randomise.Chemical, randomise.Enzymatic} {
+		m, err := sle.NewBlendModel(sts, method, temps, sle.DefaultOptions())
+		require.NoError(t, err)
+		pick := map[string]float64{"palm-st-hard": 40, "rapeseed": 45, "coconut": 15}
+		shares := make([]float64, len(sts))
+		var parts []blend.Part
+		for j, s := range sts {
+			if v, ok := pick[s.ID]; ok {
+				shares[j] = v
+				parts = append(parts, blend.Part{Stock: s, Pct: v})
+			}
+		}
+		got := make([]float64, len(temps))
+		for _, c := range []struct {
+			direct, feed []float64
+			method       randomise.Method
+		}{{shares, nil, randomise.Native}, {nil, shares, method}} {
+			require.NoError(t, m.SFC(c.direct, c.feed, got))
+			want, _, err := sle.PredictParts(parts, c.method, 1, temps, sle.DefaultOptions())
+			require.NoError(t, err)
+			for k, tc := range temps {
+				assert.InDelta(t, want[tc], got[k], 1e-9, "%s %v C", c.method, tc)
+			}
+		}
+	}
+}

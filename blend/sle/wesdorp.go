@@ -83,54 +83,75 @@ type wesdorpSet struct {
 // all three polymorphs in the table).
 const tInfinity = 401.15
 
-// wesdorp returns the coefficient set for a polymorph.
+// wesdorp returns the coefficient set of Wesdorp's correlations for a
+// polymorph.
 //
-// Source: the correlations of Wesdorp (1990), "Liquid-multiple solid phase
-// equilibria in fats: theory and experiments", thesis, Delft University of
-// Technology, as re-published by Marangoni & Wesdorp (2013), Structure and
-// Properties of Fat Crystal Networks, 2nd ed., CRC Press, ch. 9
-// (doi:10.1201/b12883-10) and tabulated (42 parameters per polymorph) by
-// Moorthy et al. (2016), J. Am. Oil Chem. Soc. (doi:10.1007/s11746-016-2935-1).
-// We did not have the original papers; the values below were read from a
-// secondary public copy of that table (three copies of it, rounded
-// table and unrounded saturated A/B constants, agree) and should be checked
-// against Moorthy et al. (2016), Table 1, when it is to hand. The 3-decimal
-// table values are used. Values the table gives in parentheses
-// ("guessed for lack of data": alpha h_J, beta' h_E, h_J) are used as given.
+// Source: Wesdorp, L. H. (1990), "Liquid-multiple solid phase equilibria in
+// fats: theory and experiments", PhD thesis, Delft University of
+// Technology; re-published in Marangoni, A. G. & Wesdorp, L. H. (2013),
+// Structure and Properties of Fat Crystal Networks, 2nd ed., CRC Press,
+// ch. 9 (doi:10.1201/b12883-10), and tabulated with 42 parameters per
+// polymorph by Moorthy, A. S. et al. (2016), J. Am. Oil Chem. Soc.
+// (doi:10.1007/s11746-016-2935-1).
+//
+// Neither the thesis nor the 2013 chapter nor the 2016 paper could be read
+// here. The values were read from two secondary public copies, and each
+// line below says which:
+//
+//   - [ch9] a transcription of the tables of Marangoni & Wesdorp (2013),
+//     ch. 9: the unrounded A and B constants of the saturated part
+//     ("fitted to the experimental melting points of even saturated TAGs",
+//     so no A_odd, B_odd), the enthalpy lines h, h0, h_xy, h_odd, k, x0,
+//     T_inf, and the unsaturated enthalpy increments with their standard
+//     errors (values in parentheses there are "guessed due to inadequate
+//     data for fitting");
+//   - [tab] a copy of the 42-row parameter table of Moorthy et al. (2016),
+//     rounded to 3 decimals: A_odd, B_odd, and every unsaturated increment
+//     to A and B.
+//
+// The copies agree on every value they share except two, where [ch9]'s
+// unrounded value is used: beta B0 (2.66923; [tab] 2.670) and beta B_y²
+// (−0.000945; [tab] +0.0009, the sign lost). The published table has no
+// elaidic increment to B, no O-E, E-J or E-N cross terms and no linolenic
+// enthalpy increment; those are gaps of the model, not of this copy, and
+// are handled as MeltingOf says.
 func wesdorp(p Polymorph) wesdorpSet {
 	switch p.resolve() {
 	case Alpha:
 		return wesdorpSet{
-			h: 2.7, h0: -31.95, hxy: -13.28, hodd: 0, k: 4.39, x0: 1.25,
-			a0: -9.058, aodd: -0.196, ax: 0.003, ax2: -0.062, axy: 0.115, ay: -0.453, ay2: -0.006,
-			b0: -4.484, bodd: -0.003, bx: -0.001, bx2: 0.149, bxy: -0.366, by: 1.412, by2: -0.002,
-			aO: -3.46, aE: -1.38, aJ: -3.35, aN: -4.2,
-			aOO: -0.01, aEE: 0.01, aJJ: -3.68, aNN: -0.98,
-			aOJ: 0.53, aON: 0.83, aJN: -2.97,
-			bO: 0, bJ: 5.4, bN: 2.6,
-			hO: -31.7, hE: -11.7, hJ: -37.7,
+			h: 2.70, h0: -31.95, hxy: -13.28, hodd: 0, k: 4.39, x0: 1.25, // [ch9]
+			a0: -9.0581, ax: 0.00290, ax2: -0.0619116, axy: 0.115128, ay: -0.453461, ay2: -0.005827, // [ch9]
+			b0: -4.4841, bx: -0.00111, bx2: 0.148938, bxy: -0.365917, by: 1.41154, by2: -0.001766, // [ch9]
+			aodd: -0.196, bodd: -0.003, // [tab]
+			aO: -3.46, aE: -1.38, aJ: -3.35, aN: -4.2, // [tab]
+			aOO: -0.01, aEE: 0.01, aJJ: -3.68, aNN: -0.98, // [tab]
+			aOJ: 0.53, aON: 0.83, aJN: -2.97, // [tab]
+			bO: 0, bJ: 5.4, bN: 2.6, // [tab]
+			hO: -31.7, hE: -11.7, hJ: -37.7, // [ch9] ±1.8, ±1.3, guessed
 		}
 	case BetaPrime:
 		return wesdorpSet{
-			h: 3.86, h0: -35.86, hxy: -19.35, hodd: 0, k: 1.99, x0: 2.46,
-			a0: -8.454, aodd: -0.308, ax: -0.104, ax2: -0.019, axy: 0.074, ay: -0.497, ay2: 0.012,
-			b0: -0.265, bodd: 0.005, bx: 0.550, bx2: 0.074, bxy: -0.341, by: 2.342, by2: -0.136,
-			aO: -2.2, aE: -1.34, aJ: -2.51, aN: -2.23,
-			aOO: 0.27, aEE: 0.04, aJJ: 0.55, aNN: 1.51,
-			aOJ: -1, aON: 0.76, aJN: 1.12,
-			bO: -4.3, bJ: -7.8, bN: -13.7,
-			hO: -28.3, hE: -15.9, hJ: -37.7,
+			h: 3.86, h0: -35.86, hxy: -19.35, hodd: 0, k: 1.99, x0: 2.46, // [ch9]
+			a0: -8.4543, ax: -0.10360, ax2: -0.018881, axy: 0.0739411, ay: -0.49721, ay2: 0.0115995, // [ch9]
+			b0: -0.26501, bx: 0.54997, bx2: 0.074136, bxy: -0.340928, by: 2.34238, by2: -0.135735, // [ch9]
+			aodd: -0.308, bodd: 0.005, // [tab]
+			aO: -2.2, aE: -1.34, aJ: -2.51, aN: -2.23, // [tab]
+			aOO: 0.27, aEE: 0.04, aJJ: 0.55, aNN: 1.51, // [tab]
+			aOJ: -1, aON: 0.76, aJN: 1.12, // [tab]
+			bO: -4.3, bJ: -7.8, bN: -13.7, // [tab]
+			hO: -28.3, hE: -15.9, hJ: -37.7, // [ch9] ±1.8, guessed, guessed
 		}
 	default: // Beta
 		return wesdorpSet{
-			h: 3.89, h0: -17.16, hxy: -22.29, hodd: 2.29, k: 2.88, x0: 0.77,
-			a0: -8.048, aodd: -0.019, ax: 0.074, ax2: -0.035, axy: 0.008, ay: -0.404, ay2: 0.011,
-			b0: 2.670, bodd: 0.008, bx: -0.317, bx2: 0.086, bxy: 0.041, by: 0.550, by2: 0.0009,
-			aO: -2.93, aE: -1.68, aJ: -4.69, aN: -5.18,
-			aOO: 0.89, aEE: 0.4, aJJ: 1.21, aNN: 1.38,
-			aOJ: 0.71, aON: 0.69, aJN: 0.73,
-			bO: -3.7, bJ: -1.5, bN: -1.8,
-			hO: -30.2, hE: -15.9, hJ: -37.7,
+			h: 3.89, h0: -17.16, hxy: -22.29, hodd: 2.29, k: 2.88, x0: 0.77, // [ch9]
+			a0: -8.0481, ax: 0.074130, ax2: -0.0348596, axy: 0.00771420, ay: -0.404136, ay2: 0.0111938, // [ch9]
+			b0: 2.66923, bx: -0.31675, bx2: 0.085967, bxy: 0.040642, by: 0.55040, by2: -0.000945, // [ch9]
+			aodd: -0.019, bodd: 0.008, // [tab]
+			aO: -2.93, aE: -1.68, aJ: -4.69, aN: -5.18, // [tab]
+			aOO: 0.89, aEE: 0.4, aJJ: 1.21, aNN: 1.38, // [tab]
+			aOJ: 0.71, aON: 0.69, aJN: 0.73, // [tab]
+			bO: -3.7, bJ: -1.5, bN: -1.8, // [tab]
+			hO: -30.2, hE: -15.9, hJ: -37.7, // [ch9] ±1.4, ±0.9, ±2.5
 		}
 	}
 }
@@ -170,9 +191,10 @@ type Melting struct {
 // TmCelsius is the melting point in deg C.
 func (m Melting) TmCelsius() float64 { return m.Tm - 273.15 }
 
-// MeltingOf returns the melting point and enthalpy of fusion of the TAG with
-// acids a, b, c at sn-1, sn-2, sn-3 in polymorph p, from Wesdorp's
-// correlations (see wesdorp for the source):
+// correlated returns the melting point and enthalpy of fusion that
+// Wesdorp's correlations give for the TAG with acids a, b, c at sn-1, sn-2,
+// sn-3 in polymorph p (see wesdorp for the source), before the corrections
+// of MeltingOf:
 //
 //	n = n1+n2+n3; P = min(n1,n3), Q = n2, R = max(n1,n3); x = Q-P, y = R-P
 //	f_xy = 2 - exp(-((x-x0)/k)^2) - exp(-(y/k)^2)
@@ -186,12 +208,16 @@ func (m Melting) TmCelsius() float64 { return m.Tm - 273.15 }
 // N linolenic) and f_odd = 1 when any chain has an odd carbon number.
 // Our reading, marked as such: n_ii counts like pairs, n_i (n_i - 1) / 2, as
 // the unlike-pair terms count n_i n_j pairs (for n_i <= 2 it equals
-// n_i - 1). Our analogies, not Wesdorp's: cis monoenes other than oleic count
-// as O with their own chain length, trans dienes as E, trienes as N; the
-// table has no enthalpy increment for N, so linoleic's h_J is used for it.
+// n_i - 1; the copies do not define it, and for triolein and trilinolein
+// this reading is the one near their measured melting points). Terms the
+// published table does not have (B_E, the O-E, E-J and E-N pairs, h_N) are
+// zero, except that linolenic chains take linoleic's enthalpy increment h_J
+// (a chain with three double bonds otherwise adds no enthalpy change at
+// all). Our analogies: cis monoenes other than oleic count as O with their
+// own chain length, trans dienes as E, trienes as N.
 //
 // Sn-1 and sn-3 enter only through P and R, so mirror images melt alike.
-func MeltingOf(a, b, c catalogue.FattyAcid, p Polymorph) Melting {
+func correlated(a, b, c catalogue.FattyAcid, p Polymorph) Melting {
 	return meltingWith(wesdorp(p), p.resolve() == Beta, a, b, c)
 }
 

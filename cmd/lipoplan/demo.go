@@ -7,6 +7,7 @@ import (
 	"sort"
 
 	"lipoplan/blend"
+	"lipoplan/blend/sle"
 	"lipoplan/catalogue"
 	"lipoplan/optimise"
 )
@@ -67,8 +68,9 @@ func clip(s string, n int) string {
 	return string(r[:n-1]) + "…"
 }
 
-// writeDemo saves the embedded demo files into dir, atomically, never
-// overwriting a file that is already there.
+// writeDemo saves the embedded demo files into dir by the rules of every
+// output (catalogue.Output), refusing a folder that already holds one of them:
+// the demo files are a start, never mixed into someone's own.
 func (a *app) writeDemo(dir string) error {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return catalogue.Badf("--write %s: cannot create the folder: %v", dir, err)
@@ -87,16 +89,20 @@ func (a *app) writeDemo(dir string) error {
 	}
 	for _, n := range names {
 		path := filepath.Join(dir, n)
-		if err := catalogue.WriteFileAtomic(path, files[n], 0o644); err != nil {
-			return fmt.Errorf("writing %s: %w", path, err)
+		if err := a.write(output{"--write", path}, files[n]); err != nil {
+			return err
 		}
 		fmt.Fprintf(a.stdout, "wrote %s\n", path)
 	}
 	return nil
 }
 
+// demoIncumbent is the demo's partially hardened fat to replace.
+const demoIncumbent = "ph-soy"
+
 // demoSolve solves every embedded demo spec and prints its full report, as
-// `lipoplan solve` would for that spec.
+// `lipoplan solve` would for that spec, then the replacement of the demo's
+// partially hardened fat, as `lipoplan replace` would.
 func (a *app) demoSolve(cat *catalogue.Catalogue) error {
 	infeasible := false
 	for i, spec := range catalogue.DemoSpecs() {
@@ -113,6 +119,14 @@ func (a *app) demoSolve(cat *catalogue.Catalogue) error {
 		writeSolveText(a.stdout, res, spec, ts)
 		infeasible = infeasible || res.Status != optimise.Optimal
 	}
+	// The third job: replace the incumbent partially hardened base.
+	rep, err := optimise.Replace(cat, optimise.Replacement{Incumbent: demoIncumbent, Tolerance: 3, TransMax: 1, Batch: 20}, optimise.Options{})
+	if err != nil {
+		return fmt.Errorf("demo replacement of %q: %w", demoIncumbent, err)
+	}
+	fmt.Fprintf(a.stdout, "\n=== Demo replacement: the partially hardened %s, trans-free (lipoplan replace --incumbent %s) ===\n\n", demoIncumbent, demoIncumbent)
+	writeReplace(a.stdout, rep, sle.DefaultOptions())
+	infeasible = infeasible || rep.Status != optimise.Optimal
 	if infeasible {
 		return errInfeasible
 	}

@@ -20,21 +20,33 @@ import (
 
 // scenarioFlags are the inputs explore and serve share.
 type scenarioFlags struct {
-	stocks, spec, scenario *string
+	stocks, spec, scenario, calibration *string
 }
 
 func (a *app) scenarioFlags(fs interface {
 	String(name, value, usage string) *string
 }) scenarioFlags {
 	return scenarioFlags{
-		stocks:   fs.String("stocks", "", "stock catalogue `file` (default: the embedded demo stocks)"),
-		spec:     fs.String("spec", "", "product spec `file` (default: the first embedded demo spec)"),
-		scenario: fs.String("scenario", "", "start from a saved scenario `file` instead of --stocks/--spec"),
+		stocks:      fs.String("stocks", "", "stock catalogue `file` (default: the embedded demo stocks)"),
+		spec:        fs.String("spec", "", "product spec `file` (default: the first embedded demo spec)"),
+		scenario:    fs.String("scenario", "", "start from a saved scenario `file` instead of --stocks/--spec"),
+		calibration: fs.String("calibration", "", calibrationFlagHelp),
 	}
 }
 
 // load builds the starting scenario and a description of where it came from.
 func (a *app) load(f scenarioFlags) (*tui.Scenario, string, error) {
+	sc, src, err := a.loadScenario(f)
+	if err != nil {
+		return nil, "", err
+	}
+	if sc.Model, err = a.sfcModel(*f.calibration); err != nil {
+		return nil, "", err
+	}
+	return sc, src, nil
+}
+
+func (a *app) loadScenario(f scenarioFlags) (*tui.Scenario, string, error) {
 	if *f.scenario != "" {
 		if *f.stocks != "" || *f.spec != "" {
 			return nil, "", catalogue.Badf("give either --scenario or --stocks/--spec, not both")
@@ -82,29 +94,41 @@ func (a *app) explore(args []string) error {
 		return err
 	}
 	files := tui.Files{StocksPath: *sf.stocks, SpecPath: *sf.spec}
-	m := tui.NewWithScenario(sc, src, files)
-	p := tea.NewProgram(m, tea.WithOutput(a.stdout))
-	if _, err := p.Run(); err != nil {
-		if errors.Is(err, tea.ErrProgramKilled) || errors.Is(err, tea.ErrInterrupted) {
-			return nil
-		}
-		return catalogue.Badf("explore needs an interactive terminal (%v); for scripts use 'lipoplan solve'", err)
+	g := tui.NewGuard(tui.NewWithScenario(sc, src, files))
+	p := tea.NewProgram(g, tea.WithOutput(a.stdout))
+	_, err = p.Run()
+	return exploreEnd(g, err)
+}
+
+// exploreEnd turns how the workspace ended into the command's result: a fault
+// in it (caught by the guard or by bubbletea) is an internal fault, exit 1.
+func exploreEnd(g *tui.Guard, err error) error {
+	switch {
+	case g.Fault() != nil:
+		return fmt.Errorf("in the workspace: %w; it stopped and nothing was saved", g.Fault())
+	case errors.Is(err, tea.ErrProgramPanic):
+		return fmt.Errorf("the workspace stopped on an internal fault: %w", err)
+	case err == nil, errors.Is(err, tea.ErrProgramKilled), errors.Is(err, tea.ErrInterrupted):
+		return nil
 	}
-	return nil
+	return catalogue.Badf("explore needs an interactive terminal (%v); for scripts use 'lipoplan solve'", err)
 }
 
 func (a *app) serve(args []string) error {
-	fs := a.newFlags("serve", "--authorized-keys F --host-key F [--listen ADDR] [--stocks F --spec F | --scenario F] [--max-sessions N] [--idle-timeout D] [--writable] [--scenario-dir DIR]",
+	fs := a.newFlags("serve", "--authorized-keys F --host-key F [--listen ADDR] [--stocks F --spec F | --scenario F] [--max-sessions N] [--idle-timeout D] [--auth-timeout D] [--max-pending N] [--writable] [--scenario-dir DIR]",
 		"Serve the workspace over SSH. Only the public keys in --authorized-keys get in; each session\n"+
 			"has its own copy of the scenario. The host key is created at --host-key (mode 0600) when absent\n"+
 			"and reused after. Without --writable nothing is written: saving is refused. With --writable,\n"+
 			"sessions save scenarios by plain name into --scenario-dir and may write the stocks and spec back\n"+
-			"(W). Sessions' key fingerprints and times are logged to stderr.")
+			"(W). A connection must log in within --auth-timeout, and at most --max-pending may be logging\n"+
+			"in at once (more are closed at once). Sessions' key fingerprints and times are logged to stderr.")
 	listen := fs.String("listen", "127.0.0.1:2222", "`address` to listen on (loopback by default)")
 	auth := fs.String("authorized-keys", "", "authorized_keys `file`: the public keys allowed in")
 	hostKey := fs.String("host-key", "", "host private key `file` (created with mode 0600 when absent)")
 	maxSessions := fs.Int("max-sessions", serve.DefaultMaxSessions, "most sessions open at once")
 	idleTimeout := fs.Duration("idle-timeout", 30*time.Minute, "drop a session with no traffic for this `duration` (0 = never)")
+	authTimeout := fs.Duration("auth-timeout", serve.DefaultAuthTimeout, "close a connection that has not logged in within this `duration`")
+	maxPending := fs.Int("max-pending", serve.DefaultMaxPending, "most connections logging in at once; more are closed at once")
 	writable := fs.Bool("writable", false, "let sessions save scenarios and write the stocks and spec files back")
 	dir := fs.String("scenario-dir", "", "`folder` for scenarios sessions save and open (default: the --stocks file's folder, or the current one)")
 	sf := a.scenarioFlags(fs)
@@ -118,6 +142,12 @@ func (a *app) serve(args []string) error {
 	if *maxSessions < 1 {
 		return catalogue.Badf("serve: --max-sessions %d: allow at least one session", *maxSessions)
 	}
+	if *maxPending < 1 {
+		return catalogue.Badf("serve: --max-pending %d: allow at least one connection to log in", *maxPending)
+	}
+	if *authTimeout <= 0 {
+		return catalogue.Badf("serve: --auth-timeout %v: give a duration above zero, such as 15s", *authTimeout)
+	}
 	d := *dir
 	if d == "" {
 		d = "."
@@ -130,6 +160,7 @@ func (a *app) serve(args []string) error {
 		Scenario: sc, Source: src,
 		Files:    tui.Files{Dir: d, StocksPath: *sf.stocks, SpecPath: *sf.spec},
 		Writable: *writable, MaxSessions: *maxSessions, IdleTimeout: *idleTimeout,
+		AuthTimeout: *authTimeout, MaxPending: *maxPending,
 		Log: a.stderr,
 	})
 	if err != nil {

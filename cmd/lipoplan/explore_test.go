@@ -1,12 +1,19 @@
 package main
 
 import (
+	"bytes"
+	"errors"
+	"fmt"
+	"io"
 	"os"
 	"path/filepath"
 	"testing"
 
+	tea "charm.land/bubbletea/v2"
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+
+	"lipoplan/tui"
 )
 
 func TestServeBadInput(t *testing.T) {
@@ -35,4 +42,32 @@ func TestExploreBadInput(t *testing.T) {
 	code, _, errs = run(t, "explore", "--scenario", filepath.Join(t.TempDir(), "missing.toml"))
 	assert.Equal(t, 2, code)
 	assert.Contains(t, errs, "cannot read scenario")
+}
+
+// panicky is a workspace that panics on any key.
+type panicky struct{}
+
+func (panicky) Init() tea.Cmd { return nil }
+func (panicky) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
+	if _, ok := msg.(tea.KeyPressMsg); ok {
+		panic("stub fault")
+	}
+	return panicky{}, nil
+}
+func (panicky) View() tea.View { return tea.NewView("") }
+
+// A fault inside the workspace is an internal fault (exit 1), never bad
+// input (2) and never success; a closed terminal is bad input.
+func TestExploreEndExitCodes(t *testing.T) {
+	var errb bytes.Buffer
+	a := &app{stdout: io.Discard, stderr: &errb}
+	g := tui.NewGuard(panicky{})
+	g.Update(tea.KeyPressMsg{Code: 'x', Text: "x"})
+	assert.Equal(t, 1, a.exit(exploreEnd(g, nil)))
+	assert.Contains(t, errb.String(), "lipoplan: internal fault: in the workspace: stub fault")
+	clean := tui.NewGuard(panicky{})
+	assert.Equal(t, 1, a.exit(exploreEnd(clean, fmt.Errorf("%w: %w", tea.ErrProgramKilled, tea.ErrProgramPanic))), "a panic bubbletea caught")
+	assert.Equal(t, 0, a.exit(exploreEnd(clean, nil)))
+	assert.Equal(t, 0, a.exit(exploreEnd(clean, tea.ErrInterrupted)))
+	assert.Equal(t, 2, a.exit(exploreEnd(clean, errors.New("open /dev/tty: no such device"))))
 }

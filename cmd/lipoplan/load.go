@@ -86,6 +86,9 @@ func parseUse(s string, cat *catalogue.Catalogue) ([]blend.Part, error) {
 	if total <= 0 {
 		return nil, catalogue.Badf("--use: the shares add up to 0; give at least one stock a share above 0")
 	}
+	if math.IsInf(total, 0) {
+		return nil, catalogue.Badf("--use: the shares are too large to add up; give %% by mass, e.g. \"id=40,id2=60\"")
+	}
 	return parts, nil
 }
 

@@ -52,13 +52,15 @@ func commands() []command {
 		{"solve", "cheapest blend that meets a spec", (*app).solve},
 		{"plan", "make several orders from one shared stock at least cost", (*app).plan},
 		{"sweep", "cost and blend over a range of one stock's price", (*app).sweep},
+		{"calibrate", "fit the TAG model's SFC to the catalogue's measured curves", (*app).calibrate},
+		{"replace", "cheapest trans-free blend that melts like a fat you use now", (*app).replace},
 		// further commands add their line here
 	}
 	sort.SliceStable(cs, func(i, j int) bool { return order(cs[i].name) < order(cs[j].name) })
 	return cs
 }
 
-var commandOrder = []string{"demo", "check", "mix", "tags", "solve", "plan", "sweep", "explore", "serve"}
+var commandOrder = []string{"demo", "check", "mix", "tags", "solve", "replace", "plan", "sweep", "calibrate", "explore", "serve"}
 
 func order(name string) int {
 	for i, n := range commandOrder {

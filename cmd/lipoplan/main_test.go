@@ -67,6 +67,8 @@ func TestCheckBadCorpus(t *testing.T) {
 			flag = "--spec"
 		case strings.Contains(head, "# kind: orders"):
 			flag = "--orders"
+		case strings.Contains(head, "# kind: calibration"):
+			flag = "--calibration"
 		}
 		code, out, errs := run(t, "check", flag, f)
 		assert.Equal(t, 2, code, "%s\n%s%s", f, out, errs)
@@ -111,6 +113,7 @@ func TestMixBadInput(t *testing.T) {
 		{"x", "has no share"},
 		{catalogue.DemoStocks().Stocks[0].ID + "=abc", "give a number"},
 		{catalogue.DemoStocks().Stocks[0].ID + "=0", "add up to 0"},
+		{catalogue.DemoStocks().Stocks[0].ID + "=1e308," + catalogue.DemoStocks().Stocks[1].ID + "=1e308", "too large to add up"},
 	} {
 		code, _, errs := run(t, "mix", "--use", tc.use)
 		assert.Equal(t, 2, code, tc.use)

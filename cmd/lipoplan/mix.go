@@ -24,14 +24,19 @@ func (a *app) mix(args []string) error {
 	format := fs.String("format", "text", "text or json")
 	process := fs.String("process", "native", "for --predict: native, chemical or enzymatic interesterification of the whole mix")
 	predict := fs.Bool("predict", false, "add the SFC predicted from the TAG composition")
+	calPath := fs.String("calibration", "", calibrationFlagHelp)
 	if err := a.parse(fs, args); err != nil {
+		return err
+	}
+	opt, err := a.sfcModel(*calPath)
+	if err != nil {
 		return err
 	}
 	if err := checkFormat(*format, "text", "json"); err != nil {
 		return err
 	}
-	method, err := randomise.ParseMethod(*process)
-	if err != nil {
+	method, perr := randomise.ParseMethod(*process)
+	if perr != nil {
 		return catalogue.Badf("--process %q is not known; use native, chemical or enzymatic", *process)
 	}
 	if method != randomise.Native && !*predict {
@@ -58,7 +63,7 @@ func (a *app) mix(args []string) error {
 	}
 	var pred *predicted
 	if *predict {
-		if pred, err = predictMix(parts, method, ts); err != nil {
+		if pred, err = predictMix(parts, method, ts, opt); err != nil {
 			return err
 		}
 	}
@@ -152,8 +157,30 @@ func propertiesJSON(p blend.Properties) map[string]any {
 			miss[catalogue.TempKey(t)] = ids
 		}
 		out["sfc_missing"] = miss
+	} else if mp := blend.CurveMeltingPoints(p.SFC); mp.SlipFound {
+		out["slip_point"] = round(mp.Slip, 1)
+		if mp.ClearFound {
+			out["clear_point"] = round(mp.Clear, 1)
+		}
 	}
 	return out
+}
+
+// writeMeltingPoints prints the slip and clear point estimates read off a
+// curve, with the thresholds and their basis, or nothing when the curve
+// does not fall through them in its range.
+func writeMeltingPoints(w io.Writer, sfc map[float64]float64, indent string) {
+	mp := blend.CurveMeltingPoints(sfc)
+	if !mp.SlipFound {
+		return
+	}
+	line := fmt.Sprintf("Slip melting point about %.1f C (where the SFC falls to %.0f %% solid)", mp.Slip, blend.SlipThreshold)
+	if mp.ClearFound {
+		line += fmt.Sprintf(", clear point about %.1f C (%.1f %%)", mp.Clear, blend.ClearThreshold)
+	}
+	line += "; estimates read off the curve (common practice), not AOCS Cc 3-25 measurements."
+	lead := strings.Repeat(" ", len(indent)-len(strings.TrimLeft(indent, " ")))
+	fmt.Fprintln(w, indent+wrapText(line, 96-len(indent), lead))
 }
 
 func writeJSON(w io.Writer, v any) error {
@@ -187,6 +214,9 @@ func writePropertiesAs(w io.Writer, p blend.Properties, temps []float64, sfcHead
 	fmt.Fprintln(w)
 	fmt.Fprintln(w)
 	writeSFCRow(w, "  "+sfcHeading, p.SFC, temps)
+	if len(p.SFCMissing) == 0 {
+		writeMeltingPoints(w, p.SFC, "    ")
+	}
 	if len(p.SFCMissing) > 0 {
 		var ts []float64
 		for t := range p.SFCMissing {

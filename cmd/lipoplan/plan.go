@@ -20,11 +20,16 @@ func (a *app) plan(args []string) error {
 	stocksPath := fs.String("stocks", "", "stock catalogue TOML (default: embedded demo stocks)")
 	ordersPath := fs.String("orders", "", fmt.Sprintf("orders TOML (default: every demo spec, %g t each)", demoPlanTonnes))
 	format := fs.String("format", "text", "text or json")
-	mps := fs.String("mps", "", "also write the joint model to this file in free MPS format")
+	mps := fs.String("mps", "", "also write the joint model to this `file` in free MPS format (- = standard output, the report then goes to standard error)")
 	if err := a.parse(fs, args); err != nil {
 		return err
 	}
 	if err := checkFormat(*format, "text", "json"); err != nil {
+		return err
+	}
+	mpsOut := output{"--mps", *mps}
+	report, err := a.reportTo(mpsOut)
+	if err != nil {
 		return err
 	}
 	cat, err := a.stocks(*stocksPath)
@@ -36,8 +41,16 @@ func (a *app) plan(args []string) error {
 		return err
 	}
 	if *mps != "" {
-		if err := optimise.WritePlanMPS(*mps, cat, orders); err != nil {
+		model, err := optimise.PlanMPS(cat, orders)
+		if err != nil {
 			return fmt.Errorf("--mps: %w", err)
+		}
+		inputs := []string{*stocksPath, *ordersPath}
+		for _, o := range orders.Orders {
+			inputs = append(inputs, o.Path)
+		}
+		if err := a.write(mpsOut, model, inputs...); err != nil {
+			return err
 		}
 	}
 	res, err := optimise.Plan(cat, orders)
@@ -45,9 +58,9 @@ func (a *app) plan(args []string) error {
 		return err
 	}
 	if *format == "json" {
-		err = writeJSON(a.stdout, planJSON(res))
+		err = writeJSON(report, planJSON(res))
 	} else {
-		writePlanText(a.stdout, res)
+		writePlanText(report, res)
 	}
 	if err != nil {
 		return err

@@ -24,8 +24,7 @@ type predicted struct {
 // predictMix runs the solid-liquid equilibrium model (blend/sle) on the mix
 // after process (full reaction for chemical and enzymatic) and fits the
 // model against the measured curve of every stock in the mix that has one.
-func predictMix(parts []blend.Part, process randomise.Method, temps []float64) (*predicted, error) {
-	opt := sle.DefaultOptions()
+func predictMix(parts []blend.Part, process randomise.Method, temps []float64, opt sle.Options) (*predicted, error) {
 	sfc, notes, err := sle.PredictParts(parts, process, 1, temps, opt)
 	if err != nil {
 		return nil, err
@@ -46,8 +45,7 @@ func predictMix(parts []blend.Part, process randomise.Method, temps []float64) (
 
 // model names the method in one line, for text and JSON.
 func (p *predicted) model() string {
-	return fmt.Sprintf("solid-liquid equilibrium, ideal liquid, pure-TAG %s solids (Wesdorp melting points, Hildebrand solubility), TAGs %s",
-		p.opt.Polymorph, processWords(p.process))
+	return sle.Describe(p.opt) + ", TAGs " + processWords(p.process)
 }
 
 func processWords(m randomise.Method) string {
@@ -72,11 +70,15 @@ func (p *predicted) addJSON(out map[string]any) {
 	fits := make([]map[string]any, 0, len(p.fits))
 	for _, f := range p.fits {
 		fits = append(fits, map[string]any{
-			"stock": f.Stock, "mae": round(f.MAE, 2), "max": round(f.Max, 2),
-			"bias": round(f.Bias, 2), "points": f.Points,
+			"stock": f.Stock, "rms": round(f.RMS, 2), "mae": round(f.MAE, 2), "max": round(f.Max, 2),
+			"bias": round(f.Bias, 2), "points": len(f.Points),
 		})
 	}
-	out["sfc_model"] = map[string]any{"method": p.model(), "error_vs_measured": fits}
+	out["sfc_model"] = map[string]any{"method": p.model(), "error_vs_measured": fits, "measured_error": sle.MeasuredError}
+	mp := blend.CurveMeltingPoints(p.sfc)
+	if mp.SlipFound {
+		out["slip_point_predicted"] = round(mp.Slip, 1)
+	}
 	if len(p.notes) > 0 {
 		out["notes"] = p.notes
 	}
@@ -87,16 +89,18 @@ func (p *predicted) addJSON(out map[string]any) {
 func (p *predicted) writeText(w io.Writer, temps []float64) {
 	fmt.Fprintln(w)
 	writeSFCRow(w, fmt.Sprintf("  SFC (%% solid, predicted by the TAG model, %s)", processWords(p.process)), p.sfc, temps)
-	fmt.Fprintf(w, "    Model: %s.\n", p.model())
+	fmt.Fprintf(w, "    Model: %s.\n", wrapText(p.model(), 96, "    "))
 	if len(p.fits) == 0 {
 		fmt.Fprintln(w, "    Model error: no stock in this mix has a measured SFC curve to compare with.")
 	} else {
 		items := make([]string, len(p.fits))
 		for i, f := range p.fits {
-			items[i] = fmt.Sprintf("%s %.1f (max %.1f)", f.Stock, f.MAE, f.Max)
+			items[i] = fmt.Sprintf("%s %.1f (worst %.1f)", f.Stock, f.RMS, f.Max)
 		}
-		fmt.Fprintf(w, "    Model error against each stock's measured curve, mean abs. %% solid: %s.\n", strings.Join(items, ", "))
+		fmt.Fprintf(w, "    Model error against each stock's own measured curve, RMS %% solid: %s.\n", wrapText(strings.Join(items, ", "), 96, "    "))
 	}
+	fmt.Fprintf(w, "    %s.\n", wrapText("In general "+sle.MeasuredError, 96, "    "))
+	writeMeltingPoints(w, p.sfc, "    Predicted curve: ")
 	for _, n := range p.notes {
 		fmt.Fprintf(w, "    Note: %s\n", n)
 	}

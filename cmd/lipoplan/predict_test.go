@@ -2,6 +2,7 @@ package main
 
 import (
 	"encoding/json"
+	"fmt"
 	"testing"
 
 	"github.com/stretchr/testify/assert"
@@ -66,7 +67,7 @@ func TestMixPredictText(t *testing.T) {
 	code, out, errs := run(t, "mix", "--use", "palm=60,pko=40", "--predict", "--process", "chemical")
 	require.Equal(t, 0, code, errs)
 	assert.Contains(t, out, "predicted by the TAG model, after chemical (random) interesterification")
-	assert.Contains(t, out, "Model error against each stock's measured curve")
+	assert.Contains(t, out, "Model error against each stock's own measured curve")
 	assert.Contains(t, out, "palm ")
 	assert.Contains(t, out, "sodium methoxide", "the process caution (README, Cautions)")
 	assert.Contains(t, out, "Caution: calculated values are estimates")
@@ -79,4 +80,29 @@ func TestMixPredictBadInput(t *testing.T) {
 	code, _, errs = run(t, "mix", "--use", "palm=100", "--predict", "--process", "boiled")
 	assert.Equal(t, 2, code)
 	assert.Contains(t, errs, `--process "boiled" is not known`)
+}
+
+// mix reports the slip-point estimate read off the measured-linear curve
+// (blend.CurveMeltingPoints, checked by hand there) in text and JSON, and
+// the predicted one with --predict.
+func TestMixSlipPoint(t *testing.T) {
+	code, out, errs := run(t, "mix", "--use", "palm=60,pko=40", "--format", "json", "--predict", "--temps", "10,20,30,35,40,45")
+	require.Equal(t, 0, code, errs)
+	var got map[string]any
+	require.NoError(t, json.Unmarshal([]byte(out), &got))
+	sfc := map[float64]float64{}
+	for k, v := range got["sfc"].(map[string]any) {
+		var tc float64
+		_, err := fmt.Sscan(k, &tc)
+		require.NoError(t, err)
+		sfc[tc] = v.(float64)
+	}
+	mp := blend.CurveMeltingPoints(sfc)
+	require.True(t, mp.SlipFound)
+	assert.InDelta(t, mp.Slip, got["slip_point"].(float64), 0.051)
+	assert.Contains(t, got, "slip_point_predicted")
+	code, out, _ = run(t, "mix", "--use", "palm=60,pko=40")
+	require.Equal(t, 0, code)
+	assert.Contains(t, out, "Slip melting point about")
+	assert.Contains(t, out, "common practice")
 }

@@ -10,6 +10,7 @@ import (
 	"time"
 
 	"lipoplan/blend"
+	"lipoplan/blend/sle"
 	"lipoplan/catalogue"
 	"lipoplan/optimise"
 )
@@ -22,11 +23,12 @@ func (a *app) solve(args []string) error {
 	stocksPath := fs.String("stocks", "", "stock catalogue TOML (default: embedded demo stocks)")
 	specPath := fs.String("spec", "", "product spec TOML (default: the embedded demo laminating spec)")
 	format := fs.String("format", "text", "text, json or csv")
-	mps := fs.String("mps", "", "also write the model to this file in free MPS format")
-	svg := fs.String("svg", "", "also draw the blend's SFC against the spec's bands into this SVG file")
+	mps := fs.String("mps", "", "also write the model to this `file` in free MPS format (- = standard output, the report then goes to standard error)")
+	svg := fs.String("svg", "", "also draw the blend's SFC against the spec's bands into this SVG `file` (- = standard output)")
 	temps := fs.String("temps", "", `SFC temperatures to report, deg C (default 10,15,...,45 plus the spec's)`)
 	maxNodes := fs.Int("max-nodes", 100000, "integer rules: branch and bound solves at most this many LPs")
 	maxTime := fs.Duration("max-time", 60*time.Second, "integer rules: branch and bound runs at most this `duration`")
+	calPath := fs.String("calibration", "", calibrationFlagHelp)
 	if err := a.parse(fs, args); err != nil {
 		return err
 	}
@@ -35,6 +37,15 @@ func (a *app) solve(args []string) error {
 		return errUsage
 	}
 	if err := checkFormat(*format, "text", "json", "csv"); err != nil {
+		return err
+	}
+	model, err := a.sfcModel(*calPath)
+	if err != nil {
+		return err
+	}
+	mpsOut, svgOut := output{"--mps", *mps}, output{"--svg", *svg}
+	report, err := a.reportTo(mpsOut, svgOut)
+	if err != nil {
 		return err
 	}
 	cat, err := a.stocks(*stocksPath)
@@ -53,26 +64,34 @@ func (a *app) solve(args []string) error {
 		ts = blend.SpecTemps(spec)
 	}
 	if *mps != "" {
-		if err := optimise.WriteMPS(*mps, cat, spec); err != nil {
+		lp, err := optimise.MPS(cat, spec)
+		if err != nil {
 			return fmt.Errorf("--mps: %w", err)
 		}
+		if err := a.write(mpsOut, lp, *stocksPath, *specPath); err != nil {
+			return err
+		}
 	}
-	res, err := optimise.Solve(cat, spec, optimise.Options{Temps: ts, MaxNodes: *maxNodes, MaxTime: *maxTime})
+	res, err := optimise.Solve(cat, spec, optimise.Options{Temps: ts, Model: model, MaxNodes: *maxNodes, MaxTime: *maxTime})
 	if err != nil {
 		return err
 	}
 	if *svg != "" && res.Status == optimise.Optimal {
-		if err := catalogue.WriteFileAtomic(*svg, sfcSVG(res, spec), 0o644); err != nil {
-			return fmt.Errorf("--svg: %w", err)
+		if err := a.write(svgOut, sfcSVG(res, spec), *stocksPath, *specPath); err != nil {
+			return err
 		}
 	}
 	switch *format {
 	case "json":
-		err = writeJSON(a.stdout, solveJSON(res))
+		out := solveJSON(res)
+		if res.Process != nil && res.Process.SFCModel == "predicted" {
+			out["sfc_model"] = map[string]any{"method": sle.Describe(model), "measured_error": sle.MeasuredError}
+		}
+		err = writeJSON(report, out)
 	case "csv":
-		err = writeSolveCSV(a.stdout, res)
+		err = writeSolveCSV(report, res)
 	default:
-		writeSolveText(a.stdout, res, spec, ts)
+		writeSolveText(report, res, spec, ts)
 	}
 	if err != nil {
 		return err
@@ -97,9 +116,6 @@ func solveJSON(r *optimise.Result) map[string]any {
 	blendOut := []map[string]any{}
 	limits := []map[string]any{}
 	ranging := []map[string]any{}
-	if r.Status == optimise.NotProven {
-		out["notes"] = r.Notes
-	}
 	if len(r.Blend) > 0 {
 		out["cost_per_tonne"] = round(r.CostPerTonne, 4)
 		out["batch_cost"] = round(r.BatchCost, 2)
@@ -131,6 +147,9 @@ func solveJSON(r *optimise.Result) map[string]any {
 	out["ranging"] = ranging
 	if r.Process != nil {
 		out["process"] = processJSON(r.Process)
+	}
+	if len(r.Notes) > 0 {
+		out["notes"] = r.Notes
 	}
 	return out
 }
@@ -181,6 +200,23 @@ func money(v float64, cur string) string {
 	return s + " " + cur
 }
 
+// writeBlendLines prints the blend table: each stock's share, tonnes and
+// price, and the totals.
+func writeBlendLines(w io.Writer, r *optimise.Result) {
+	fmt.Fprintf(w, "  %-14s %-34s %8s %9s %11s\n", "stock", "name", "%", "tonnes", "price/t")
+	prices := map[string]float64{}
+	for _, g := range r.Ranging {
+		prices[g.Stock] = g.Price
+	}
+	var sum, tonnes float64
+	for _, l := range r.Blend {
+		fmt.Fprintf(w, "  %-14s %-34s %8.2f %9.3f %11s\n", l.Stock, clip(l.Name, 34), l.Pct, l.Tonnes, money(prices[l.Stock], ""))
+		sum += l.Pct
+		tonnes += l.Tonnes
+	}
+	fmt.Fprintf(w, "  %-14s %-34s %8.2f %9.3f\n\n", "total", "", sum, tonnes)
+}
+
 // writeSolveText prints the report: blend table, costs, properties,
 // limits against the blend, what each binding limit costs, price ranging,
 // stocks left out, and the caution.
@@ -205,18 +241,7 @@ func writeSolveText(w io.Writer, r *optimise.Result, spec *catalogue.Spec, temps
 	} else {
 		fmt.Fprintf(w, "Cheapest blend found (%s):\n\n", engine)
 	}
-	fmt.Fprintf(w, "  %-14s %-34s %8s %9s %11s\n", "stock", "name", "%", "tonnes", "price/t")
-	prices := map[string]float64{}
-	for _, g := range r.Ranging {
-		prices[g.Stock] = g.Price
-	}
-	var sum, tonnes float64
-	for _, l := range r.Blend {
-		fmt.Fprintf(w, "  %-14s %-34s %8.2f %9.3f %11s\n", l.Stock, clip(l.Name, 34), l.Pct, l.Tonnes, money(prices[l.Stock], ""))
-		sum += l.Pct
-		tonnes += l.Tonnes
-	}
-	fmt.Fprintf(w, "  %-14s %-34s %8.2f %9.3f\n\n", "total", "", sum, tonnes)
+	writeBlendLines(w, r)
 	fmt.Fprintf(w, "  Cost: %s per tonne, %s per batch\n\n", money(r.CostPerTonne, r.Currency), money(r.BatchCost, r.Currency))
 
 	if r.Process != nil {
@@ -224,8 +249,8 @@ func writeSolveText(w io.Writer, r *optimise.Result, spec *catalogue.Spec, temps
 	}
 	fmt.Fprintln(w, "Properties of the blend")
 	heading := "SFC (% solid, linear in measured curves)"
-	if r.Process != nil && r.Process.SFCModel == "predicted" && len(r.Process.Feed) > 0 {
-		heading = "SFC (% solid: reacted fat by the TAG model, the other stocks by their measured curves, mass-weighted)"
+	if r.Process != nil && r.Process.SFCModel == "predicted" {
+		heading = "SFC (% solid, predicted by the TAG model for the whole blend: the stocks as they are and the reacted fat)"
 	}
 	writePropertiesAs(w, r.Properties, temps, heading)
 	fmt.Fprintln(w)

@@ -298,3 +298,19 @@ func TestSolveNotProvenWithinLimits(t *testing.T) {
 	assert.Equal(t, 2, code)
 	assert.Contains(t, errs, "--max-nodes")
 }
+
+// A predicted-SFC process spec states in JSON the TAG model used and how
+// far it has been measured off, and carries the solver's notes.
+func TestSolveProcessJSONStatesModelError(t *testing.T) {
+	code, out, errs := run(t, "solve", "--spec", "../../testdata/process-margarine.toml", "--format", "json")
+	require.Equal(t, 0, code, errs)
+	var got map[string]any
+	require.NoError(t, json.Unmarshal([]byte(out), &got))
+	m, ok := got["sfc_model"].(map[string]any)
+	require.True(t, ok, "sfc_model present")
+	assert.Contains(t, m["measured_error"], "RMS 7.9 % solid")
+	assert.Contains(t, m["method"], "solid-liquid equilibrium")
+	notes, ok := got["notes"].([]any)
+	require.True(t, ok)
+	assert.NotEmpty(t, notes)
+}

@@ -23,11 +23,16 @@ func (a *app) sweep(args []string) error {
 	specPath := fs.String("spec", "", "product spec TOML (default: the embedded demo laminating spec)")
 	price := fs.String("price", "", `stock and price range, e.g. "palm=800:1400:13"`)
 	format := fs.String("format", "text", "text or json")
-	svg := fs.String("svg", "", "also draw cost per tonne against price into this SVG file")
+	svg := fs.String("svg", "", "also draw cost per tonne against price into this SVG `file` (- = standard output, the report then goes to standard error)")
 	if err := a.parse(fs, args); err != nil {
 		return err
 	}
 	if err := checkFormat(*format, "text", "json"); err != nil {
+		return err
+	}
+	svgOut := output{"--svg", *svg}
+	report, err := a.reportTo(svgOut)
+	if err != nil {
 		return err
 	}
 	id, from, to, steps, err := parsePriceRange(*price)
@@ -47,14 +52,14 @@ func (a *app) sweep(args []string) error {
 		return err
 	}
 	if *svg != "" {
-		if err := catalogue.WriteFileAtomic(*svg, sweepSVG(r, spec), 0o644); err != nil {
-			return fmt.Errorf("--svg: %w", err)
+		if err := a.write(svgOut, sweepSVG(r, spec), *stocksPath, *specPath); err != nil {
+			return err
 		}
 	}
 	if *format == "json" {
-		return writeJSON(a.stdout, sweepJSON(r))
+		return writeJSON(report, sweepJSON(r))
 	}
-	writeSweepText(a.stdout, r, spec)
+	writeSweepText(report, r, spec)
 	return nil
 }
 
@@ -79,6 +84,14 @@ func parsePriceRange(s string) (id string, from, to float64, steps int, err erro
 	}
 	if steps, err = strconv.Atoi(parts[2]); err != nil {
 		return "", 0, 0, 0, bad("STEPS is not a whole number")
+	}
+	for _, end := range []struct {
+		name string
+		v    float64
+	}{{"FROM", from}, {"TO", to}} {
+		if err := catalogue.QtyPrice.Check("--price "+end.name, end.v); err != nil {
+			return "", 0, 0, 0, err
+		}
 	}
 	return id, from, to, steps, nil
 }

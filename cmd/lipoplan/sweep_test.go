@@ -57,7 +57,7 @@ func jsonNumber(v float64) string {
 }
 
 func TestSweepBadInput(t *testing.T) {
-	for _, p := range []string{"", "palm", "palm=1:2", "palm=a:2:3", "palm=1:2:x", "nosuch=1:2:3", "palm=5:5:3", "palm=1:2:1"} {
+	for _, p := range []string{"", "palm", "palm=1:2", "palm=a:2:3", "palm=1:2:x", "nosuch=1:2:3", "palm=5:5:3", "palm=1:2:1", "palm=1e25:1e26:3", "palm=-5:10:3", "palm=1:1e308:3"} {
 		code, _, errs := run(t, "sweep", "--price", p)
 		assert.Equal(t, 2, code, p)
 		assert.Contains(t, errs, "--price", p)

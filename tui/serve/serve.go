@@ -1,10 +1,12 @@
 // Package serve offers the lipoplan workspace to a team over SSH (charm wish).
 // Each SSH session gets its own workspace on a private copy of the scenario.
 // Only public-key authentication against an authorized_keys file is accepted;
-// the host key is created once (mode 0600) and reused; sessions are bounded in
-// number and dropped when idle; nothing is written to disk unless the server
-// was started writable. Every session's key fingerprint (SHA256) and times are
-// logged.
+// the host key is created once (mode 0600) and reused; a connection must log
+// in within a time limit and only so many may be logging in at once; sessions
+// are bounded in number and dropped when idle; a fault in one session ends
+// that session alone; nothing is written to disk unless the server was
+// started writable. No SHA-1 key exchange, MAC or signature is offered. Every
+// session's key fingerprint (SHA256) and times are logged.
 package serve
 
 import (
@@ -54,11 +56,24 @@ type Config struct {
 	MaxSessions int           // at most this many sessions at once (0 = 16)
 	IdleTimeout time.Duration // drop a connection with no traffic this long (0 = never)
 
+	// AuthTimeout closes a connection that has not logged in this long after
+	// it opened (0 = DefaultAuthTimeout); MaxPending bounds the connections
+	// not yet logged in, closing any beyond it at once (0 = DefaultMaxPending).
+	AuthTimeout time.Duration
+	MaxPending  int
+
 	Log io.Writer // session log; os.Stderr when nil
+
+	// wrap, when set (by tests), wraps each session's workspace model.
+	wrap func(tea.Model) tea.Model
 }
 
-// DefaultMaxSessions bounds sessions when Config.MaxSessions is 0.
-const DefaultMaxSessions = 16
+// Defaults of Config.
+const (
+	DefaultMaxSessions = 16
+	DefaultAuthTimeout = 15 * time.Second
+	DefaultMaxPending  = 20
+)
 
 // Server is a running or ready SSH workspace server.
 type Server struct {
@@ -67,8 +82,10 @@ type Server struct {
 	srv  *ssh.Server
 	log  *log.Logger
 
-	mu     sync.Mutex
-	active int
+	mu      sync.Mutex
+	active  int                        // sessions open
+	pending int                        // connections not yet logged in
+	guards  map[ssh.Session]*tui.Guard // each running session's workspace
 }
 
 // New checks the configuration, reads the authorized keys, creates or reads
@@ -90,6 +107,18 @@ func New(cfg Config) (*Server, error) {
 	if cfg.IdleTimeout < 0 {
 		return nil, catalogue.Badf("serve: --idle-timeout %v is negative; give a duration such as 15m, or 0 for none", cfg.IdleTimeout)
 	}
+	switch {
+	case cfg.AuthTimeout < 0:
+		return nil, catalogue.Badf("serve: --auth-timeout %v is negative; give a duration such as 15s", cfg.AuthTimeout)
+	case cfg.AuthTimeout == 0:
+		cfg.AuthTimeout = DefaultAuthTimeout
+	}
+	switch {
+	case cfg.MaxPending < 0:
+		return nil, catalogue.Badf("serve: --max-pending %d is negative; allow at least one connection to log in", cfg.MaxPending)
+	case cfg.MaxPending == 0:
+		cfg.MaxPending = DefaultMaxPending
+	}
 	if cfg.Log == nil {
 		cfg.Log = os.Stderr
 	}
@@ -106,17 +135,23 @@ func New(cfg Config) (*Server, error) {
 	if err != nil {
 		return nil, err
 	}
-	s := &Server{cfg: cfg, keys: keys, log: log.New(cfg.Log, "lipoplan serve: ", log.LstdFlags)}
+	s := &Server{cfg: cfg, keys: keys, log: log.New(cfg.Log, "lipoplan serve: ", log.LstdFlags), guards: map[ssh.Session]*tui.Guard{}}
 	srv, err := wish.NewServer(
 		wish.WithAddress(cfg.Listen),
 		wish.WithHostKeyPEM(hostPEM),
 		wish.WithPublicKeyAuth(s.allowed),
 		wish.WithIdleTimeout(cfg.IdleTimeout),
-		wish.WithVersion("SSH-2.0-lipoplan"),
+		// the library writes "SSH-2.0-" before it (RFC 4253 section 4.2)
+		wish.WithVersion("lipoplan"),
+		s.preAuth,
+		// run last to first: logged, recovered, bounded, activeterm, the
+		// workspace program, then (once the program ends) faultReported
 		wish.WithMiddleware(
+			s.faultReported,
 			bubbletea.MiddlewareWithProgramHandler(s.program),
 			activeterm.Middleware(),
 			s.bounded,
+			s.recovered,
 			s.logged,
 		),
 	)
@@ -131,7 +166,7 @@ func New(cfg Config) (*Server, error) {
 // with golang.org/x/crypto/ssh.ParseAuthorizedKey). Blank lines and # comments
 // are skipped; any other line that is not a key is an error naming the line.
 func LoadAuthorizedKeys(path string) ([]gossh.PublicKey, error) {
-	data, err := os.ReadFile(path)
+	data, err := catalogue.ReadInput(path)
 	if err != nil {
 		return nil, catalogue.Badf("serve: cannot read authorized keys %s: %v", path, pathErr(err))
 	}
@@ -174,7 +209,7 @@ func HostKey(path string) ([]byte, error) {
 			return nil, fmt.Errorf("serve: encoding the host key: %w", err)
 		}
 		data := pem.EncodeToMemory(block)
-		if err := catalogue.WriteFileAtomic(path, data, 0o600); err != nil {
+		if _, err := (catalogue.Output{Path: path, Perm: 0o600}).Write(data); err != nil {
 			return nil, catalogue.Badf("serve: cannot create host key %s: %v", path, err)
 		}
 		return data, nil
@@ -183,7 +218,7 @@ func HostKey(path string) ([]byte, error) {
 	case st.Mode().Perm()&0o077 != 0:
 		return nil, catalogue.Badf("serve: host key %s can be read by others (mode %04o); run chmod 600 %s", path, st.Mode().Perm(), path)
 	}
-	data, err := os.ReadFile(path)
+	data, err := catalogue.ReadInput(path)
 	if err != nil {
 		return nil, catalogue.Badf("serve: cannot read host key %s: %v", path, pathErr(err))
 	}
@@ -237,25 +272,33 @@ func (s *Server) logged(next ssh.Handler) ssh.Handler {
 // bounded refuses a session beyond MaxSessions with a message.
 func (s *Server) bounded(next ssh.Handler) ssh.Handler {
 	return func(sess ssh.Session) {
-		s.mu.Lock()
-		full := s.active >= s.cfg.MaxSessions
-		if !full {
-			s.active++
-		}
-		s.mu.Unlock()
-		if full {
+		if !s.take(&s.active, s.cfg.MaxSessions) {
 			s.log.Printf("refused session from %s: %d sessions already open (--max-sessions)", sess.RemoteAddr(), s.cfg.MaxSessions)
 			wish.Println(sess, fmt.Sprintf("lipoplan: the workspace server is full (%d sessions); try again later.\r", s.cfg.MaxSessions))
 			_ = sess.Exit(1)
 			return
 		}
-		defer func() {
-			s.mu.Lock()
-			s.active--
-			s.mu.Unlock()
-		}()
+		defer s.give(&s.active)
 		next(sess)
 	}
+}
+
+// take counts one more in *n (a field of s, under s.mu) unless it has
+// reached limit; give counts one less.
+func (s *Server) take(n *int, limit int) bool {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	if *n >= limit {
+		return false
+	}
+	*n++
+	return true
+}
+
+func (s *Server) give(n *int) {
+	s.mu.Lock()
+	*n--
+	s.mu.Unlock()
 }
 
 // Active returns the number of sessions open now.
@@ -265,6 +308,113 @@ func (s *Server) Active() int {
 	return s.active
 }
 
+// preAuth sets what holds before a connection has logged in: the algorithms
+// (no SHA-1), the time allowed to log in (AuthTimeout) and the cap on
+// connections still logging in (MaxPending).
+func (s *Server) preAuth(srv *ssh.Server) error {
+	srv.HandshakeTimeout = s.cfg.AuthTimeout
+	srv.ConnCallback = s.admit
+	srv.ServerConfigCallback = func(ctx ssh.Context) *gossh.ServerConfig {
+		cfg := &gossh.ServerConfig{Config: gossh.Config{KeyExchanges: kexAlgorithms(), MACs: macAlgorithms()}}
+		cfg.PublicKeyAuthAlgorithms = gossh.SupportedAlgorithms().PublicKeyAuths
+		cfg.AuthLogCallback = func(_ gossh.ConnMetadata, _ string, err error) {
+			if p, ok := ctx.Value(pendingKey{}).(*pendingConn); ok && err == nil {
+				p.loggedIn()
+			}
+		}
+		return cfg
+	}
+	return nil
+}
+
+// kexAlgorithms and macAlgorithms are golang.org/x/crypto/ssh's supported
+// (not insecure) algorithms without any built on SHA-1.
+func kexAlgorithms() []string { return withoutSHA1(gossh.SupportedAlgorithms().KeyExchanges) }
+func macAlgorithms() []string { return withoutSHA1(gossh.SupportedAlgorithms().MACs) }
+
+func withoutSHA1(algs []string) []string {
+	var out []string
+	for _, a := range algs {
+		if !strings.Contains(a, "sha1") {
+			out = append(out, a)
+		}
+	}
+	return out
+}
+
+// pendingKey holds a connection's *pendingConn in its ssh.Context.
+type pendingKey struct{}
+
+// pendingConn is a connection counted as pending until it logs in or closes.
+type pendingConn struct {
+	net.Conn
+	once sync.Once
+	done func()
+}
+
+func (p *pendingConn) loggedIn() { p.once.Do(p.done) }
+
+func (p *pendingConn) Close() error {
+	p.loggedIn()
+	return p.Conn.Close()
+}
+
+// admit counts a new connection as pending, or closes it at once when
+// MaxPending connections are already logging in.
+func (s *Server) admit(ctx ssh.Context, conn net.Conn) net.Conn {
+	if !s.take(&s.pending, s.cfg.MaxPending) {
+		s.log.Printf("refused connection from %s: %d connections are already logging in (--max-pending)", conn.RemoteAddr(), s.cfg.MaxPending)
+		return nil
+	}
+	p := &pendingConn{Conn: conn, done: func() { s.give(&s.pending) }}
+	ctx.SetValue(pendingKey{}, p)
+	return p
+}
+
+// Pending returns the number of connections not yet logged in.
+func (s *Server) Pending() int {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	return s.pending
+}
+
+// recovered ends a session whose handler panics with a message to it and a
+// log line; the server and the other sessions go on.
+func (s *Server) recovered(next ssh.Handler) ssh.Handler {
+	return func(sess ssh.Session) {
+		defer func() {
+			s.mu.Lock()
+			delete(s.guards, sess)
+			s.mu.Unlock()
+			if r := recover(); r != nil {
+				s.endOnFault(sess, fmt.Errorf("%v", r))
+			}
+		}()
+		next(sess)
+	}
+}
+
+// faultReported runs once a session's workspace has ended: a workspace that
+// stopped on a fault (tui.Guard) ends its session the same way.
+func (s *Server) faultReported(next ssh.Handler) ssh.Handler {
+	return func(sess ssh.Session) {
+		s.mu.Lock()
+		g := s.guards[sess]
+		s.mu.Unlock()
+		if g != nil && g.Fault() != nil {
+			s.endOnFault(sess, g.Fault())
+			return
+		}
+		next(sess)
+	}
+}
+
+func (s *Server) endOnFault(sess ssh.Session, err error) {
+	s.log.Printf("session fault user=%q from=%s: %v (the session ends; the server goes on)", sess.User(), sess.RemoteAddr(), err)
+	wish.Errorln(sess, tui.FaultMessage(err)+"\r")
+	_ = sess.Exit(1)
+}
+
 // program makes each session its own workspace on a copy of the scenario.
 // A client that reports no terminal size (OpenSSH with -tt and no local
 // terminal sends 0x0 in its pty-req and window-changes) gets 80x24 rather
@@ -272,7 +422,14 @@ func (s *Server) Active() int {
 // every later 0x0 size, which the wish middleware forwards from the session's
 // window channel and which would otherwise shrink the renderer to nothing.
 func (s *Server) program(sess ssh.Session) *tea.Program {
-	m := tui.NewWithScenario(s.cfg.Scenario.Clone(), s.cfg.Source, s.cfg.Files)
+	var m tea.Model = tui.NewWithScenario(s.cfg.Scenario.Clone(), s.cfg.Source, s.cfg.Files)
+	if s.cfg.wrap != nil {
+		m = s.cfg.wrap(m)
+	}
+	g := tui.NewGuard(m)
+	s.mu.Lock()
+	s.guards[sess] = g
+	s.mu.Unlock()
 	opts := bubbletea.MakeOptions(sess)
 	if pty, _, ok := sess.Pty(); ok && (pty.Window.Width <= 0 || pty.Window.Height <= 0) {
 		opts = append(opts, tea.WithWindowSize(80, 24))
@@ -280,7 +437,7 @@ func (s *Server) program(sess ssh.Session) *tea.Program {
 	// tea.WithFilter replaces the filter MakeOptions set, so keepKnownSize
 	// also does that filter's job (see its doc comment).
 	opts = append(opts, tea.WithFilter(keepKnownSize))
-	return tea.NewProgram(m, opts...)
+	return tea.NewProgram(g, opts...)
 }
 
 // keepKnownSize is the program's message filter. It drops a WindowSizeMsg
@@ -305,7 +462,8 @@ func keepKnownSize(_ tea.Model, msg tea.Msg) tea.Msg {
 
 // Serve accepts connections on l until Shutdown or Close.
 func (s *Server) Serve(l net.Listener) error {
-	s.log.Printf("serving the workspace on %s (%s; at most %d sessions; idle timeout %s)", l.Addr(), s.mode(), s.cfg.MaxSessions, idle(s.cfg.IdleTimeout))
+	s.log.Printf("serving the workspace on %s (%s; at most %d sessions; idle timeout %s; %s to log in, at most %d logging in at once)",
+		l.Addr(), s.mode(), s.cfg.MaxSessions, idle(s.cfg.IdleTimeout), s.cfg.AuthTimeout, s.cfg.MaxPending)
 	err := s.srv.Serve(l)
 	if errors.Is(err, ssh.ErrServerClosed) {
 		return nil

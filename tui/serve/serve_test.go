@@ -218,19 +218,23 @@ func sshKeygen(t *testing.T, dir, name string) (keyPath, pubLine string) {
 // openSSH runs the real OpenSSH client with its own empty config and
 // known_hosts beside the key: never /dev/null, which ssh may replace by
 // renaming a rewritten known_hosts over it when run as root.
-func openSSH(key, addr string) *exec.Cmd {
+// Extra options (e.g. "-o", "KexAlgorithms=...") come first, so they win
+// over these (ssh takes the first value of each option).
+func openSSH(key, addr string, extra ...string) *exec.Cmd {
 	host, port, _ := net.SplitHostPort(addr)
 	dir := filepath.Dir(key)
 	config := filepath.Join(dir, "ssh_config")
 	if _, err := os.Stat(config); err != nil {
 		_ = os.WriteFile(config, nil, 0o600)
 	}
-	cmd := exec.Command("/usr/bin/ssh", "-F", config, "-tt",
+	args := append([]string{"-F", config, "-tt"}, extra...)
+	args = append(args,
 		"-o", "StrictHostKeyChecking=no", "-o", "UserKnownHostsFile="+filepath.Join(dir, "known_hosts"),
 		"-o", "GlobalKnownHostsFile="+filepath.Join(dir, "global_known_hosts"), "-o", "UpdateHostKeys=no",
 		"-o", "BatchMode=yes", "-o", "IdentitiesOnly=yes", "-o", "IdentityAgent=none",
 		"-o", "PasswordAuthentication=no", "-o", "LogLevel=ERROR",
 		"-i", key, "-p", port, "formulator@"+host)
+	cmd := exec.Command("/usr/bin/ssh", args...)
 	cmd.Env = append(os.Environ(), "TERM=xterm-256color")
 	return cmd
 }
