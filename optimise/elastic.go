@@ -130,6 +130,15 @@ func (l *layout) elastic(base *model) (*model, []deficit) {
 
 // relaxation finds the smallest relaxation that makes the spec feasible.
 func (l *layout) relaxation(eng *engine, base *model) ([]Relax, error) {
+	r, _, err := l.relaxationNoted(eng, base)
+	return r, err
+}
+
+// relaxationNoted is relaxation with a note, set when integer rules make
+// the elastic programme a MILP and its branch and bound stopped at a limit:
+// the relaxation then makes the spec feasible but is not proven the
+// smallest.
+func (l *layout) relaxationNoted(eng *engine, base *model) ([]Relax, string, error) {
 	em, defs := l.elastic(base)
 	var s *solution
 	var err error
@@ -140,10 +149,17 @@ func (l *layout) relaxation(eng *engine, base *model) ([]Relax, error) {
 		s, err = eng.solveLP(em)
 	}
 	if err != nil {
-		return nil, fmt.Errorf("optimise %s: elastic programme: %w", specWhere(l.spec), err)
+		return nil, "", fmt.Errorf("optimise %s: elastic programme: %w", specWhere(l.spec), err)
 	}
-	if s.status != solOptimal {
-		return nil, catalogue.Badf("%s: no relaxation of the limits can be met: every stock is excluded or lacks the data the spec needs, or the [rules] cannot hold; allow at least one stock", specWhere(l.spec))
+	note := ""
+	switch s.status {
+	case solOptimal:
+	case solNotProven:
+		note = fmt.Sprintf("the relaxation shown makes the spec feasible but is not proven the smallest: branch and bound for the [rules] stopped at its limit after %d LPs", s.nodes)
+	case solNoSolution:
+		return nil, "", fmt.Errorf("optimise %s: elastic programme: branch and bound for the [rules] stopped at its limit after %d LPs without finding a relaxation", specWhere(l.spec), s.nodes)
+	default:
+		return nil, "", catalogue.Badf("%s: no relaxation of the limits can be met: every stock is excluded or lacks the data the spec needs, or the [rules] cannot hold; allow at least one stock", specWhere(l.spec))
 	}
 	var out []Relax
 	for _, d := range defs {
@@ -152,7 +168,7 @@ func (l *layout) relaxation(eng *engine, base *model) ([]Relax, error) {
 		}
 	}
 	sort.SliceStable(out, func(a, b int) bool { return out[a].Name < out[b].Name })
-	return out, nil
+	return out, note, nil
 }
 
 // Relaxed returns copies of cat and spec with the relaxation applied: each

@@ -109,11 +109,14 @@ func solveRules(eng *engine, base *model, lay *layout, rules catalogue.Rules) (*
 
 func infeasible(eng *engine, res *Result, base *model, lay *layout) (*Result, error) {
 	res.Status = Infeasible
-	r, err := lay.relaxation(eng, base)
+	r, note, err := lay.relaxationNoted(eng, base)
 	if err != nil {
 		return nil, err
 	}
 	res.Relaxation = r
+	if note != "" {
+		res.Notes = append(res.Notes, note)
+	}
 	return res, nil
 }
 
