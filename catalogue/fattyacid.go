@@ -1,6 +1,3 @@
-// Package catalogue holds the fatty-acid reference table, the stock catalogue
-// and product specifications, their strict TOML loading and validation, and
-// the embedded demo data of an invented plant.
 package catalogue
 
 import (
@@ -249,4 +246,25 @@ func ParseTemp(s string) (float64, error) {
 // fractional as "37.5".
 func TempKey(t float64) string {
 	return strconv.FormatFloat(t, 'f', -1, 64)
+}
+
+// MolPercent converts a FAME profile in wt% into mol% of fatty acids using the
+// methyl esters' molar masses (GC area% ~ wt% FAME, DESIGN section 5).
+// Unknown keys are skipped.
+func MolPercent(fa map[string]float64) map[string]float64 {
+	out := map[string]float64{}
+	var total float64
+	for k, w := range fa {
+		f, ok := Lookup(k)
+		if !ok || w <= 0 {
+			continue
+		}
+		n := w / f.EsterMolarMass()
+		out[k] = n
+		total += n
+	}
+	for k := range out {
+		out[k] *= 100 / total
+	}
+	return out
 }

@@ -1,0 +1,447 @@
+package catalogue
+
+import (
+	"fmt"
+	"math"
+	"path/filepath"
+	"sort"
+	"strings"
+
+	"github.com/BurntSushi/toml"
+)
+
+// The product spec (spec.toml; README, "File formats"): its types, decoding
+// and checks.
+
+// Bound is a closed interval; an absent side is -Inf or +Inf.
+type Bound struct {
+	Min float64
+	Max float64
+}
+
+// Free is a bound with neither side set.
+func Free() Bound { return Bound{Min: math.Inf(-1), Max: math.Inf(1)} }
+
+// HasMin reports whether the lower side is set.
+func (b Bound) HasMin() bool { return !math.IsInf(b.Min, -1) }
+
+// HasMax reports whether the upper side is set.
+func (b Bound) HasMax() bool { return !math.IsInf(b.Max, 1) }
+
+// Property names a spec limit may use besides fatty-acid keys.
+var Properties = []string{"iv", "sv", "safa", "mufa", "pufa", "trans", "cox", "omega3"}
+
+// IsProperty reports whether name is one of Properties.
+func IsProperty(name string) bool {
+	for _, p := range Properties {
+		if p == name {
+			return true
+		}
+	}
+	return false
+}
+
+// Limit is a bound on a property ("iv", "safa", ...) or a fatty acid ("C18:2").
+type Limit struct {
+	Name string
+	Bound
+}
+
+// SFCLimit bounds the solid fat content at one temperature.
+type SFCLimit struct {
+	Temp float64
+	Bound
+}
+
+// Use bounds the inclusion of one stock, % of batch.
+type Use struct {
+	Stock string
+	Bound
+}
+
+// Rules are the integer rules that need the MILP engine. Zero means unset.
+type Rules struct {
+	MaxStocks int     // at most this many stocks in the blend
+	MinIfUsed float64 // a stock used at all is used at no less than this % of batch
+}
+
+// Active reports whether any integer rule is set.
+func (r Rules) Active() bool { return r.MaxStocks > 0 || r.MinIfUsed > 0 }
+
+// Process is the optional interesterification before final blending.
+type Process struct {
+	Interesterify []string // stocks that pass through the reactor together
+	Method        string   // "chemical" or "enzymatic"
+	Cost          float64  // currency per tonne processed
+	SFC           string   // "measured" or "predicted"
+}
+
+// Spec is a product specification.
+type Spec struct {
+	File    string
+	ID      string // short id: the file's base name without extension ("laminating")
+	Name    string
+	Batch   float64    // tonnes
+	Limits  []Limit    // sorted by name
+	SFC     []SFCLimit // sorted by temperature
+	Use     []Use      // sorted by stock id
+	Rules   Rules
+	Process *Process // nil when the spec has no process step
+}
+
+// Clone returns a deep copy of the spec.
+func (s *Spec) Clone() *Spec {
+	out := *s
+	out.Limits = append([]Limit(nil), s.Limits...)
+	out.SFC = append([]SFCLimit(nil), s.SFC...)
+	out.Use = append([]Use(nil), s.Use...)
+	if s.Process != nil {
+		p := *s.Process
+		p.Interesterify = append([]string(nil), s.Process.Interesterify...)
+		out.Process = &p
+	}
+	return &out
+}
+
+// SortLimits puts limits, SFC limits and use bounds in their canonical order.
+func (s *Spec) SortLimits() {
+	sort.SliceStable(s.Limits, func(i, j int) bool { return s.Limits[i].Name < s.Limits[j].Name })
+	sort.SliceStable(s.SFC, func(i, j int) bool { return s.SFC[i].Temp < s.SFC[j].Temp })
+	sort.SliceStable(s.Use, func(i, j int) bool { return s.Use[i].Stock < s.Use[j].Stock })
+}
+
+// DefaultTemps are the SFC temperatures reported when none are asked for.
+var DefaultTemps = []float64{10, 15, 20, 25, 30, 35, 40, 45}
+
+type rawBound struct {
+	Min val `toml:"min"`
+	Max val `toml:"max"`
+}
+
+type rawRules struct {
+	MaxStocks val `toml:"max_stocks"`
+	MinIfUsed val `toml:"min_if_used"`
+}
+
+type rawProcess struct {
+	Interesterify val `toml:"interesterify"`
+	Method        val `toml:"method"`
+	Cost          val `toml:"cost"`
+	SFC           val `toml:"sfc"`
+}
+
+type rawSpec struct {
+	Name    val                       `toml:"name"`
+	Batch   val                       `toml:"batch"`
+	Limits  map[string]toml.Primitive `toml:"limits"`
+	Use     map[string]toml.Primitive `toml:"use"`
+	Rules   *rawRules                 `toml:"rules"`
+	Process *rawProcess               `toml:"process"`
+}
+
+// Known keys of the spec's fixed tables, in the order the messages list them.
+var (
+	keysSpecTop = []string{"name", "batch", "limits", "use", "rules", "process"}
+	keysBound   = []string{"min", "max"}
+	keysRules   = []string{"max_stocks", "min_if_used"}
+	keysProcess = []string{"interesterify", "method", "cost", "sfc"}
+)
+
+// ParseSpec decodes and validates a product spec (DESIGN section 3). When cat
+// is non-nil every stock id named in [use] and [process] must exist in it.
+// The spec's ID is the file's base name without extension.
+func ParseSpec(name string, data []byte, cat *Catalogue) (*Spec, Problems) {
+	c := &collector{file: name}
+	var raw rawSpec
+	md, ok := c.decode(data, &raw)
+	if !ok {
+		return nil, c.problems()
+	}
+	spec := c.spec(md, raw, cat)
+	c.unknownKeys(md,
+		func(parent toml.Key) ([]string, bool) {
+			switch {
+			case len(parent) == 0:
+				return keysSpecTop, true
+			case len(parent) == 1 && parent[0] == "rules":
+				return keysRules, true
+			case len(parent) == 1 && parent[0] == "process":
+				return keysProcess, true
+			case len(parent) == 2 && parent[0] == "limits" && parent[1] != "sfc",
+				len(parent) == 3 && parent[0] == "limits" && parent[1] == "sfc",
+				len(parent) == 2 && parent[0] == "use":
+				return keysBound, true
+			}
+			return nil, false
+		},
+		func(_ int, k toml.Key) string {
+			switch {
+			case len(k) >= 4 && k[0] == "limits" && k[1] == "sfc":
+				return fmt.Sprintf("limit \"sfc.%s\"", k[2])
+			case len(k) >= 3 && k[0] == "limits" && k[1] != "sfc":
+				return fmt.Sprintf("limit %q", k[1])
+			case len(k) >= 3 && k[0] == "use":
+				return fmt.Sprintf("use %q", k[1])
+			case len(k) >= 2 && (k[0] == "rules" || k[0] == "process"):
+				return "[" + k[0] + "]"
+			}
+			return ""
+		})
+	if c.failed() {
+		return nil, c.problems()
+	}
+	spec.File = name
+	spec.ID = SpecID(name)
+	return spec, c.problems()
+}
+
+// SpecID is the short id of a spec file: its base name without extension.
+func SpecID(name string) string {
+	base := filepath.Base(name)
+	return strings.TrimSuffix(base, filepath.Ext(base))
+}
+
+// LoadSpec reads and parses a product spec file.
+func LoadSpec(path string, cat *Catalogue) (*Spec, Problems) {
+	data, err := ReadInput(path)
+	if err != nil {
+		return nil, readProblem(path, err, "product spec")
+	}
+	return ParseSpec(path, data, cat)
+}
+
+// bound decodes and checks one { min = ..., max = ... } table whose sides
+// are values of q.
+func (c *collector) bound(md toml.MetaData, where string, p toml.Primitive, q Quantity, example string) (Bound, bool) {
+	var rb rawBound
+	if err := md.PrimitiveDecode(p, &rb); err != nil {
+		var v any
+		_ = md.PrimitiveDecode(p, &v)
+		switch x := v.(type) {
+		case int64, float64:
+			c.errf(where, "must be a table with min and/or max, not a bare number; write e.g. %s = { max = %v } or { min = %v }", example, x, x)
+		default:
+			c.errf(where, "must be a table with min and/or max, not %s; write e.g. %s = { min = 38, max = 48 }", describe(v), example)
+		}
+		return Bound{}, false
+	}
+	b := Free()
+	good := true
+	if v, ok := c.num(where, "min", rb.Min); ok {
+		b.Min = v
+	} else if rb.Min.set {
+		good = false
+	}
+	if v, ok := c.num(where, "max", rb.Max); ok {
+		b.Max = v
+	} else if rb.Max.set {
+		good = false
+	}
+	if !good {
+		return b, false
+	}
+	if !rb.Min.set && !rb.Max.set {
+		c.errf(where, "has neither min nor max; give at least one, e.g. %s = { max = 48 }", example)
+		return b, false
+	}
+	for _, side := range []struct {
+		name string
+		v    float64
+		set  bool
+	}{{"min", b.Min, rb.Min.set}, {"max", b.Max, rb.Max.set}} {
+		if side.set && !c.magnitude(where, q, side.name, side.v, "") {
+			good = false
+		}
+	}
+	if b.HasMin() && b.HasMax() && b.Min > b.Max {
+		c.errf(where, "min = %g is above max = %g; swap or correct them", b.Min, b.Max)
+		good = false
+	}
+	return b, good
+}
+
+// limitNames lists every name a [limits] key may take, for suggestions.
+func limitNames() []string {
+	return append(append(append([]string(nil), Properties...), "sfc"), Keys()...)
+}
+
+// spec converts and checks a decoded spec.
+func (c *collector) spec(md toml.MetaData, raw rawSpec, cat *Catalogue) *Spec {
+	s := &Spec{}
+	if !raw.Name.set {
+		c.errf(`key "name"`, `name is missing; add name = "..." describing the product`)
+	} else if name, ok := c.str(`key "name"`, "name", raw.Name); ok {
+		if strings.TrimSpace(name) == "" {
+			c.errf(`key "name"`, `name is empty; describe the product, e.g. name = "Bakery shortening"`)
+		}
+		s.Name = name
+	}
+	if !raw.Batch.set {
+		c.errf(`key "batch"`, "batch is missing; add batch = <tonnes>, e.g. batch = 25.0")
+	} else if b, ok := c.num(`key "batch"`, "batch", raw.Batch); ok {
+		c.magnitude(`key "batch"`, QtyTonnes, "batch", b, "give the tonnes of one batch")
+		s.Batch = b
+	}
+	for _, key := range []string{"limits", "use"} {
+		if t := md.Type(key); t != "" && t != "Hash" {
+			c.errf(fmt.Sprintf("key %q", key), "%s must be a table; write [%s] and then one line per entry, e.g. %s", key, key,
+				map[string]string{"limits": "iv = { min = 38, max = 48 }", "use": `"pko" = { max = 25 }`}[key])
+		}
+	}
+	for _, name := range sortedPrims(raw.Limits) {
+		p := raw.Limits[name]
+		if name == "sfc" {
+			c.sfcLimits(md, s, p)
+			continue
+		}
+		where := fmt.Sprintf("limit %q", name)
+		if !IsProperty(name) {
+			if _, ok := Lookup(name); !ok {
+				msg := fmt.Sprintf("unknown limit %q; limits are %s, sfc, or a fatty-acid key such as \"C18:2\"", name, strings.Join(Properties, ", "))
+				if sug, ok := c.suggest(name, limitNames()); ok {
+					msg += fmt.Sprintf("; did you mean %q?", sug)
+				}
+				c.errf(where, "%s", msg)
+				var skip rawBound
+				_ = md.PrimitiveDecode(p, &skip) // mark min/max as seen: the name is reported here
+				continue
+			}
+		}
+		if b, ok := c.bound(md, where, p, LimitQuantity(name), tomlKey(name)); ok {
+			s.Limits = append(s.Limits, Limit{Name: name, Bound: b})
+		}
+	}
+	for _, id := range sortedPrims(raw.Use) {
+		where := fmt.Sprintf("use %q", id)
+		b, ok := c.bound(md, where, raw.Use[id], QtyPercent, tomlKey(id))
+		if cat != nil {
+			if _, found := cat.Find(id); !found {
+				c.errf(where, "no stock %q in %s; %s", id, catName(cat), c.stockHint(id, cat))
+				ok = false
+			}
+		}
+		if ok {
+			s.Use = append(s.Use, Use{Stock: id, Bound: b})
+		}
+	}
+	var minSum float64
+	var mins []string
+	for _, u := range s.Use {
+		if u.HasMin() && u.Min > 0 {
+			minSum += u.Min
+			mins = append(mins, fmt.Sprintf("%s %g", u.Stock, u.Min))
+		}
+	}
+	if minSum > 100+1e-9 {
+		c.errf("[use]", "the minimum shares add up to %g %% of the batch (%s), more than 100 %%; lower some of them", minSum, strings.Join(mins, ", "))
+	}
+	if raw.Rules != nil {
+		s.Rules = c.rules(*raw.Rules)
+	}
+	if raw.Process != nil {
+		s.Process = c.process(*raw.Process, cat)
+	}
+	s.SortLimits()
+	return s
+}
+
+func (c *collector) sfcLimits(md toml.MetaData, s *Spec, p toml.Primitive) {
+	var temps map[string]toml.Primitive
+	if err := md.PrimitiveDecode(p, &temps); err != nil || (md.Type("limits", "sfc") != "" && md.Type("limits", "sfc") != "Hash") {
+		c.errf(`limit "sfc"`, `limits.sfc must be a table of temperatures; write [limits.sfc] and then lines such as "20" = { min = 38, max = 48 }`)
+		return
+	}
+	seen := map[float64]string{}
+	for _, k := range sortedPrims(temps) {
+		where := fmt.Sprintf("limit \"sfc.%s\"", k)
+		t, ok := c.temp(where, "limits.sfc", k)
+		b, bok := c.bound(md, where, temps[k], QtyPercent, tomlKey(k))
+		if !ok || !bok {
+			continue
+		}
+		if prev, dup := seen[t]; dup {
+			c.errf(where, "limits.sfc keys %q and %q are the same temperature; keep one", prev, k)
+			continue
+		}
+		seen[t] = k
+		s.SFC = append(s.SFC, SFCLimit{Temp: t, Bound: b})
+	}
+}
+
+func (c *collector) rules(r rawRules) Rules {
+	var out Rules
+	const where = "[rules]"
+	if v, ok := c.num(where, "max_stocks", r.MaxStocks); ok {
+		switch {
+		case v != math.Trunc(v):
+			c.errf(where, "max_stocks = %g must be a whole number of stocks", v)
+		case v < 1:
+			c.errf(where, "max_stocks = %g must be at least 1", v)
+		case v > 1e6:
+			c.errf(where, "max_stocks = %g is implausibly large; give the number of stocks allowed", v)
+		default:
+			out.MaxStocks = int(v)
+		}
+	}
+	if v, ok := c.num(where, "min_if_used", r.MinIfUsed); ok {
+		if v <= 0 || v > 100 {
+			c.errf(where, "min_if_used = %g must be above 0 and at most 100 (%% of batch)", v)
+		} else {
+			out.MinIfUsed = v
+		}
+	}
+	return out
+}
+
+func (c *collector) process(r rawProcess, cat *Catalogue) *Process {
+	const where = "[process]"
+	p := &Process{SFC: "predicted"}
+	if !r.Interesterify.set {
+		c.errf(where, `interesterify is missing; list the stocks that go through the reactor, e.g. interesterify = ["ps-h", "pko-r"]`)
+	} else if arr, ok := r.Interesterify.v.([]any); !ok {
+		c.errf(where, `interesterify must be an array of stock ids, e.g. ["ps-h", "pko-r"], not %s`, describe(r.Interesterify.v))
+	} else {
+		if len(arr) == 0 {
+			c.errf(where, "interesterify is empty; list at least one stock id, or remove [process]")
+		}
+		seen := map[string]bool{}
+		for _, a := range arr {
+			id, ok := a.(string)
+			if !ok {
+				c.errf(where, "interesterify entries must be stock ids in quotes, not %s", describe(a))
+				continue
+			}
+			if seen[id] {
+				c.errf(where, "interesterify lists %q twice; list each stock once", id)
+				continue
+			}
+			seen[id] = true
+			if cat != nil {
+				if _, found := cat.Find(id); !found {
+					c.errf(where, "interesterify names %q, which is not in %s; %s", id, catName(cat), c.stockHint(id, cat))
+					continue
+				}
+			}
+			p.Interesterify = append(p.Interesterify, id)
+		}
+	}
+	if !r.Method.set {
+		c.errf(where, `method is missing; add method = "chemical" (random) or "enzymatic" (sn-1,3 lipase)`)
+	} else if m, ok := c.str(where, "method", r.Method); ok {
+		if m != "chemical" && m != "enzymatic" {
+			c.errf(where, `method %q is not known; use "chemical" or "enzymatic"`, m)
+		}
+		p.Method = m
+	}
+	if v, ok := c.num(where, "cost", r.Cost); ok {
+		c.magnitude(where, QtyPrice, "cost", v, "give the processing cost per tonne")
+		p.Cost = v
+	}
+	if m, ok := c.str(where, "sfc", r.SFC); ok {
+		if m != "measured" && m != "predicted" {
+			c.errf(where, `sfc %q is not known; use "measured" (linear in the stocks' curves) or "predicted" (TAG model)`, m)
+		}
+		p.SFC = m
+	}
+	return p
+}

@@ -1,0 +1,453 @@
+package catalogue
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strings"
+
+	"github.com/BurntSushi/toml"
+)
+
+// The stock catalogue (stocks.toml; README, "File formats"): its types,
+// decoding and checks.
+
+// Point is one measured SFC value: percent solid at a temperature in deg C.
+type Point struct {
+	Temp  float64
+	Solid float64
+}
+
+// Curve is a measured SFC curve sorted by temperature.
+type Curve []Point
+
+// At interpolates the curve linearly at temperature t. It reports false when t
+// lies outside the measured range (no extrapolation) or the curve is empty.
+func (c Curve) At(t float64) (float64, bool) {
+	if len(c) == 0 {
+		return 0, false
+	}
+	const eps = 1e-9
+	if t < c[0].Temp-eps || t > c[len(c)-1].Temp+eps {
+		return 0, false
+	}
+	for i, p := range c {
+		if math.Abs(p.Temp-t) <= eps {
+			return p.Solid, true
+		}
+		if i > 0 && t < p.Temp {
+			q := c[i-1]
+			f := (t - q.Temp) / (p.Temp - q.Temp)
+			return q.Solid + f*(p.Solid-q.Solid), true
+		}
+	}
+	return 0, false
+}
+
+// Stock is one oil or fat the plant holds or can buy.
+type Stock struct {
+	ID         string
+	Name       string
+	Price      float64            // currency per tonne
+	Available  float64            // tonnes on hand; +Inf when unlimited
+	FattyAcids map[string]float64 // wt% as FAME, keys are shorthand
+	SN2        map[string]float64 // mol% of each FA found at sn-2; nil when unknown
+	SFC        Curve              // measured SFC; nil when unknown
+	TAGs       map[string]float64 // measured TAG profile, mol% by letter code; nil when unknown
+}
+
+// Limited reports whether the stock has a finite availability.
+func (s Stock) Limited() bool { return !math.IsInf(s.Available, 1) }
+
+// Catalogue is a loaded stock catalogue.
+type Catalogue struct {
+	File     string // where it came from, for messages
+	Currency string
+	Stocks   []Stock
+}
+
+// Find returns the stock with the given id.
+func (c *Catalogue) Find(id string) (*Stock, bool) {
+	for i := range c.Stocks {
+		if c.Stocks[i].ID == id {
+			return &c.Stocks[i], true
+		}
+	}
+	return nil, false
+}
+
+// Clone returns a deep copy, so that what-if edits never touch the original.
+func (c *Catalogue) Clone() *Catalogue {
+	out := &Catalogue{File: c.File, Currency: c.Currency, Stocks: make([]Stock, len(c.Stocks))}
+	for i, s := range c.Stocks {
+		s.FattyAcids = cloneMap(s.FattyAcids)
+		s.SN2 = cloneMap(s.SN2)
+		s.TAGs = cloneMap(s.TAGs)
+		s.SFC = append(Curve(nil), s.SFC...)
+		out.Stocks[i] = s
+	}
+	return out
+}
+
+func cloneMap(m map[string]float64) map[string]float64 {
+	if m == nil {
+		return nil
+	}
+	out := make(map[string]float64, len(m))
+	for k, v := range m {
+		out[k] = v
+	}
+	return out
+}
+
+type rawStock struct {
+	ID         val     `toml:"id"`
+	Name       val     `toml:"name"`
+	Price      val     `toml:"price"`
+	Available  val     `toml:"available"`
+	FattyAcids leafMap `toml:"fatty_acids"`
+	SN2        leafMap `toml:"sn2"`
+	SFC        leafMap `toml:"sfc"`
+	TAGs       leafMap `toml:"tags"`
+}
+
+type rawStocks struct {
+	Currency val        `toml:"currency"`
+	Stock    []rawStock `toml:"stock"`
+}
+
+// Known keys of the catalogue's fixed tables, in the order the messages list them.
+var (
+	keysStocksTop = []string{"currency", "stock"}
+	keysStock     = []string{"id", "name", "price", "available", "fatty_acids", "sn2", "sfc", "tags"}
+)
+
+// Tolerances of the composition checks (DESIGN section 3).
+const (
+	sumTolerance = 1.0 // a profile summing outside 100 +- 1 is an error
+	sumWarn      = 0.3 // beyond 100 +- 0.3 it is a warning
+	// sn13Floor is how far below zero the sn-1,3 share implied by an sn-2
+	// analysis, x13 = (3x - x2)/2 (1,3-random-2-random), may fall before we
+	// warn, in mol%; it allows for analytical scatter (common practice).
+	sn13Floor = -1.0
+	minTemp   = -40.0
+	maxTemp   = 100.0
+)
+
+// validID reports whether id matches [a-z0-9-]+.
+func validID(id string) bool {
+	if id == "" {
+		return false
+	}
+	for _, r := range id {
+		if !(r >= 'a' && r <= 'z' || r >= '0' && r <= '9' || r == '-') {
+			return false
+		}
+	}
+	return true
+}
+
+func stockLabel(i int, id val) string {
+	if s, ok := id.v.(string); ok && s != "" {
+		return fmt.Sprintf("stock %q", s)
+	}
+	return fmt.Sprintf("stock #%d", i+1)
+}
+
+// ParseStocks decodes and validates a stock catalogue (DESIGN section 3).
+// name is the file name used in messages. The catalogue is nil when any
+// problem is an error; warnings come back with a usable catalogue.
+func ParseStocks(name string, data []byte) (*Catalogue, Problems) {
+	c := &collector{file: name}
+	var raw rawStocks
+	md, ok := c.decode(data, &raw)
+	if !ok {
+		return nil, c.problems()
+	}
+	// Stock labels by document position: each [[stock]] header is one key "stock".
+	labels := make([]string, len(raw.Stock))
+	for i, s := range raw.Stock {
+		labels[i] = stockLabel(i, s.ID)
+	}
+	var pos []int // index into md.Keys() of each [[stock]] header
+	for i, k := range md.Keys() {
+		if len(k) == 1 && k[0] == "stock" {
+			pos = append(pos, i)
+		}
+	}
+	c.unknownKeys(md,
+		func(parent toml.Key) ([]string, bool) {
+			switch {
+			case len(parent) == 0:
+				return keysStocksTop, true
+			case len(parent) == 1 && parent[0] == "stock":
+				return keysStock, true
+			}
+			return nil, false
+		},
+		func(i int, k toml.Key) string {
+			if k[0] != "stock" || len(k) == 1 {
+				return ""
+			}
+			n := -1
+			for j, p := range pos {
+				if p < i {
+					n = j
+				}
+			}
+			if n >= 0 && n < len(labels) && len(pos) == len(labels) {
+				return labels[n]
+			}
+			return "stock"
+		})
+	cat := c.stocks(raw)
+	if c.failed() {
+		return nil, c.problems()
+	}
+	cat.File = name
+	return cat, c.problems()
+}
+
+// LoadStocks reads and parses a stock catalogue file.
+func LoadStocks(path string) (*Catalogue, Problems) {
+	data, err := ReadInput(path)
+	if err != nil {
+		return nil, readProblem(path, err, "stock catalogue")
+	}
+	return ParseStocks(path, data)
+}
+
+// stocks converts and checks a decoded catalogue.
+func (c *collector) stocks(raw rawStocks) *Catalogue {
+	cat := &Catalogue{Currency: "EUR"}
+	if raw.Currency.set {
+		s, ok := c.str(`key "currency"`, "currency", raw.Currency)
+		if ok && strings.TrimSpace(s) == "" {
+			c.errf(`key "currency"`, `currency is empty; write e.g. currency = "EUR" or leave it out`)
+		} else if ok {
+			cat.Currency = s
+		}
+	}
+	if len(raw.Stock) == 0 {
+		c.errf("", "no stocks: add at least one [[stock]] table with id, price and [stock.fatty_acids]")
+	}
+	seen := map[string]int{}
+	for i, rs := range raw.Stock {
+		s := c.stock(i, rs)
+		if s.ID != "" {
+			if j, dup := seen[s.ID]; dup {
+				c.errf(fmt.Sprintf("stock #%d", i+1), "id %q is already used by stock #%d; give each stock its own id", s.ID, j+1)
+			} else {
+				seen[s.ID] = i
+			}
+		}
+		cat.Stocks = append(cat.Stocks, s)
+	}
+	return cat
+}
+
+func (c *collector) stock(i int, rs rawStock) Stock {
+	where := stockLabel(i, rs.ID)
+	s := Stock{Available: math.Inf(1)}
+	if !rs.ID.set {
+		c.errf(where, `id is missing; add id = "..." (lower-case letters, digits and -)`)
+	} else if id, ok := c.str(where, "id", rs.ID); ok {
+		if validID(id) {
+			s.ID = id
+		} else {
+			c.errf(where, "id %q may use only lower-case letters a-z, digits 0-9 and '-' (e.g. \"pko-r\"); rename it", id)
+		}
+	}
+	if name, ok := c.str(where, "name", rs.Name); ok {
+		s.Name = name
+	}
+	if !rs.Price.set {
+		c.errf(where, "price is missing; add price = <currency per tonne>, e.g. price = 1150.0")
+	} else if p, ok := c.num(where, "price", rs.Price); ok {
+		if c.magnitude(where, QtyPrice, "price", p, "give the price in currency per tonne") {
+			s.Price = p
+		}
+	}
+	if a, ok := c.num(where, "available", rs.Available); ok {
+		if c.magnitude(where, QtyOnHand, "available", a, "give tonnes on hand, or leave it out for unlimited purchase") {
+			s.Available = a
+		}
+	}
+	if !rs.FattyAcids.set {
+		c.errf(where, "fatty_acids is missing; add a [stock.fatty_acids] table of wt%% as FAME, e.g. \"C16:0\" = 44.0")
+	} else if fa, ok := c.faMap(where, "fatty_acids", rs.FattyAcids); ok {
+		s.FattyAcids = fa
+		if len(fa) == 0 {
+			c.errf(where, "fatty_acids is empty; list the wt%% of each fatty acid as FAME")
+		} else {
+			c.checkSum(where, "fatty_acids", "wt%", fa, true)
+		}
+	}
+	if rs.SN2.set {
+		if sn2, ok := c.faMap(where, "sn2", rs.SN2); ok && len(sn2) > 0 {
+			s.SN2 = sn2
+			c.checkSum(where, "sn2", "mol%", sn2, false)
+			if s.FattyAcids != nil {
+				c.checkSN2(where, s.FattyAcids, sn2)
+			}
+		}
+	}
+	if rs.SFC.set {
+		s.SFC = c.curve(where, rs.SFC)
+	}
+	if rs.TAGs.set {
+		s.TAGs = c.tags(where, rs.TAGs)
+	}
+	if s.Name == "" {
+		s.Name = s.ID
+	}
+	return s
+}
+
+// faMap reads a table keyed by fatty-acid shorthand with non-negative values.
+func (c *collector) faMap(where, table string, lm leafMap) (map[string]float64, bool) {
+	if lm.m == nil {
+		c.errf(where, "%s must be a table, not %s; write [stock.%s] and then lines such as \"C16:0\" = 44.0", table, describe(lm.raw), table)
+		return nil, false
+	}
+	out := map[string]float64{}
+	good := true
+	for _, k := range sortedKeys(lm.m) {
+		if _, ok := Lookup(k); !ok {
+			msg := fmt.Sprintf("%s: unknown fatty-acid key %q;", table, k)
+			if s, ok := c.suggest(k, Keys()); ok {
+				msg += fmt.Sprintf(" did you mean %q?", s)
+			}
+			c.errf(where, "%s known keys are %s", msg, strings.Join(Keys(), ", "))
+			good = false
+			continue
+		}
+		label := fmt.Sprintf("%s %q", table, k)
+		f, ok := c.num(where, label, val{v: lm.m[k], set: true})
+		if !ok {
+			good = false
+			continue
+		}
+		if f < 0 {
+			c.errf(where, "%s = %g is negative; use 0 or remove the entry", label, f)
+			good = false
+			continue
+		}
+		out[k] = f
+	}
+	return out, good
+}
+
+// checkSum reports a profile that does not sum to 100: an error outside
+// +-1, a warning outside +-0.3 when warn is set.
+func (c *collector) checkSum(where, table, unit string, m map[string]float64, warn bool) {
+	var sum float64
+	for _, v := range m {
+		sum += v
+	}
+	d := math.Abs(sum - 100)
+	switch {
+	case d > sumTolerance:
+		c.errf(where, "%s sum to %.2f %s, not 100 +- %.1f; correct the values or add the missing entries", table, sum, unit, sumTolerance)
+	case warn && d > sumWarn:
+		c.warnf(where, "%s sum to %.2f %s (more than %.1f away from 100); check the analysis", table, sum, unit, sumWarn)
+	}
+}
+
+// checkSN2 compares an sn-2 analysis with the whole-fat profile: every acid
+// at sn-2 must occur in the fat, and the sn-1,3 share implied by the
+// 1,3-random-2-random relation x13 = (3x - x2)/2 (Vander Wal; Coleman), with
+// x the acid's mol% in the whole fat, should not be negative.
+func (c *collector) checkSN2(where string, fa, sn2 map[string]float64) {
+	mol := MolPercent(fa)
+	for _, k := range SortedKeys(sn2) {
+		x2 := sn2[k]
+		if x2 <= 0 {
+			continue
+		}
+		if fa[k] <= 0 {
+			c.errf(where, "sn2 %q = %g mol%% but fatty_acids has no %s; add it to fatty_acids or remove it from sn2", k, x2, k)
+			continue
+		}
+		x := mol[k]
+		if x13 := (3*x - x2) / 2; x13 < sn13Floor {
+			c.warnf(where, "sn2 %q = %.1f mol%% is more than three times its share of the whole fat (%.1f mol%%), leaving %.1f mol%% at sn-1,3; check the sn-2 analysis", k, x2, x, x13)
+		}
+	}
+}
+
+// curve reads a measured SFC table.
+func (c *collector) curve(where string, lm leafMap) Curve {
+	if lm.m == nil {
+		c.errf(where, "sfc must be a table, not %s; write [stock.sfc] and then lines such as \"20\" = 26.0", describe(lm.raw))
+		return nil
+	}
+	var out Curve
+	seen := map[float64]string{}
+	for _, k := range sortedKeys(lm.m) {
+		t, ok := c.temp(where, "sfc", k)
+		if !ok {
+			continue
+		}
+		label := fmt.Sprintf("sfc %q", k)
+		v, ok := c.num(where, label, val{v: lm.m[k], set: true})
+		if !ok {
+			continue
+		}
+		if v < 0 || v > 100 {
+			c.errf(where, "%s = %g is outside 0..100 %% solid; check the value", label, v)
+			continue
+		}
+		if prev, dup := seen[t]; dup {
+			c.errf(where, "sfc keys %q and %q are the same temperature; keep one", prev, k)
+			continue
+		}
+		seen[t] = k
+		out = append(out, Point{Temp: t, Solid: v})
+	}
+	sort.Slice(out, func(i, j int) bool { return out[i].Temp < out[j].Temp })
+	for i := 1; i < len(out); i++ {
+		if out[i].Solid > out[i-1].Solid {
+			c.warnf(where, "sfc rises from %g %% at %s C to %g %% at %s C; solid fat should not increase with temperature, check the measurement",
+				out[i-1].Solid, TempKey(out[i-1].Temp), out[i].Solid, TempKey(out[i].Temp))
+		}
+	}
+	if len(out) == 0 {
+		return nil
+	}
+	return out
+}
+
+// tags reads a measured TAG profile keyed by letter code (sn-1, sn-2, sn-3).
+func (c *collector) tags(where string, lm leafMap) map[string]float64 {
+	if lm.m == nil {
+		c.errf(where, "tags must be a table, not %s; write [stock.tags] and then lines such as \"POP\" = 23.1", describe(lm.raw))
+		return nil
+	}
+	out := map[string]float64{}
+	good := true
+	for _, k := range sortedKeys(lm.m) {
+		if _, err := ParseTAGCode(k); err != nil {
+			c.errf(where, "tags: %v; write three letter codes in sn-1, sn-2, sn-3 order, e.g. \"POP\"", err)
+			good = false
+			continue
+		}
+		label := fmt.Sprintf("tags %q", k)
+		v, ok := c.num(where, label, val{v: lm.m[k], set: true})
+		if !ok {
+			good = false
+			continue
+		}
+		if v < 0 {
+			c.errf(where, "%s = %g is negative; use 0 or remove the entry", label, v)
+			good = false
+			continue
+		}
+		out[k] = v
+	}
+	if !good || len(out) == 0 {
+		return nil
+	}
+	c.checkSum(where, "tags", "mol%", out, false)
+	return out
+}
