@@ -306,11 +306,19 @@ func (c *collector) num(where, label string, x val) (float64, bool) {
 		c.errf(where, "%s must be a number, not %s; write a plain number without quotes", label, describe(x.v))
 		return 0, false
 	}
-	if math.IsNaN(f) || math.IsInf(f, 0) {
-		c.errf(where, "%s = %v is not a finite number; give a plain number", label, f)
+	if !c.finite(where, label, f) {
 		return 0, false
 	}
 	return f, true
+}
+
+// finite reports a value that is NaN or infinite, naming label.
+func (c *collector) finite(where, label string, f float64) bool {
+	if math.IsNaN(f) || math.IsInf(f, 0) {
+		c.errf(where, "%s = %v is not a finite number; give a plain number", label, f)
+		return false
+	}
+	return true
 }
 
 // magnitude reports v under where when it is outside the accepted range of
@@ -341,7 +349,8 @@ func (c *collector) str(where, label string, x val) (string, bool) {
 	return s, true
 }
 
-func sortedKeys(m map[string]any) []string {
+// sortedKeys returns the keys of m in string order, for messages in a fixed order.
+func sortedKeys[V any](m map[string]V) []string {
 	keys := make([]string, 0, len(m))
 	for k := range m {
 		keys = append(keys, k)
@@ -349,6 +358,12 @@ func sortedKeys(m map[string]any) []string {
 	sort.Strings(keys)
 	return keys
 }
+
+// The temperatures an SFC value or limit may be given at, deg C.
+const (
+	minTemp = -40.0
+	maxTemp = 100.0
+)
 
 // temp reads an SFC temperature key in deg C.
 func (c *collector) temp(where, label, key string) (float64, bool) {
@@ -357,20 +372,20 @@ func (c *collector) temp(where, label, key string) (float64, bool) {
 		c.errf(where, "%s key %q is not a temperature; keys are degrees C in quotes, e.g. \"20\" or \"37.5\"", label, key)
 		return 0, false
 	}
-	if t < minTemp || t > maxTemp {
-		c.errf(where, "%s temperature %q is outside %g..%g C; check the key", label, key, minTemp, maxTemp)
-		return 0, false
-	}
-	return t, true
+	return t, c.tempRange(where, label, key, t)
 }
 
-func sortedPrims(m map[string]toml.Primitive) []string {
-	keys := make([]string, 0, len(m))
-	for k := range m {
-		keys = append(keys, k)
+// tempRange reports an SFC temperature outside minTemp..maxTemp; key is the
+// temperature as the file wrote it ("" writes t).
+func (c *collector) tempRange(where, label, key string, t float64) bool {
+	if t >= minTemp && t <= maxTemp {
+		return true
 	}
-	sort.Strings(keys)
-	return keys
+	if key == "" {
+		key = TempKey(t)
+	}
+	c.errf(where, "%s temperature %q is outside %g..%g C; check the key", label, key, minTemp, maxTemp)
+	return false
 }
 
 func catName(cat *Catalogue) string {

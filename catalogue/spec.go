@@ -210,6 +210,210 @@ func LoadSpec(path string, cat *Catalogue) (*Spec, Problems) {
 	return ParseSpec(path, data, cat)
 }
 
+// Check reports every problem of a spec built or edited in code, by the
+// rules and in the words of ParseSpec (README, "File formats" and "Accepted
+// magnitudes"): the batch; each limit's name and its sides (within the
+// accepted magnitudes of its quantity, min not above max); each SFC limit's
+// temperature and sides; each [use] bound, whose stock must be in cat (when
+// cat is not nil), and the sum of the [use] minimums; the [rules]; and the
+// [process] step (feed stocks in cat, each once; method, cost and SFC
+// model). Problems name s.File when set. A limit with neither side set and
+// a rule of 0 (no rule) are no problem here; what only a file can get wrong
+// (a missing key, a value of the wrong type, two keys for one temperature)
+// is the loader's alone.
+func (s *Spec) Check(cat *Catalogue) Problems {
+	ck := collector{file: s.File}
+	ck.specValues(s, cat)
+	return ck.problems()
+}
+
+// specValues checks what Spec.Check checks.
+func (c *collector) specValues(s *Spec, cat *Catalogue) {
+	c.batch(s.Batch)
+	for _, l := range s.Limits {
+		where := fmt.Sprintf("limit %q", l.Name)
+		if c.limitName(where, l.Name) {
+			c.boundSides(where, l.Bound, LimitQuantity(l.Name))
+		}
+	}
+	for _, l := range s.SFC {
+		where := "limit \"sfc." + TempKey(l.Temp) + "\""
+		c.tempRange(where, "limits.sfc", "", l.Temp)
+		c.boundSides(where, l.Bound, QtyPercent)
+	}
+	for _, u := range s.Use {
+		where := fmt.Sprintf("use %q", u.Stock)
+		c.useStock(where, u.Stock, cat)
+		c.boundSides(where, u.Bound, QtyPercent)
+	}
+	c.useMinimums(s.Use)
+	const where = "[rules]"
+	if s.Rules.MaxStocks != 0 {
+		c.maxStocks(where, float64(s.Rules.MaxStocks))
+	}
+	if s.Rules.MinIfUsed != 0 {
+		c.minIfUsed(where, s.Rules.MinIfUsed)
+	}
+	if p := s.Process; p != nil {
+		const where = "[process]"
+		if len(p.Interesterify) == 0 {
+			c.feedEmpty(where)
+		}
+		seen := make(map[string]bool, len(p.Interesterify))
+		for _, id := range p.Interesterify {
+			c.feedStock(where, id, seen, cat)
+		}
+		c.processMethod(where, p.Method)
+		c.processCost(where, p.Cost)
+		if p.SFC != "" {
+			c.processSFC(where, p.SFC)
+		}
+	}
+}
+
+// batch reports a batch size outside the accepted magnitudes.
+func (c *collector) batch(b float64) bool {
+	return c.magnitude(`key "batch"`, QtyTonnes, "batch", b, "give the tonnes of one batch")
+}
+
+// limitName reports a [limits] name that is neither a property nor a
+// fatty-acid key.
+func (c *collector) limitName(where, name string) bool {
+	if IsProperty(name) || Rank(name) >= 0 {
+		return true
+	}
+	msg := fmt.Sprintf("unknown limit %q; limits are %s, sfc, or a fatty-acid key such as \"C18:2\"", name, strings.Join(Properties, ", "))
+	if sug, ok := c.suggest(name, limitNames()); ok {
+		msg += fmt.Sprintf("; did you mean %q?", sug)
+	}
+	c.errf(where, "%s", msg)
+	return false
+}
+
+// boundSides reports a side of b that is set and outside the accepted
+// magnitudes of q, and a min above the max.
+func (c *collector) boundSides(where string, b Bound, q Quantity) bool {
+	good := true
+	if b.HasMin() && !c.magnitude(where, q, "min", b.Min, "") {
+		good = false
+	}
+	if b.HasMax() && !c.magnitude(where, q, "max", b.Max, "") {
+		good = false
+	}
+	if b.HasMin() && b.HasMax() && b.Min > b.Max {
+		c.errf(where, "min = %g is above max = %g; swap or correct them", b.Min, b.Max)
+		good = false
+	}
+	return good
+}
+
+// useStock reports a [use] stock that is not in cat (nil: not checked).
+func (c *collector) useStock(where, id string, cat *Catalogue) bool {
+	if cat == nil {
+		return true
+	}
+	if _, found := cat.Find(id); !found {
+		c.errf(where, "no stock %q in %s; %s", id, catName(cat), c.stockHint(id, cat))
+		return false
+	}
+	return true
+}
+
+// useMinimums reports [use] minimums that add up to more than the batch.
+func (c *collector) useMinimums(uses []Use) {
+	var minSum float64
+	for _, u := range uses {
+		if u.HasMin() && u.Min > 0 {
+			minSum += u.Min
+		}
+	}
+	if !(minSum > 100+1e-9) {
+		return
+	}
+	var mins []string
+	for _, u := range uses {
+		if u.HasMin() && u.Min > 0 {
+			mins = append(mins, fmt.Sprintf("%s %g", u.Stock, u.Min))
+		}
+	}
+	c.errf("[use]", "the minimum shares add up to %g %% of the batch (%s), more than 100 %%; lower some of them", minSum, strings.Join(mins, ", "))
+}
+
+// maxStocks reports a max_stocks rule that is not a whole number from 1 to
+// a million.
+func (c *collector) maxStocks(where string, v float64) bool {
+	switch {
+	case v != math.Trunc(v):
+		c.errf(where, "max_stocks = %g must be a whole number of stocks", v)
+	case v < 1:
+		c.errf(where, "max_stocks = %g must be at least 1", v)
+	case v > 1e6:
+		c.errf(where, "max_stocks = %g is implausibly large; give the number of stocks allowed", v)
+	default:
+		return true
+	}
+	return false
+}
+
+// minIfUsed reports a min_if_used rule that is 0 (written in a file: no rule
+// is left out) or outside the accepted magnitudes of a percentage.
+func (c *collector) minIfUsed(where string, v float64) bool {
+	if v == 0 {
+		c.errf(where, "min_if_used = 0 must be above 0 and at most 100 (%% of batch); leave it out for no rule")
+		return false
+	}
+	return c.magnitude(where, QtyPercent, "min_if_used", v, "give the least share, % of batch, of a stock that is used")
+}
+
+// feedEmpty reports a [process] step without feed stocks.
+func (c *collector) feedEmpty(where string) {
+	c.errf(where, "interesterify is empty; list at least one stock id, or remove [process]")
+}
+
+// feedStock reports a feed stock listed twice (seen holds those met) or not
+// in cat (nil: not checked).
+func (c *collector) feedStock(where, id string, seen map[string]bool, cat *Catalogue) bool {
+	if seen[id] {
+		c.errf(where, "interesterify lists %q twice; list each stock once", id)
+		return false
+	}
+	seen[id] = true
+	if cat != nil {
+		if _, found := cat.Find(id); !found {
+			c.errf(where, "interesterify names %q, which is not in %s; %s", id, catName(cat), c.stockHint(id, cat))
+			return false
+		}
+	}
+	return true
+}
+
+// processMethod reports a reactor method that is missing ("") or unknown.
+func (c *collector) processMethod(where, m string) bool {
+	switch m {
+	case "chemical", "enzymatic":
+		return true
+	case "":
+		c.errf(where, `method is missing; add method = "chemical" (random) or "enzymatic" (sn-1,3 lipase)`)
+	default:
+		c.errf(where, `method %q is not known; use "chemical" or "enzymatic"`, m)
+	}
+	return false
+}
+
+// processCost reports a processing cost outside the accepted magnitudes.
+func (c *collector) processCost(where string, v float64) bool {
+	return c.magnitude(where, QtyPrice, "cost", v, "give the processing cost per tonne")
+}
+
+// processSFC reports an SFC model of the [process] step that is not known.
+func (c *collector) processSFC(where, m string) bool {
+	if m != "measured" && m != "predicted" {
+		c.errf(where, `sfc %q is not known; use "measured" (linear in the stocks' curves) or "predicted" (TAG model)`, m)
+		return false
+	}
+	return true
+}
+
 // bound decodes and checks one { min = ..., max = ... } table whose sides
 // are values of q.
 func (c *collector) bound(md toml.MetaData, where string, p toml.Primitive, q Quantity, example string) (Bound, bool) {
@@ -244,20 +448,7 @@ func (c *collector) bound(md toml.MetaData, where string, p toml.Primitive, q Qu
 		c.errf(where, "has neither min nor max; give at least one, e.g. %s = { max = 48 }", example)
 		return b, false
 	}
-	for _, side := range []struct {
-		name string
-		v    float64
-		set  bool
-	}{{"min", b.Min, rb.Min.set}, {"max", b.Max, rb.Max.set}} {
-		if side.set && !c.magnitude(where, q, side.name, side.v, "") {
-			good = false
-		}
-	}
-	if b.HasMin() && b.HasMax() && b.Min > b.Max {
-		c.errf(where, "min = %g is above max = %g; swap or correct them", b.Min, b.Max)
-		good = false
-	}
-	return b, good
+	return b, c.boundSides(where, b, q)
 }
 
 // limitNames lists every name a [limits] key may take, for suggestions.
@@ -279,7 +470,7 @@ func (c *collector) spec(md toml.MetaData, raw rawSpec, cat *Catalogue) *Spec {
 	if !raw.Batch.set {
 		c.errf(`key "batch"`, "batch is missing; add batch = <tonnes>, e.g. batch = 25.0")
 	} else if b, ok := c.num(`key "batch"`, "batch", raw.Batch); ok {
-		c.magnitude(`key "batch"`, QtyTonnes, "batch", b, "give the tonnes of one batch")
+		c.batch(b)
 		s.Batch = b
 	}
 	for _, key := range []string{"limits", "use"} {
@@ -288,53 +479,33 @@ func (c *collector) spec(md toml.MetaData, raw rawSpec, cat *Catalogue) *Spec {
 				map[string]string{"limits": "iv = { min = 38, max = 48 }", "use": `"pko" = { max = 25 }`}[key])
 		}
 	}
-	for _, name := range sortedPrims(raw.Limits) {
+	for _, name := range sortedKeys(raw.Limits) {
 		p := raw.Limits[name]
 		if name == "sfc" {
 			c.sfcLimits(md, s, p)
 			continue
 		}
 		where := fmt.Sprintf("limit %q", name)
-		if !IsProperty(name) {
-			if _, ok := Lookup(name); !ok {
-				msg := fmt.Sprintf("unknown limit %q; limits are %s, sfc, or a fatty-acid key such as \"C18:2\"", name, strings.Join(Properties, ", "))
-				if sug, ok := c.suggest(name, limitNames()); ok {
-					msg += fmt.Sprintf("; did you mean %q?", sug)
-				}
-				c.errf(where, "%s", msg)
-				var skip rawBound
-				_ = md.PrimitiveDecode(p, &skip) // mark min/max as seen: the name is reported here
-				continue
-			}
+		if !c.limitName(where, name) {
+			var skip rawBound
+			_ = md.PrimitiveDecode(p, &skip) // mark min/max as seen: the name is reported here
+			continue
 		}
 		if b, ok := c.bound(md, where, p, LimitQuantity(name), tomlKey(name)); ok {
 			s.Limits = append(s.Limits, Limit{Name: name, Bound: b})
 		}
 	}
-	for _, id := range sortedPrims(raw.Use) {
+	for _, id := range sortedKeys(raw.Use) {
 		where := fmt.Sprintf("use %q", id)
 		b, ok := c.bound(md, where, raw.Use[id], QtyPercent, tomlKey(id))
-		if cat != nil {
-			if _, found := cat.Find(id); !found {
-				c.errf(where, "no stock %q in %s; %s", id, catName(cat), c.stockHint(id, cat))
-				ok = false
-			}
+		if !c.useStock(where, id, cat) {
+			ok = false
 		}
 		if ok {
 			s.Use = append(s.Use, Use{Stock: id, Bound: b})
 		}
 	}
-	var minSum float64
-	var mins []string
-	for _, u := range s.Use {
-		if u.HasMin() && u.Min > 0 {
-			minSum += u.Min
-			mins = append(mins, fmt.Sprintf("%s %g", u.Stock, u.Min))
-		}
-	}
-	if minSum > 100+1e-9 {
-		c.errf("[use]", "the minimum shares add up to %g %% of the batch (%s), more than 100 %%; lower some of them", minSum, strings.Join(mins, ", "))
-	}
+	c.useMinimums(s.Use)
 	if raw.Rules != nil {
 		s.Rules = c.rules(*raw.Rules)
 	}
@@ -352,7 +523,7 @@ func (c *collector) sfcLimits(md toml.MetaData, s *Spec, p toml.Primitive) {
 		return
 	}
 	seen := map[float64]string{}
-	for _, k := range sortedPrims(temps) {
+	for _, k := range sortedKeys(temps) {
 		where := fmt.Sprintf("limit \"sfc.%s\"", k)
 		t, ok := c.temp(where, "limits.sfc", k)
 		b, bok := c.bound(md, where, temps[k], QtyPercent, tomlKey(k))
@@ -371,24 +542,11 @@ func (c *collector) sfcLimits(md toml.MetaData, s *Spec, p toml.Primitive) {
 func (c *collector) rules(r rawRules) Rules {
 	var out Rules
 	const where = "[rules]"
-	if v, ok := c.num(where, "max_stocks", r.MaxStocks); ok {
-		switch {
-		case v != math.Trunc(v):
-			c.errf(where, "max_stocks = %g must be a whole number of stocks", v)
-		case v < 1:
-			c.errf(where, "max_stocks = %g must be at least 1", v)
-		case v > 1e6:
-			c.errf(where, "max_stocks = %g is implausibly large; give the number of stocks allowed", v)
-		default:
-			out.MaxStocks = int(v)
-		}
+	if v, ok := c.num(where, "max_stocks", r.MaxStocks); ok && c.maxStocks(where, v) {
+		out.MaxStocks = int(v)
 	}
-	if v, ok := c.num(where, "min_if_used", r.MinIfUsed); ok {
-		if v <= 0 || v > 100 {
-			c.errf(where, "min_if_used = %g must be above 0 and at most 100 (%% of batch)", v)
-		} else {
-			out.MinIfUsed = v
-		}
+	if v, ok := c.num(where, "min_if_used", r.MinIfUsed); ok && c.minIfUsed(where, v) {
+		out.MinIfUsed = v
 	}
 	return out
 }
@@ -402,7 +560,7 @@ func (c *collector) process(r rawProcess, cat *Catalogue) *Process {
 		c.errf(where, `interesterify must be an array of stock ids, e.g. ["ps-h", "pko-r"], not %s`, describe(r.Interesterify.v))
 	} else {
 		if len(arr) == 0 {
-			c.errf(where, "interesterify is empty; list at least one stock id, or remove [process]")
+			c.feedEmpty(where)
 		}
 		seen := map[string]bool{}
 		for _, a := range arr {
@@ -411,36 +569,23 @@ func (c *collector) process(r rawProcess, cat *Catalogue) *Process {
 				c.errf(where, "interesterify entries must be stock ids in quotes, not %s", describe(a))
 				continue
 			}
-			if seen[id] {
-				c.errf(where, "interesterify lists %q twice; list each stock once", id)
-				continue
+			if c.feedStock(where, id, seen, cat) {
+				p.Interesterify = append(p.Interesterify, id)
 			}
-			seen[id] = true
-			if cat != nil {
-				if _, found := cat.Find(id); !found {
-					c.errf(where, "interesterify names %q, which is not in %s; %s", id, catName(cat), c.stockHint(id, cat))
-					continue
-				}
-			}
-			p.Interesterify = append(p.Interesterify, id)
 		}
 	}
 	if !r.Method.set {
-		c.errf(where, `method is missing; add method = "chemical" (random) or "enzymatic" (sn-1,3 lipase)`)
+		c.processMethod(where, "")
 	} else if m, ok := c.str(where, "method", r.Method); ok {
-		if m != "chemical" && m != "enzymatic" {
-			c.errf(where, `method %q is not known; use "chemical" or "enzymatic"`, m)
-		}
+		c.processMethod(where, m)
 		p.Method = m
 	}
 	if v, ok := c.num(where, "cost", r.Cost); ok {
-		c.magnitude(where, QtyPrice, "cost", v, "give the processing cost per tonne")
+		c.processCost(where, v)
 		p.Cost = v
 	}
 	if m, ok := c.str(where, "sfc", r.SFC); ok {
-		if m != "measured" && m != "predicted" {
-			c.errf(where, `sfc %q is not known; use "measured" (linear in the stocks' curves) or "predicted" (TAG model)`, m)
-		}
+		c.processSFC(where, m)
 		p.SFC = m
 	}
 	return p

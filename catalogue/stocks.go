@@ -122,7 +122,9 @@ var (
 	keysStock     = []string{"id", "name", "price", "available", "fatty_acids", "sn2", "sfc", "tags"}
 )
 
-// Tolerances of the composition checks (DESIGN section 3).
+// Tolerances of the composition checks, stated with the file format
+// (README, "File formats": fatty acids sum to 100 +- 1.0, a warning beyond
+// 0.3).
 const (
 	sumTolerance = 1.0 // a profile summing outside 100 +- 1 is an error
 	sumWarn      = 0.3 // beyond 100 +- 0.3 it is a warning
@@ -130,8 +132,6 @@ const (
 	// analysis, x13 = (3x - x2)/2 (1,3-random-2-random), may fall before we
 	// warn, in mol%; it allows for analytical scatter (common practice).
 	sn13Floor = -1.0
-	minTemp   = -40.0
-	maxTemp   = 100.0
 )
 
 // validID reports whether id matches [a-z0-9-]+.
@@ -152,6 +152,237 @@ func stockLabel(i int, id val) string {
 		return fmt.Sprintf("stock %q", s)
 	}
 	return fmt.Sprintf("stock #%d", i+1)
+}
+
+// Check reports every problem of a catalogue built or edited in code, by
+// the rules and in the words of ParseStocks (README, "File formats" and
+// "Accepted magnitudes"): at least one stock, each id used once, and each
+// stock's values as Stock.Check finds them. Problems name c.File when set.
+// What only a file can get wrong (a missing key, a value of the wrong type,
+// two keys for one temperature) is the loader's alone.
+func (c *Catalogue) Check() Problems {
+	var ck collector
+	if c == nil || len(c.Stocks) == 0 {
+		ck.noStocks()
+		return ck.problems()
+	}
+	ck.file = c.File
+	seen := make(map[string]int, len(c.Stocks))
+	for i := range c.Stocks {
+		s := &c.Stocks[i]
+		where := s.where()
+		if s.ID == "" {
+			where = fmt.Sprintf("stock #%d", i+1)
+		}
+		ck.stockValues(where, s)
+		ck.uniqueID(i, s.ID, seen)
+	}
+	return ck.problems()
+}
+
+// Check reports every problem of one stock's values, by the rules and in
+// the words of ParseStocks: its id, price and amount on hand within the
+// accepted magnitudes, its fatty-acid, sn-2 and TAG profiles (known keys,
+// amounts that are finite and >= 0, sums of 100 +- 1, an sn-2 analysis
+// that fits the whole fat) and its measured SFC curve (temperatures within
+// -40..100 C, 0..100 % solid, falling with temperature). A stock with no
+// fatty-acid profile is no problem here (a stock known by its TAGs alone
+// serves the TAG model): who needs the profile says so.
+func (s *Stock) Check() Problems {
+	var ck collector
+	ck.stockValues(s.where(), s)
+	return ck.problems()
+}
+
+// CheckProfiles reports what makes the stock's fatty-acid, sn-2 and TAG
+// profiles unusable by a model, in the words of ParseStocks: a key not in
+// the reference table or a TAG code that does not parse, and an amount that
+// is not a finite number >= 0. Unlike Check it leaves the sums alone: the
+// TAG model normalises its inputs and notes what it rescaled.
+func (s *Stock) CheckProfiles() Problems {
+	var ck collector
+	where := s.where()
+	ck.profileEntries(where, "fatty_acids", s.FattyAcids)
+	ck.profileEntries(where, "sn2", s.SN2)
+	ck.tagEntries(where, s.TAGs)
+	return ck.problems()
+}
+
+// where names the stock in a message.
+func (s *Stock) where() string {
+	if s.ID == "" {
+		return "stock"
+	}
+	return fmt.Sprintf("stock %q", s.ID)
+}
+
+// stockValues checks what Stock.Check checks, under where.
+func (c *collector) stockValues(where string, s *Stock) {
+	c.stockID(where, s.ID)
+	c.price(where, s.Price)
+	if s.Limited() {
+		c.available(where, s.Available)
+	}
+	fa := len(s.FattyAcids) > 0 && c.profileEntries(where, "fatty_acids", s.FattyAcids)
+	if fa {
+		c.checkSum(where, "fatty_acids", "wt%", s.FattyAcids, true)
+	}
+	if len(s.SN2) > 0 && c.profileEntries(where, "sn2", s.SN2) {
+		c.checkSum(where, "sn2", "mol%", s.SN2, false)
+		if fa {
+			c.checkSN2(where, s.FattyAcids, s.SN2)
+		}
+	}
+	for _, p := range s.SFC {
+		if c.tempRange(where, "sfc", "", p.Temp) {
+			c.solid(where, "", p)
+		}
+	}
+	c.curveFalls(where, s.SFC)
+	if len(s.TAGs) > 0 && c.tagEntries(where, s.TAGs) {
+		c.checkSum(where, "tags", "mol%", s.TAGs, false)
+	}
+}
+
+// noStocks reports a catalogue without stocks.
+func (c *collector) noStocks() {
+	c.errf("", "no stocks: add at least one [[stock]] table with id, price and [stock.fatty_acids]")
+}
+
+// uniqueID reports the id of stock i when an earlier stock has it; seen
+// maps the ids met so far to their stock's position.
+func (c *collector) uniqueID(i int, id string, seen map[string]int) {
+	if id == "" {
+		return
+	}
+	if j, dup := seen[id]; dup {
+		c.errf(fmt.Sprintf("stock #%d", i+1), "id %q is already used by stock #%d; give each stock its own id", id, j+1)
+		return
+	}
+	seen[id] = i
+}
+
+// stockID reports an id that is missing ("") or not [a-z0-9-]+.
+func (c *collector) stockID(where, id string) bool {
+	switch {
+	case id == "":
+		c.errf(where, `id is missing; add id = "..." (lower-case letters, digits and -)`)
+	case !validID(id):
+		c.errf(where, "id %q may use only lower-case letters a-z, digits 0-9 and '-' (e.g. \"pko-r\"); rename it", id)
+	default:
+		return true
+	}
+	return false
+}
+
+// price reports a stock's price outside the accepted magnitudes.
+func (c *collector) price(where string, p float64) bool {
+	return c.magnitude(where, QtyPrice, "price", p, "give the price in currency per tonne")
+}
+
+// available reports an amount on hand outside the accepted magnitudes.
+func (c *collector) available(where string, a float64) bool {
+	return c.magnitude(where, QtyOnHand, "available", a, "give tonnes on hand, or leave it out for unlimited purchase")
+}
+
+// acidKey reports a profile key that is not in the reference table.
+func (c *collector) acidKey(where, table, key string) bool {
+	if Rank(key) >= 0 {
+		return true
+	}
+	msg := fmt.Sprintf("%s: unknown fatty-acid key %q;", table, key)
+	if s, ok := c.suggest(key, Keys()); ok {
+		msg += fmt.Sprintf(" did you mean %q?", s)
+	}
+	c.errf(where, "%s known keys are %s", msg, strings.Join(Keys(), ", "))
+	return false
+}
+
+// amount reports an entry of a composition table (wt% or mol%) that is not
+// a finite number >= 0; label names the entry, e.g. `fatty_acids "C16:0"`.
+func (c *collector) amount(where, label string, v float64) bool {
+	if !c.finite(where, label, v) {
+		return false
+	}
+	if v < 0 {
+		c.errf(where, "%s = %g is negative; use 0 or remove the entry", label, v)
+		return false
+	}
+	return true
+}
+
+// profileEntries checks every entry of a table keyed by fatty acid (the
+// fatty-acid or sn-2 profile), in key order; it reports whether all are good.
+func (c *collector) profileEntries(where, table string, m map[string]float64) bool {
+	clean := true
+	for k, v := range m {
+		if Rank(k) < 0 || !(v >= 0) || math.IsInf(v, 1) {
+			clean = false
+			break
+		}
+	}
+	if clean { // the common case, without a sort or a message
+		return true
+	}
+	for _, k := range sortedKeys(m) {
+		if !c.acidKey(where, table, k) || !c.amount(where, fmt.Sprintf("%s %q", table, k), m[k]) {
+			clean = false
+		}
+	}
+	return clean
+}
+
+// tagCode reports a TAG letter code that does not parse.
+func (c *collector) tagCode(where, code string) bool {
+	if _, err := ParseTAGCode(code); err != nil {
+		c.errf(where, "tags: %v; write three letter codes in sn-1, sn-2, sn-3 order, e.g. \"POP\"", err)
+		return false
+	}
+	return true
+}
+
+// tagEntries checks every entry of a measured TAG profile, in key order.
+func (c *collector) tagEntries(where string, m map[string]float64) bool {
+	good := true
+	for k, v := range m {
+		if _, err := ParseTAGCode(k); err != nil || !(v >= 0) || math.IsInf(v, 1) {
+			good = false
+			break
+		}
+	}
+	if good { // the common case, without a sort or a message
+		return true
+	}
+	good = true
+	for _, k := range sortedKeys(m) {
+		if !c.tagCode(where, k) || !c.amount(where, fmt.Sprintf("tags %q", k), m[k]) {
+			good = false
+		}
+	}
+	return good
+}
+
+// solid reports a point of a measured SFC curve outside 0..100 % solid;
+// key is the temperature as the file wrote it ("" writes p.Temp).
+func (c *collector) solid(where, key string, p Point) bool {
+	if p.Solid >= 0 && p.Solid <= 100 {
+		return true
+	}
+	if key == "" {
+		key = TempKey(p.Temp)
+	}
+	c.errf(where, "sfc %q = %g is outside 0..100 %% solid; check the value", key, p.Solid)
+	return false
+}
+
+// curveFalls warns where a measured curve (sorted by temperature) rises.
+func (c *collector) curveFalls(where string, curve Curve) {
+	for i := 1; i < len(curve); i++ {
+		if curve[i].Solid > curve[i-1].Solid {
+			c.warnf(where, "sfc rises from %g %% at %s C to %g %% at %s C; solid fat should not increase with temperature, check the measurement",
+				curve[i-1].Solid, TempKey(curve[i-1].Temp), curve[i].Solid, TempKey(curve[i].Temp))
+		}
+	}
 }
 
 // ParseStocks decodes and validates a stock catalogue (DESIGN section 3).
@@ -218,6 +449,8 @@ func LoadStocks(path string) (*Catalogue, Problems) {
 }
 
 // stocks converts and checks a decoded catalogue.
+
+// stocks converts and checks a decoded catalogue.
 func (c *collector) stocks(raw rawStocks) *Catalogue {
 	cat := &Catalogue{Currency: "EUR"}
 	if raw.Currency.set {
@@ -229,18 +462,12 @@ func (c *collector) stocks(raw rawStocks) *Catalogue {
 		}
 	}
 	if len(raw.Stock) == 0 {
-		c.errf("", "no stocks: add at least one [[stock]] table with id, price and [stock.fatty_acids]")
+		c.noStocks()
 	}
 	seen := map[string]int{}
 	for i, rs := range raw.Stock {
 		s := c.stock(i, rs)
-		if s.ID != "" {
-			if j, dup := seen[s.ID]; dup {
-				c.errf(fmt.Sprintf("stock #%d", i+1), "id %q is already used by stock #%d; give each stock its own id", s.ID, j+1)
-			} else {
-				seen[s.ID] = i
-			}
-		}
+		c.uniqueID(i, s.ID, seen)
 		cat.Stocks = append(cat.Stocks, s)
 	}
 	return cat
@@ -250,28 +477,20 @@ func (c *collector) stock(i int, rs rawStock) Stock {
 	where := stockLabel(i, rs.ID)
 	s := Stock{Available: math.Inf(1)}
 	if !rs.ID.set {
-		c.errf(where, `id is missing; add id = "..." (lower-case letters, digits and -)`)
-	} else if id, ok := c.str(where, "id", rs.ID); ok {
-		if validID(id) {
-			s.ID = id
-		} else {
-			c.errf(where, "id %q may use only lower-case letters a-z, digits 0-9 and '-' (e.g. \"pko-r\"); rename it", id)
-		}
+		c.stockID(where, "")
+	} else if id, ok := c.str(where, "id", rs.ID); ok && c.stockID(where, id) {
+		s.ID = id
 	}
 	if name, ok := c.str(where, "name", rs.Name); ok {
 		s.Name = name
 	}
 	if !rs.Price.set {
 		c.errf(where, "price is missing; add price = <currency per tonne>, e.g. price = 1150.0")
-	} else if p, ok := c.num(where, "price", rs.Price); ok {
-		if c.magnitude(where, QtyPrice, "price", p, "give the price in currency per tonne") {
-			s.Price = p
-		}
+	} else if p, ok := c.num(where, "price", rs.Price); ok && c.price(where, p) {
+		s.Price = p
 	}
-	if a, ok := c.num(where, "available", rs.Available); ok {
-		if c.magnitude(where, QtyOnHand, "available", a, "give tonnes on hand, or leave it out for unlimited purchase") {
-			s.Available = a
-		}
+	if a, ok := c.num(where, "available", rs.Available); ok && c.available(where, a) {
+		s.Available = a
 	}
 	if !rs.FattyAcids.set {
 		c.errf(where, "fatty_acids is missing; add a [stock.fatty_acids] table of wt%% as FAME, e.g. \"C16:0\" = 44.0")
@@ -313,23 +532,13 @@ func (c *collector) faMap(where, table string, lm leafMap) (map[string]float64, 
 	out := map[string]float64{}
 	good := true
 	for _, k := range sortedKeys(lm.m) {
-		if _, ok := Lookup(k); !ok {
-			msg := fmt.Sprintf("%s: unknown fatty-acid key %q;", table, k)
-			if s, ok := c.suggest(k, Keys()); ok {
-				msg += fmt.Sprintf(" did you mean %q?", s)
-			}
-			c.errf(where, "%s known keys are %s", msg, strings.Join(Keys(), ", "))
+		if !c.acidKey(where, table, k) {
 			good = false
 			continue
 		}
 		label := fmt.Sprintf("%s %q", table, k)
 		f, ok := c.num(where, label, val{v: lm.m[k], set: true})
-		if !ok {
-			good = false
-			continue
-		}
-		if f < 0 {
-			c.errf(where, "%s = %g is negative; use 0 or remove the entry", label, f)
+		if !ok || !c.amount(where, label, f) {
 			good = false
 			continue
 		}
@@ -389,13 +598,8 @@ func (c *collector) curve(where string, lm leafMap) Curve {
 		if !ok {
 			continue
 		}
-		label := fmt.Sprintf("sfc %q", k)
-		v, ok := c.num(where, label, val{v: lm.m[k], set: true})
-		if !ok {
-			continue
-		}
-		if v < 0 || v > 100 {
-			c.errf(where, "%s = %g is outside 0..100 %% solid; check the value", label, v)
+		v, ok := c.num(where, fmt.Sprintf("sfc %q", k), val{v: lm.m[k], set: true})
+		if !ok || !c.solid(where, k, Point{Temp: t, Solid: v}) {
 			continue
 		}
 		if prev, dup := seen[t]; dup {
@@ -406,12 +610,7 @@ func (c *collector) curve(where string, lm leafMap) Curve {
 		out = append(out, Point{Temp: t, Solid: v})
 	}
 	sort.Slice(out, func(i, j int) bool { return out[i].Temp < out[j].Temp })
-	for i := 1; i < len(out); i++ {
-		if out[i].Solid > out[i-1].Solid {
-			c.warnf(where, "sfc rises from %g %% at %s C to %g %% at %s C; solid fat should not increase with temperature, check the measurement",
-				out[i-1].Solid, TempKey(out[i-1].Temp), out[i].Solid, TempKey(out[i].Temp))
-		}
-	}
+	c.curveFalls(where, out)
 	if len(out) == 0 {
 		return nil
 	}
@@ -427,19 +626,13 @@ func (c *collector) tags(where string, lm leafMap) map[string]float64 {
 	out := map[string]float64{}
 	good := true
 	for _, k := range sortedKeys(lm.m) {
-		if _, err := ParseTAGCode(k); err != nil {
-			c.errf(where, "tags: %v; write three letter codes in sn-1, sn-2, sn-3 order, e.g. \"POP\"", err)
+		if !c.tagCode(where, k) {
 			good = false
 			continue
 		}
 		label := fmt.Sprintf("tags %q", k)
 		v, ok := c.num(where, label, val{v: lm.m[k], set: true})
-		if !ok {
-			good = false
-			continue
-		}
-		if v < 0 {
-			c.errf(where, "%s = %g is negative; use 0 or remove the entry", label, v)
+		if !ok || !c.amount(where, label, v) {
 			good = false
 			continue
 		}
