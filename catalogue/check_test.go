@@ -172,3 +172,36 @@ func TestCheckProfiles(t *testing.T) {
 	assert.Empty(t, low.CheckProfiles(), "sums are the model's to normalise")
 	assert.NotEmpty(t, low.Check().Errors(), "and the loader's rule for a stock")
 }
+
+// CheckModel keeps the rules without which there is no model (finite
+// numbers, min not above max, a share not below zero, known stocks and
+// limits, the [process] step) and leaves out those for what a person types:
+// a relaxed minimum a hair below zero, a [use] cap above 100 % and a fatty
+// acid outside the reference table (left out of every property) are a
+// model, if not a file; the words are Check's.
+func TestCheckModel(t *testing.T) {
+	cat := DemoStocks().Clone()
+	spec, ok := DemoSpec("laminating")
+	require.True(t, ok)
+	spec = spec.Clone()
+	spec.SFC[0].Min = -1e-14
+	spec.Use = append(spec.Use, Use{Stock: "palm", Bound: Bound{Min: math.Inf(-1), Max: 150}})
+	spec.SortLimits()
+	assert.Empty(t, spec.CheckModel(cat))
+	assert.Len(t, spec.Check(cat).Errors(), 2)
+	cat.Stocks[0].FattyAcids["C99:1"] = 1
+	assert.Empty(t, cat.CheckModel())
+	assert.Len(t, cat.Check().Errors(), 1, "the unknown key (its sum is not checked then)")
+
+	spec.SFC[0].Min = math.NaN()
+	spec.Use[0].Min = -5
+	cat.Stocks[0].Price = -1
+	cat.Stocks[1].FattyAcids["C16:0"] = math.Inf(1)
+	for _, ps := range []Problems{spec.CheckModel(cat), cat.CheckModel()} {
+		for _, p := range ps {
+			assert.Contains(t, errorTexts(append(spec.Check(cat), cat.Check()...)), p.Where+": "+p.Msg, "one wording")
+		}
+	}
+	assert.Len(t, spec.CheckModel(cat), 2)
+	assert.Len(t, cat.CheckModel(), 2)
+}

@@ -62,10 +62,12 @@ const maxProblems = 100
 
 // collector gathers the problems of one file.
 type collector struct {
-	file    string
-	ps      Problems
-	errors  int // errors found, reported or not
-	dropped int // problems beyond maxProblems
+	file     string
+	ps       Problems
+	errors   int  // errors found, reported or not
+	warnings int  // warnings found while quiet
+	dropped  int  // problems beyond maxProblems
+	quiet    bool // only count: no message, no label (see checked)
 }
 
 func (c *collector) add(p Problem) {
@@ -80,24 +82,54 @@ func (c *collector) add(p Problem) {
 }
 
 func (c *collector) errf(where, format string, args ...any) {
-	if c.full() {
+	switch {
+	case c.quiet:
+		c.errors++
+	case c.full():
 		c.add(Problem{})
-		return
+	default:
+		c.add(Problem{File: c.file, Where: where, Msg: fmt.Sprintf(format, args...)})
 	}
-	c.add(Problem{File: c.file, Where: where, Msg: fmt.Sprintf(format, args...)})
 }
 
 func (c *collector) warnf(where, format string, args ...any) {
-	if c.full() {
+	switch {
+	case c.quiet:
+		c.warnings++
+	case c.full():
 		c.add(Problem{Warning: true})
-		return
+	default:
+		c.add(Problem{File: c.file, Where: where, Msg: fmt.Sprintf(format, args...), Warning: true})
 	}
-	c.add(Problem{File: c.file, Where: where, Msg: fmt.Sprintf(format, args...), Warning: true})
+}
+
+// checked runs check (the checks of a value built in code) once quietly
+// and, only when that finds something, again to write the problems down
+// under file: a sound value, the common case of a re-check, costs no
+// message, no label and no sort.
+func checked(file string, check func(c *collector)) Problems {
+	quiet := collector{quiet: true}
+	check(&quiet)
+	if quiet.errors == 0 && quiet.warnings == 0 {
+		return nil
+	}
+	c := collector{file: file}
+	check(&c)
+	return c.problems()
+}
+
+// label is fmt.Sprintf(format, name) for a message's where, or "" while
+// the collector is quiet.
+func (c *collector) label(format, name string) string {
+	if c.quiet {
+		return ""
+	}
+	return fmt.Sprintf(format, name)
 }
 
 // full reports whether no more problems are reported one by one; costly
 // hints (suggestions) are skipped then.
-func (c *collector) full() bool { return len(c.ps) >= maxProblems }
+func (c *collector) full() bool { return c.quiet || len(c.ps) >= maxProblems }
 
 func (c *collector) failed() bool { return c.errors > 0 }
 
@@ -321,9 +353,13 @@ func (c *collector) finite(where, label string, f float64) bool {
 	return true
 }
 
-// magnitude reports v under where when it is outside the accepted range of
-// q (Quantity.Check), with an optional hint; it returns whether v is good.
+// magnitude reports v under where when it is not finite (as num does) or
+// outside the accepted range of q (Quantity.Check), with an optional hint;
+// it returns whether v is good.
 func (c *collector) magnitude(where string, q Quantity, label string, v float64, hint string) bool {
+	if !c.finite(where, label, v) {
+		return false
+	}
 	err := q.Check(label, v)
 	if err == nil {
 		return true

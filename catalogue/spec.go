@@ -222,31 +222,48 @@ func LoadSpec(path string, cat *Catalogue) (*Spec, Problems) {
 // (a missing key, a value of the wrong type, two keys for one temperature)
 // is the loader's alone.
 func (s *Spec) Check(cat *Catalogue) Problems {
-	ck := collector{file: s.File}
-	ck.specValues(s, cat)
-	return ck.problems()
+	return checked(s.File, func(c *collector) { c.specValues(s, cat, true) })
 }
 
-// specValues checks what Spec.Check checks.
-func (c *collector) specValues(s *Spec, cat *Catalogue) {
+// CheckModel reports what keeps a spec from being a model at all, in the
+// words of Check: Check without the accepted magnitudes of the [limits],
+// [limits.sfc] and [use] sides (they must still be finite, min not above
+// max, and a [use] min not negative) and without the sum of the [use]
+// minimums. A limit is a row of the programme and a [use] bound a column
+// bound, so any finite band is a model, if perhaps an impossible one; a
+// band derived in code (a minimum relaxed to a hair below zero, a generated
+// test band) may lie outside what a person may type, and an impossible spec
+// is answered with a relaxation, not refused. The optimiser checks with it.
+func (s *Spec) CheckModel(cat *Catalogue) Problems {
+	return checked(s.File, func(c *collector) { c.specValues(s, cat, false) })
+}
+
+// specValues checks what Spec.Check checks; without typed set, what
+// Spec.CheckModel checks.
+func (c *collector) specValues(s *Spec, cat *Catalogue, typed bool) {
 	c.batch(s.Batch)
 	for _, l := range s.Limits {
-		where := fmt.Sprintf("limit %q", l.Name)
+		where := c.label("limit %q", l.Name)
 		if c.limitName(where, l.Name) {
-			c.boundSides(where, l.Bound, LimitQuantity(l.Name))
+			c.limitSides(where, l.Bound, LimitQuantity(l.Name), typed)
 		}
 	}
 	for _, l := range s.SFC {
-		where := "limit \"sfc." + TempKey(l.Temp) + "\""
+		where := ""
+		if !c.quiet {
+			where = "limit \"sfc." + TempKey(l.Temp) + "\""
+		}
 		c.tempRange(where, "limits.sfc", "", l.Temp)
-		c.boundSides(where, l.Bound, QtyPercent)
+		c.limitSides(where, l.Bound, QtyPercent, typed)
 	}
 	for _, u := range s.Use {
-		where := fmt.Sprintf("use %q", u.Stock)
+		where := c.label("use %q", u.Stock)
 		c.useStock(where, u.Stock, cat)
-		c.boundSides(where, u.Bound, QtyPercent)
+		c.useSides(where, u.Bound, typed)
 	}
-	c.useMinimums(s.Use)
+	if typed {
+		c.useMinimums(s.Use)
+	}
 	const where = "[rules]"
 	if s.Rules.MaxStocks != 0 {
 		c.maxStocks(where, float64(s.Rules.MaxStocks))
@@ -300,11 +317,43 @@ func (c *collector) boundSides(where string, b Bound, q Quantity) bool {
 	if b.HasMax() && !c.magnitude(where, q, "max", b.Max, "") {
 		good = false
 	}
+	return c.boundOrder(where, b) && good
+}
+
+// limitSides is boundSides for a limit, or with typed unset (CheckModel)
+// only the finiteness of its sides and their order.
+func (c *collector) limitSides(where string, b Bound, q Quantity, typed bool) bool {
+	if typed {
+		return c.boundSides(where, b, q)
+	}
+	return c.finiteSides(where, b) && c.boundOrder(where, b)
+}
+
+// useSides is boundSides for a [use] bound, or with typed unset
+// (CheckModel) its sides finite, the min not negative (a share below zero
+// is no blend) and in order; a max above 100 % only never binds.
+func (c *collector) useSides(where string, b Bound, typed bool) bool {
+	if typed {
+		return c.boundSides(where, b, QtyPercent)
+	}
+	if !c.finiteSides(where, b) || b.HasMin() && b.Min < 0 && !c.magnitude(where, QtyPercent, "min", b.Min, "") {
+		return false
+	}
+	return c.boundOrder(where, b)
+}
+
+// finiteSides reports a side of b that is set and not finite.
+func (c *collector) finiteSides(where string, b Bound) bool {
+	return (!b.HasMin() || c.finite(where, "min", b.Min)) && (!b.HasMax() || c.finite(where, "max", b.Max))
+}
+
+// boundOrder reports a min above the max.
+func (c *collector) boundOrder(where string, b Bound) bool {
 	if b.HasMin() && b.HasMax() && b.Min > b.Max {
 		c.errf(where, "min = %g is above max = %g; swap or correct them", b.Min, b.Max)
-		good = false
+		return false
 	}
-	return good
+	return true
 }
 
 // useStock reports a [use] stock that is not in cat (nil: not checked).

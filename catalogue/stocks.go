@@ -160,24 +160,57 @@ func stockLabel(i int, id val) string {
 // stock's values as Stock.Check finds them. Problems name c.File when set.
 // What only a file can get wrong (a missing key, a value of the wrong type,
 // two keys for one temperature) is the loader's alone.
-func (c *Catalogue) Check() Problems {
-	var ck collector
+func (c *Catalogue) Check() Problems { return c.check(true) }
+
+// CheckModel reports what keeps the stocks from being columns of a model,
+// in the words of Check: at least one stock; ids present, [a-z0-9-]+ and
+// used once; price and amount on hand within the accepted magnitudes;
+// fatty-acid amounts finite and >= 0; measured SFC points within -40..100 C
+// and 0..100 % solid. The rest of Check (keys outside the reference table,
+// which every property leaves out as blend.Profile does; the sums; the
+// sn-2 analysis; the TAG profile) is for what a person writes, and the TAG
+// model checks the profiles it uses (Stock.CheckProfiles). The optimiser
+// checks with it.
+func (c *Catalogue) CheckModel() Problems { return c.check(false) }
+
+// check is Check, or with typed unset CheckModel.
+func (c *Catalogue) check(typed bool) Problems {
 	if c == nil || len(c.Stocks) == 0 {
+		var ck collector
 		ck.noStocks()
 		return ck.problems()
 	}
-	ck.file = c.File
-	seen := make(map[string]int, len(c.Stocks))
-	for i := range c.Stocks {
-		s := &c.Stocks[i]
-		where := s.where()
-		if s.ID == "" {
-			where = fmt.Sprintf("stock #%d", i+1)
+	return checked(c.File, func(ck *collector) {
+		for i := range c.Stocks {
+			s := &c.Stocks[i]
+			where := ck.stockWhere(s)
+			if s.ID == "" && !ck.quiet {
+				where = fmt.Sprintf("stock #%d", i+1)
+			}
+			ck.stockValues(where, s, typed)
 		}
-		ck.stockValues(where, s)
-		ck.uniqueID(i, s.ID, seen)
+		ck.uniqueIDs(c.Stocks)
+	})
+}
+
+// uniqueIDs reports each stock whose id an earlier stock has. A sound
+// catalogue of a few dozen stocks is checked pairwise, without a map.
+func (c *collector) uniqueIDs(stocks []Stock) {
+	if len(stocks) <= 64 {
+		dup := false
+		for i := range stocks {
+			for j := range i {
+				dup = dup || stocks[i].ID != "" && stocks[i].ID == stocks[j].ID
+			}
+		}
+		if !dup {
+			return
+		}
 	}
-	return ck.problems()
+	seen := make(map[string]int, len(stocks))
+	for i := range stocks {
+		c.uniqueID(i, stocks[i].ID, seen)
+	}
 }
 
 // Check reports every problem of one stock's values, by the rules and in
@@ -189,9 +222,7 @@ func (c *Catalogue) Check() Problems {
 // fatty-acid profile is no problem here (a stock known by its TAGs alone
 // serves the TAG model): who needs the profile says so.
 func (s *Stock) Check() Problems {
-	var ck collector
-	ck.stockValues(s.where(), s)
-	return ck.problems()
+	return checked("", func(c *collector) { c.stockValues(c.stockWhere(s), s, true) })
 }
 
 // CheckProfiles reports what makes the stock's fatty-acid, sn-2 and TAG
@@ -200,47 +231,54 @@ func (s *Stock) Check() Problems {
 // is not a finite number >= 0. Unlike Check it leaves the sums alone: the
 // TAG model normalises its inputs and notes what it rescaled.
 func (s *Stock) CheckProfiles() Problems {
-	var ck collector
-	where := s.where()
-	ck.profileEntries(where, "fatty_acids", s.FattyAcids)
-	ck.profileEntries(where, "sn2", s.SN2)
-	ck.tagEntries(where, s.TAGs)
-	return ck.problems()
+	return checked("", func(c *collector) {
+		where := c.stockWhere(s)
+		c.profileEntries(where, "fatty_acids", s.FattyAcids)
+		c.profileEntries(where, "sn2", s.SN2)
+		c.tagEntries(where, s.TAGs)
+	})
 }
 
-// where names the stock in a message.
-func (s *Stock) where() string {
+// stockWhere names stock s in a message.
+func (c *collector) stockWhere(s *Stock) string {
 	if s.ID == "" {
 		return "stock"
 	}
-	return fmt.Sprintf("stock %q", s.ID)
+	return c.label("stock %q", s.ID)
 }
 
-// stockValues checks what Stock.Check checks, under where.
-func (c *collector) stockValues(where string, s *Stock) {
+// stockValues checks what Stock.Check checks, under where; with typed
+// unset, what Catalogue.CheckModel checks of a stock.
+func (c *collector) stockValues(where string, s *Stock, typed bool) {
 	c.stockID(where, s.ID)
 	c.price(where, s.Price)
 	if s.Limited() {
 		c.available(where, s.Available)
 	}
-	fa := len(s.FattyAcids) > 0 && c.profileEntries(where, "fatty_acids", s.FattyAcids)
-	if fa {
-		c.checkSum(where, "fatty_acids", "wt%", s.FattyAcids, true)
-	}
-	if len(s.SN2) > 0 && c.profileEntries(where, "sn2", s.SN2) {
-		c.checkSum(where, "sn2", "mol%", s.SN2, false)
+	if typed {
+		fa := len(s.FattyAcids) > 0 && c.profileEntries(where, "fatty_acids", s.FattyAcids)
 		if fa {
-			c.checkSN2(where, s.FattyAcids, s.SN2)
+			c.checkSum(where, "fatty_acids", "wt%", s.FattyAcids, true)
 		}
+		if len(s.SN2) > 0 && c.profileEntries(where, "sn2", s.SN2) {
+			c.checkSum(where, "sn2", "mol%", s.SN2, false)
+			if fa {
+				c.checkSN2(where, s.FattyAcids, s.SN2)
+			}
+		}
+	} else {
+		c.profileAmounts(where, "fatty_acids", s.FattyAcids)
 	}
 	for _, p := range s.SFC {
 		if c.tempRange(where, "sfc", "", p.Temp) {
 			c.solid(where, "", p)
 		}
 	}
-	c.curveFalls(where, s.SFC)
-	if len(s.TAGs) > 0 && c.tagEntries(where, s.TAGs) {
-		c.checkSum(where, "tags", "mol%", s.TAGs, false)
+	if typed {
+		c.curveFalls(where, s.SFC)
+		if len(s.TAGs) > 0 && c.tagEntries(where, s.TAGs) {
+			c.checkSum(where, "tags", "mol%", s.TAGs, false)
+		}
 	}
 }
 
@@ -314,12 +352,9 @@ func (c *collector) amount(where, label string, v float64) bool {
 // profileEntries checks every entry of a table keyed by fatty acid (the
 // fatty-acid or sn-2 profile), in key order; it reports whether all are good.
 func (c *collector) profileEntries(where, table string, m map[string]float64) bool {
-	clean := true
-	for k, v := range m {
-		if Rank(k) < 0 || !(v >= 0) || math.IsInf(v, 1) {
-			clean = false
-			break
-		}
+	clean := amountsClean(m)
+	for k := range m {
+		clean = clean && Rank(k) >= 0
 	}
 	if clean { // the common case, without a sort or a message
 		return true
@@ -330,6 +365,30 @@ func (c *collector) profileEntries(where, table string, m map[string]float64) bo
 		}
 	}
 	return clean
+}
+
+// profileAmounts checks the amounts of a profile, whatever its keys.
+func (c *collector) profileAmounts(where, table string, m map[string]float64) bool {
+	if amountsClean(m) {
+		return true
+	}
+	good := true
+	for _, k := range sortedKeys(m) {
+		if !c.amount(where, fmt.Sprintf("%s %q", table, k), m[k]) {
+			good = false
+		}
+	}
+	return good
+}
+
+// amountsClean reports whether every amount of m is finite and >= 0.
+func amountsClean(m map[string]float64) bool {
+	for _, v := range m {
+		if !(v >= 0) || math.IsInf(v, 1) {
+			return false
+		}
+	}
+	return true
 }
 
 // tagCode reports a TAG letter code that does not parse.
@@ -343,11 +402,10 @@ func (c *collector) tagCode(where, code string) bool {
 
 // tagEntries checks every entry of a measured TAG profile, in key order.
 func (c *collector) tagEntries(where string, m map[string]float64) bool {
-	good := true
-	for k, v := range m {
-		if _, err := ParseTAGCode(k); err != nil || !(v >= 0) || math.IsInf(v, 1) {
+	good := amountsClean(m)
+	for k := range m {
+		if _, err := ParseTAGCode(k); err != nil {
 			good = false
-			break
 		}
 	}
 	if good { // the common case, without a sort or a message

@@ -421,27 +421,18 @@ type procModel struct {
 	sfcTemps []float64 // their temperatures
 }
 
-// newProcModel checks the [process] table against the model and lays out
-// the reactor columns.
+// newProcModel checks the [process] step against the model (what build's
+// catalogue.Spec.CheckModel does not: integer rules, a feed stock that
+// [use] leaves out) and lays out the reactor columns.
 func newProcModel(base *model, lay *layout) (*procModel, error) {
 	spec := lay.spec
 	pr := spec.Process
 	where := specWhere(spec) + ": [process]"
-	if pr.Method != "chemical" && pr.Method != "enzymatic" {
-		return nil, catalogue.Badf("%s method %q is not known; use \"chemical\" (random) or \"enzymatic\" (sn-1,3 lipase)", where, pr.Method)
-	}
+	// build has checked the table (catalogue.Spec.CheckModel): method, sfc
+	// and cost are known, every feed stock is in the catalogue once.
 	mode := pr.SFC
 	if mode == "" {
 		mode = "predicted"
-	}
-	if mode != "measured" && mode != "predicted" {
-		return nil, catalogue.Badf("%s sfc %q is not known; use \"measured\" (linear in the stocks' curves) or \"predicted\" (TAG model)", where, pr.SFC)
-	}
-	if !finiteNum(pr.Cost) || pr.Cost < 0 {
-		return nil, catalogue.Badf("%s cost = %v is not a number >= 0; give the processing cost per tonne processed", where, pr.Cost)
-	}
-	if len(pr.Interesterify) == 0 {
-		return nil, catalogue.Badf("%s interesterify is empty; list the stocks that go through the reactor, or remove [process]", where)
 	}
 	if lay.rules.Active() {
 		return nil, catalogue.Badf("%s integer [rules] (max_stocks, min_if_used) together with a [process] step are not supported; remove one of the two", where)
@@ -460,11 +451,8 @@ func newProcModel(base *model, lay *layout) (*procModel, error) {
 	}
 	for _, id := range pr.Interesterify {
 		j := lay.index(id)
-		if j < 0 {
-			return nil, catalogue.Badf("%s interesterify names stock %q, which is not in the catalogue; check the id", where, id)
-		}
-		if pm.isFeed[j] >= 0 {
-			return nil, catalogue.Badf("%s interesterify lists %q twice; list each stock once", where, id)
+		if j < 0 || pm.isFeed[j] >= 0 {
+			return nil, fmt.Errorf("optimise: %s feed %q not checked (catalogue.Spec.CheckModel)", where, id)
 		}
 		c := lay.cols[j]
 		if c.use.HasMax() && c.use.Max <= 0 {

@@ -196,7 +196,7 @@ func TestBadInputs(t *testing.T) {
 	}{
 		"batch":     {&catalogue.Spec{Batch: 0}, "batch"},
 		"unknown":   {&catalogue.Spec{Batch: 1, Limits: []catalogue.Limit{{Name: "ivv", Bound: bound(1, 2)}}}, `"ivv"`},
-		"min>max":   {&catalogue.Spec{Batch: 1, Limits: []catalogue.Limit{{Name: "iv", Bound: bound(3, 2)}}}, "min must not exceed max"},
+		"min>max":   {&catalogue.Spec{Batch: 1, Limits: []catalogue.Limit{{Name: "iv", Bound: bound(3, 2)}}}, "is above max"},
 		"use stock": {&catalogue.Spec{Batch: 1, Use: []catalogue.Use{{Stock: "nope", Bound: bound(0, 2)}}}, `"nope"`},
 	}
 	for name, c := range cases {
