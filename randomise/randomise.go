@@ -126,46 +126,6 @@ func (d *Distribution) FattyAcids() map[string]float64 {
 	return out
 }
 
-// MolFractions converts a fatty-acid profile in wt% as FAME (GC area% taken as
-// wt% FAME) to mole fractions through the methyl esters' molar masses:
-// n_i = w_i / M(FAME_i), x_i = n_i / sum n. Acids with zero share are left out;
-// the acids come back in reference-table order.
-func MolFractions(fa map[string]float64) (acids []catalogue.FattyAcid, x []float64, err error) {
-	// one rank look-up per key, then a walk in table order (no sorting)
-	ranked := make([]float64, len(catalogue.Keys()))
-	present := make([]bool, len(ranked))
-	for k, w := range fa {
-		r := catalogue.Rank(k)
-		if r < 0 {
-			return nil, nil, catalogue.Badf("fatty acid %q is not in the reference table; use one of %s", k, strings.Join(catalogue.Keys(), " "))
-		}
-		if w < 0 || math.IsNaN(w) || math.IsInf(w, 0) {
-			return nil, nil, catalogue.Badf("fatty acid %q: %v wt%% is not a finite number >= 0", k, w)
-		}
-		if w > 0 {
-			ranked[r] += w
-			present[r] = true
-		}
-	}
-	var total float64
-	for r, f := range catalogue.FattyAcids() {
-		if !present[r] {
-			continue
-		}
-		n := ranked[r] / f.EsterMolarMass()
-		acids = append(acids, f)
-		x = append(x, n)
-		total += n
-	}
-	if total <= 0 {
-		return nil, nil, catalogue.Badf("the fatty-acid profile is empty; give wt%% FAME for at least one acid")
-	}
-	for i := range x {
-		x[i] /= total
-	}
-	return acids, x, nil
-}
-
 // SN13 is the 1,3-random-2-random relation (Vander Wal; Coleman): with x the
 // overall mole fraction of an acid and x2 its mole fraction at sn-2, the
 // fraction at each of sn-1 and sn-3 is x13 = (3 x - x2) / 2, since the three
@@ -445,7 +405,7 @@ func stockSource(st *catalogue.Stock, acids []catalogue.FattyAcid, needSN2 bool)
 		return measuredSource(st, acids)
 	}
 	n := len(acids)
-	fa, fx, err := MolFractions(st.FattyAcids)
+	fa, fx, err := catalogue.MolFractions(st.FattyAcids)
 	if err != nil {
 		return source{}, nil, catalogue.Badf("stock %q: %w", st.ID, err)
 	}
@@ -544,7 +504,7 @@ func measuredSource(st *catalogue.Stock, acids []catalogue.FattyAcid) (source, [
 		x[k] += e.frac / 3
 	}
 	if len(st.FattyAcids) > 0 {
-		if fa, fx, err := MolFractions(st.FattyAcids); err == nil {
+		if fa, fx, err := catalogue.MolFractions(st.FattyAcids); err == nil {
 			cat := make([]float64, n)
 			for i, f := range fa {
 				if r := indexOf(acids, f.Key); r >= 0 {

@@ -12,28 +12,6 @@ import (
 	"lipoplan/randomise"
 )
 
-func TestMolFractionsThroughMethylEsterMasses(t *testing.T) {
-	// Methyl palmitate C17H34O2 270.45 g/mol and methyl oleate C19H36O2
-	// 296.49 g/mol (PubChem molecular weights, from memory).
-	acids, x, err := randomise.MolFractions(map[string]float64{"C18:1": 50, "C16:0": 50})
-	require.NoError(t, err)
-	require.Len(t, acids, 2)
-	assert.Equal(t, "C16:0", acids[0].Key, "acids in reference-table order")
-	assert.InDelta(t, 270.45, acids[0].EsterMolarMass(), 0.01)
-	assert.InDelta(t, 296.49, acids[1].EsterMolarMass(), 0.01)
-	nP, nO := 50/270.45, 50/296.49
-	assert.InDelta(t, nP/(nP+nO), x[0], 1e-4)
-	assert.InDelta(t, nO/(nP+nO), x[1], 1e-4)
-	assert.InDelta(t, 1, x[0]+x[1], 1e-15)
-
-	_, _, err = randomise.MolFractions(map[string]float64{"C18:9": 10})
-	assert.True(t, catalogue.IsBadInput(err))
-	_, _, err = randomise.MolFractions(map[string]float64{"C16:0": 0})
-	assert.True(t, catalogue.IsBadInput(err))
-	_, _, err = randomise.MolFractions(map[string]float64{"C16:0": -3})
-	assert.True(t, catalogue.IsBadInput(err))
-}
-
 func TestSN13Relation(t *testing.T) {
 	// x13 = (3 x_total - x_sn2) / 2 (1,3-random-2-random; Vander Wal 1960,
 	// Coleman 1961): worked by hand, x = (0.5, 0.5), x2 = (0, 1) gives
@@ -52,7 +30,7 @@ func TestSN13Relation(t *testing.T) {
 func TestNativeFollowsSN2Profile(t *testing.T) {
 	palm := palmOil()
 	d := distribute(t, []blend.Part{{Stock: &palm, Pct: 100}}, randomise.Native, 0)
-	acids, x, err := randomise.MolFractions(palm.FattyAcids)
+	acids, x, err := catalogue.MolFractions(palm.FattyAcids)
 	require.NoError(t, err)
 	sn1, sn2, sn3 := d.Positions()
 	var sn2Sum float64
@@ -228,7 +206,7 @@ func TestInteresterificationConservesFattyAcids(t *testing.T) {
 	want := map[string]float64{}
 	var tot float64
 	for _, p := range mixParts {
-		acids, x, err := randomise.MolFractions(p.Stock.FattyAcids)
+		acids, x, err := catalogue.MolFractions(p.Stock.FattyAcids)
 		require.NoError(t, err)
 		var meanAcid float64
 		for i, f := range acids {
@@ -260,7 +238,7 @@ func TestInteresterificationConservesFattyAcids(t *testing.T) {
 func TestRandomPalmOilTrisaturates(t *testing.T) {
 	palm := palmOil()
 	parts := []blend.Part{{Stock: &palm, Pct: 100}}
-	acids, x, err := randomise.MolFractions(palm.FattyAcids)
+	acids, x, err := catalogue.MolFractions(palm.FattyAcids)
 	require.NoError(t, err)
 	var xs float64
 	for i, f := range acids {
