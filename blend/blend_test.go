@@ -95,7 +95,7 @@ func TestMixIsLinear(t *testing.T) {
 		curve(10, 50, 20, 26, 30, 9, 40, 2))
 	b := stock("b", map[string]float64{"C16:0": 4, "C18:0": 2, "C18:1": 62, "C18:2": 20, "C18:3": 10, "C20:1": 2},
 		curve(10, 0, 20, 0, 30, 0, 40, 0))
-	p, err := Mix([]Part{{a, 30}, {b, 70}}, []float64{10, 25, 40, 45})
+	p, err := Mix([]Part{{Stock: a, Pct: 30}, {Stock: b, Pct: 70}}, []float64{10, 25, 40, 45})
 	require.NoError(t, err)
 	pa, pb := Profile(a.FattyAcids), Profile(b.FattyAcids)
 	for _, name := range []string{"iv", "sv", "safa", "mufa", "pufa", "trans", "cox", "C18:1"} {
@@ -114,11 +114,11 @@ func TestMixIsLinear(t *testing.T) {
 
 func TestMixRejectsBadShares(t *testing.T) {
 	a := stock("a", map[string]float64{"C16:0": 100}, nil)
-	_, err := Mix([]Part{{a, -1}}, nil)
+	_, err := Mix([]Part{{Stock: a, Pct: -1}}, nil)
 	assert.ErrorContains(t, err, `stock "a"`)
-	_, err = Mix([]Part{{a, 0}}, nil)
+	_, err = Mix([]Part{{Stock: a, Pct: 0}}, nil)
 	assert.Error(t, err)
-	_, err = Mix([]Part{{a, math.NaN()}}, nil)
+	_, err = Mix([]Part{{Stock: a, Pct: math.NaN()}}, nil)
 	assert.Error(t, err)
 }
 

@@ -61,7 +61,7 @@ func TestHardenSoybean(t *testing.T) {
 
 	// Tristearin, the main TAG of the hardstock, is 891.5 g/mol (DESIGN
 	// section 5 check value).
-	d := distribute(t, []blend.Part{{Stock: &h, Pct: 100}}, randomise.Native, 0)
+	d := distribute(t, []catalogue.Part{{Stock: &h, Pct: 100}}, randomise.Native, 0)
 	sp := speciesByTag(d.Species())
 	assert.InDelta(t, 891.5, sp["SSS"].MolarMass, 0.1)
 	assert.InDelta(t, 100, d.Classes().Mol.S3, 1e-9)

@@ -29,7 +29,7 @@ func TestSN13Relation(t *testing.T) {
 
 func TestNativeFollowsSN2Profile(t *testing.T) {
 	palm := palmOil()
-	d := distribute(t, []blend.Part{{Stock: &palm, Pct: 100}}, randomise.Native, 0)
+	d := distribute(t, []catalogue.Part{{Stock: &palm, Pct: 100}}, randomise.Native, 0)
 	acids, x, err := catalogue.MolFractions(palm.FattyAcids)
 	require.NoError(t, err)
 	sn1, sn2, sn3 := d.Positions()
@@ -57,7 +57,7 @@ func TestNativeFollowsSN2Profile(t *testing.T) {
 
 func TestNoSN2MeansRandomAndIsNoted(t *testing.T) {
 	pko := palmKernelOil()
-	d := distribute(t, []blend.Part{{Stock: &pko, Pct: 100}}, randomise.Native, 0)
+	d := distribute(t, []catalogue.Part{{Stock: &pko, Pct: 100}}, randomise.Native, 0)
 	require.Len(t, d.Notes, 1)
 	assert.Contains(t, d.Notes[0], `"pko"`)
 	assert.Contains(t, d.Notes[0], "random")
@@ -66,14 +66,14 @@ func TestNoSN2MeansRandomAndIsNoted(t *testing.T) {
 	assert.InDeltaSlice(t, sn1, sn3, 1e-12)
 
 	// A chemical reaction run to the end does not depend on sn-2: no note.
-	d = distribute(t, []blend.Part{{Stock: &pko, Pct: 100}}, randomise.Chemical, 1)
+	d = distribute(t, []catalogue.Part{{Stock: &pko, Pct: 100}}, randomise.Chemical, 1)
 	assert.Empty(t, d.Notes)
 }
 
 func TestClampIsReported(t *testing.T) {
 	s := catalogue.Stock{ID: "odd", FattyAcids: map[string]float64{"C16:0": 20, "C18:1": 80},
 		SN2: map[string]float64{"C16:0": 90, "C18:1": 10}}
-	d := distribute(t, []blend.Part{{Stock: &s, Pct: 100}}, randomise.Native, 0)
+	d := distribute(t, []catalogue.Part{{Stock: &s, Pct: 100}}, randomise.Native, 0)
 	require.Len(t, d.Notes, 1)
 	assert.Contains(t, d.Notes[0], "C16:0")
 	assert.Contains(t, d.Notes[0], "set to 0")
@@ -91,7 +91,7 @@ func TestRandomTripalmitinTriolein(t *testing.T) {
 	// equal moles: mass shares in the ratio of the molar masses
 	mP := catalogue.TAGMolarMass(mustLookup(t, "C16:0"), mustLookup(t, "C16:0"), mustLookup(t, "C16:0"))
 	mO := catalogue.TAGMolarMass(mustLookup(t, "C18:1"), mustLookup(t, "C18:1"), mustLookup(t, "C18:1"))
-	parts := []blend.Part{{Stock: &ppp, Pct: mP}, {Stock: &ooo, Pct: mO}}
+	parts := []catalogue.Part{{Stock: &ppp, Pct: mP}, {Stock: &ooo, Pct: mO}}
 
 	native := distribute(t, parts, randomise.Native, 0)
 	c := native.Classes().Mol
@@ -140,7 +140,7 @@ func TestEnzymaticKeepsSUSFat(t *testing.T) {
 	s := catalogue.Stock{ID: "sus",
 		FattyAcids: fatWithMol(t, map[string]float64{"C16:0": 1.0 / 3, "C18:0": 1.0 / 3, "C18:1": 1.0 / 3}),
 		SN2:        map[string]float64{"C18:1": 100}}
-	parts := []blend.Part{{Stock: &s, Pct: 100}}
+	parts := []catalogue.Part{{Stock: &s, Pct: 100}}
 	native := distribute(t, parts, randomise.Native, 0)
 	require.InDelta(t, 100, native.Classes().Mol.SUS, 1e-9)
 
@@ -158,7 +158,7 @@ func TestEnzymaticKeepsSUSFat(t *testing.T) {
 	// Measured TAGs POP 60 / SOS 40: the lipase shuffles sn-1,3 (POS and SOP
 	// appear) but every molecule keeps oleic acid at sn-2: still 100 % SUS.
 	m := catalogue.Stock{ID: "cbe", TAGs: map[string]float64{"POP": 60, "SOS": 40}}
-	parts = []blend.Part{{Stock: &m, Pct: 100}}
+	parts = []catalogue.Part{{Stock: &m, Pct: 100}}
 	native = distribute(t, parts, randomise.Native, 0)
 	enz = distribute(t, parts, randomise.Enzymatic, 1)
 	assert.InDelta(t, 100, enz.Classes().Mol.SUS, 1e-9)
@@ -171,7 +171,7 @@ func TestEnzymaticKeepsSUSFat(t *testing.T) {
 func TestInteresterificationConservesFattyAcids(t *testing.T) {
 	palm, soy, pko := palmOil(), soybeanOil(), palmKernelOil()
 	cbe := catalogue.Stock{ID: "cbe", TAGs: map[string]float64{"POP": 20, "POS": 40, "SOS": 30, "POO": 10}}
-	parts := []blend.Part{{Stock: &palm, Pct: 40}, {Stock: &soy, Pct: 25}, {Stock: &pko, Pct: 20}, {Stock: &cbe, Pct: 15}}
+	parts := []catalogue.Part{{Stock: &palm, Pct: 40}, {Stock: &soy, Pct: 25}, {Stock: &pko, Pct: 20}, {Stock: &cbe, Pct: 15}}
 	native := distribute(t, parts, randomise.Native, 0)
 	x0 := native.FattyAcidMol()
 	_, sn2Native, _ := native.Positions()
@@ -237,7 +237,7 @@ func TestInteresterificationConservesFattyAcids(t *testing.T) {
 // x_S^3 with x_S the mole fraction of saturated acids.
 func TestRandomPalmOilTrisaturates(t *testing.T) {
 	palm := palmOil()
-	parts := []blend.Part{{Stock: &palm, Pct: 100}}
+	parts := []catalogue.Part{{Stock: &palm, Pct: 100}}
 	acids, x, err := catalogue.MolFractions(palm.FattyAcids)
 	require.NoError(t, err)
 	var xs float64
@@ -261,7 +261,7 @@ func TestRandomPalmOilTrisaturates(t *testing.T) {
 
 func TestPartialDegree(t *testing.T) {
 	palm, pko := palmOil(), palmKernelOil()
-	parts := []blend.Part{{Stock: &palm, Pct: 60}, {Stock: &pko, Pct: 40}}
+	parts := []catalogue.Part{{Stock: &palm, Pct: 60}, {Stock: &pko, Pct: 40}}
 	native := distribute(t, parts, randomise.Native, 0)
 	for _, m := range []randomise.Method{randomise.Chemical, randomise.Enzymatic} {
 		zero := distribute(t, parts, m, 0)
@@ -287,38 +287,38 @@ func TestPartialDegree(t *testing.T) {
 
 func TestDistributeBadInput(t *testing.T) {
 	palm := palmOil()
-	ok := []blend.Part{{Stock: &palm, Pct: 100}}
+	ok := []catalogue.Part{{Stock: &palm, Pct: 100}}
 	for name, fn := range map[string]func() error{
 		"method":     func() error { _, err := randomise.Distribute(ok, "steam", 1); return err },
 		"degree>1":   func() error { _, err := randomise.Distribute(ok, randomise.Chemical, 1.5); return err },
 		"degree NaN": func() error { _, err := randomise.Distribute(ok, randomise.Chemical, math.NaN()); return err },
 		"no parts":   func() error { _, err := randomise.Distribute(nil, randomise.Native, 0); return err },
 		"zero": func() error {
-			_, err := randomise.Distribute([]blend.Part{{Stock: &palm}}, randomise.Native, 0)
+			_, err := randomise.Distribute([]catalogue.Part{{Stock: &palm}}, randomise.Native, 0)
 			return err
 		},
 		"negative": func() error {
-			_, err := randomise.Distribute([]blend.Part{{Stock: &palm, Pct: -1}}, randomise.Native, 0)
+			_, err := randomise.Distribute([]catalogue.Part{{Stock: &palm, Pct: -1}}, randomise.Native, 0)
 			return err
 		},
 		"fa key": func() error {
 			s := catalogue.Stock{ID: "x", FattyAcids: map[string]float64{"C18:7": 100}}
-			_, err := randomise.Distribute([]blend.Part{{Stock: &s, Pct: 1}}, randomise.Native, 0)
+			_, err := randomise.Distribute([]catalogue.Part{{Stock: &s, Pct: 1}}, randomise.Native, 0)
 			return err
 		},
 		"tag code": func() error {
 			s := catalogue.Stock{ID: "x", TAGs: map[string]float64{"PQP": 100}}
-			_, err := randomise.Distribute([]blend.Part{{Stock: &s, Pct: 1}}, randomise.Native, 0)
+			_, err := randomise.Distribute([]catalogue.Part{{Stock: &s, Pct: 1}}, randomise.Native, 0)
 			return err
 		},
 		"empty stock": func() error {
 			s := catalogue.Stock{ID: "x"}
-			_, err := randomise.Distribute([]blend.Part{{Stock: &s, Pct: 1}}, randomise.Native, 0)
+			_, err := randomise.Distribute([]catalogue.Part{{Stock: &s, Pct: 1}}, randomise.Native, 0)
 			return err
 		},
 		"sn2 zero": func() error {
 			s := catalogue.Stock{ID: "x", FattyAcids: map[string]float64{"C16:0": 100}, SN2: map[string]float64{"C16:0": 0}}
-			_, err := randomise.Distribute([]blend.Part{{Stock: &s, Pct: 1}}, randomise.Native, 0)
+			_, err := randomise.Distribute([]catalogue.Part{{Stock: &s, Pct: 1}}, randomise.Native, 0)
 			return err
 		},
 	} {
@@ -330,7 +330,7 @@ func TestDistributeBadInput(t *testing.T) {
 
 func TestMeasuredProfileSplitsMirrorImages(t *testing.T) {
 	s := catalogue.Stock{ID: "m", TAGs: map[string]float64{"PPO": 50, "POP": 30, "OOO": 18}}
-	d := distribute(t, []blend.Part{{Stock: &s, Pct: 100}}, randomise.Native, 0)
+	d := distribute(t, []catalogue.Part{{Stock: &s, Pct: 100}}, randomise.Native, 0)
 	require.Len(t, d.Notes, 1, "98 mol%% is rescaled and said so")
 	sp := speciesByTag(d.Species())
 	assert.InDelta(t, 25/0.98, sp["PPO"].MolPct, 1e-9)
@@ -352,13 +352,13 @@ func TestMeasuredProfileSplitsMirrorImages(t *testing.T) {
 
 	// A measured profile that contradicts the FA profile is flagged.
 	s.FattyAcids = map[string]float64{"C16:0": 10, "C18:1": 90}
-	d = distribute(t, []blend.Part{{Stock: &s, Pct: 100}}, randomise.Native, 0)
+	d = distribute(t, []catalogue.Part{{Stock: &s, Pct: 100}}, randomise.Native, 0)
 	assert.Len(t, d.Notes, 2)
 }
 
 func TestSpeciesSortedAndComplete(t *testing.T) {
 	palm, soy := palmOil(), soybeanOil()
-	d := distribute(t, []blend.Part{{Stock: &palm, Pct: 50}, {Stock: &soy, Pct: 50}}, randomise.Chemical, 0.7)
+	d := distribute(t, []catalogue.Part{{Stock: &palm, Pct: 50}, {Stock: &soy, Pct: 50}}, randomise.Chemical, 0.7)
 	for _, lvl := range []randomise.Isomers{randomise.Stereo, randomise.Regio, randomise.Combined} {
 		ss := d.SpeciesBy(lvl)
 		var mol, wt float64

@@ -4,7 +4,6 @@ import (
 	"math"
 	"testing"
 
-	"lipoplan/blend"
 	"lipoplan/catalogue"
 	"lipoplan/randomise"
 )
@@ -17,7 +16,7 @@ func bench550(b *testing.B) (*randomise.Distribution, []float64) {
 	if !ok {
 		b.Fatal("demo palm oil missing")
 	}
-	d, err := randomise.Distribute([]blend.Part{{Stock: st, Pct: 100}}, randomise.Chemical, 1)
+	d, err := randomise.Distribute([]catalogue.Part{{Stock: st, Pct: 100}}, randomise.Chemical, 1)
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -104,7 +103,7 @@ func BenchmarkCurveBisectionReference(b *testing.B) {
 // (randomise, DESIGN target < 100 us), for scale.
 func BenchmarkDistributeReference(b *testing.B) {
 	st, _ := catalogue.DemoStocks().Find("palm")
-	parts := []blend.Part{{Stock: st, Pct: 100}}
+	parts := []catalogue.Part{{Stock: st, Pct: 100}}
 	b.ReportAllocs()
 	for b.Loop() {
 		if _, err := randomise.Distribute(parts, randomise.Chemical, 1); err != nil {
@@ -116,7 +115,7 @@ func BenchmarkDistributeReference(b *testing.B) {
 func TestBisectionReferenceAgrees(t *testing.T) {
 	// The benchmark's reference computes the same curve (within 1e-9 % solid).
 	st, _ := catalogue.DemoStocks().Find("palm")
-	d, err := randomise.Distribute([]blend.Part{{Stock: st, Pct: 100}}, randomise.Chemical, 1)
+	d, err := randomise.Distribute([]catalogue.Part{{Stock: st, Pct: 100}}, randomise.Chemical, 1)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -32,6 +32,8 @@
 // about 50 % solid too much there). Use predicted SFC for directions (what
 // interesterification does) and measured curves for specifications.
 //
-// This package sits beside blend rather than inside it because it builds on
-// randomise, which imports blend.
+// This package sits beside blend rather than inside it: blend is the linear
+// properties of a physical mix, while this model builds on randomise's TAG
+// distributions (randomise depends on catalogue alone), and blend never
+// imports it.
 package sle
