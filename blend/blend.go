@@ -282,7 +282,7 @@ func Temps(extra ...float64) []float64 {
 }
 
 // SpecTemps are the SFC temperatures a report on spec lists: the defaults
-// plus every temperature the spec limits (DESIGN section 4).
+// plus every temperature the spec limits (README, "Commands").
 func SpecTemps(spec *catalogue.Spec) []float64 {
 	extra := make([]float64, len(spec.SFC))
 	for i, l := range spec.SFC {

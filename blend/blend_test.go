@@ -17,9 +17,9 @@ func fa(t *testing.T, key string) catalogue.FattyAcid {
 	return f
 }
 
-// The theoretical IV of the pure TAGs (DESIGN section 5 check values, which
-// follow from the AOCS Cd 1c-85 factors x 100): triolein 86.0, trilinolein
-// 173.2, trilinolenin 261.6, tripalmitolein 95.0.
+// The theoretical IV of the pure TAGs, which are the AOCS Cd 1c-85 factors
+// x 100 (the method's factors are each pure TAG's theoretical IV / 100):
+// triolein 86.0, trilinolein 173.2, trilinolenin 261.6, tripalmitolein 95.0.
 func TestTheoreticalIodineValues(t *testing.T) {
 	for key, want := range map[string]float64{"C18:1": 86.0, "C18:2": 173.2, "C18:3": 261.6, "C16:1": 95.0} {
 		assert.InDelta(t, want, TAGIodineValue(fa(t, key)), 0.1, key)
@@ -46,7 +46,8 @@ func TestDerivedFactorsEqualCd1c85(t *testing.T) {
 }
 
 // Saponification value of tripalmitin 208.5 mg KOH/g: 3 x 56106 / 807.3
-// (DESIGN section 5; AOCS Cd 3-25 defines SV as mg KOH to saponify 1 g).
+// (AOCS Cd 3-25 defines SV as mg KOH to saponify 1 g; tripalmitin's molar
+// mass from PubChem, from memory).
 func TestSaponificationValue(t *testing.T) {
 	assert.InDelta(t, 208.5, SVFactor(fa(t, "C16:0")), 0.05)
 	// Profile SV of pure palmitic FAME treated as its fat equals the TAG's SV.

@@ -67,7 +67,7 @@ func TestMethylEsterMolarMasses(t *testing.T) {
 	}
 }
 
-// A TAG is glycerol + 3 acids - 3 water. Check values of DESIGN section 5:
+// A TAG is glycerol + 3 acids - 3 water (condensation). Check values:
 // tripalmitin 807.3, triolein 885.4, tristearin 891.5 g/mol; formulae
 // C51H98O6, C57H104O6, C57H110O6 (PubChem, from memory).
 func TestTAGMolarMasses(t *testing.T) {

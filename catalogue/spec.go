@@ -147,7 +147,7 @@ var (
 	keysProcess = []string{"interesterify", "method", "cost", "sfc"}
 )
 
-// ParseSpec decodes and validates a product spec (DESIGN section 3). When cat
+// ParseSpec decodes and validates a product spec (README, "File formats"). When cat
 // is non-nil every stock id named in [use] and [process] must exist in it.
 // The spec's ID is the file's base name without extension.
 func ParseSpec(name string, data []byte, cat *Catalogue) (*Spec, Problems) {

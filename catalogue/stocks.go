@@ -443,7 +443,7 @@ func (c *collector) curveFalls(where string, curve Curve) {
 	}
 }
 
-// ParseStocks decodes and validates a stock catalogue (DESIGN section 3).
+// ParseStocks decodes and validates a stock catalogue (README, "File formats").
 // name is the file name used in messages. The catalogue is nil when any
 // problem is an error; warnings come back with a usable catalogue.
 func ParseStocks(name string, data []byte) (*Catalogue, Problems) {

@@ -24,9 +24,9 @@ func blend12(tb testing.TB) []catalogue.Part {
 	return parts
 }
 
-// BenchmarkDistribution12 is the DESIGN section 7 target: 12 acids with
-// grouping under 100 us. A partial chemical reaction is the heaviest case
-// (start and equilibrium are both built).
+// BenchmarkDistribution12 is a performance target (DEVELOPERS.md, "Project
+// decisions"): 12 acids with grouping under 100 us. A partial chemical
+// reaction is the heaviest case (start and equilibrium are both built).
 func BenchmarkDistribution12(b *testing.B) {
 	parts := blend12(b)
 	b.ReportAllocs()

@@ -59,8 +59,8 @@ func TestHardenSoybean(t *testing.T) {
 	}
 	assert.Greater(t, h.FattyAcids["C18:0"], c18wt/sumValues(soy.FattyAcids)*100)
 
-	// Tristearin, the main TAG of the hardstock, is 891.5 g/mol (DESIGN
-	// section 5 check value).
+	// Tristearin, the main TAG of the hardstock, is 891.5 g/mol (PubChem,
+	// from memory).
 	d := distribute(t, []catalogue.Part{{Stock: &h, Pct: 100}}, randomise.Native, 0)
 	sp := speciesByTag(d.Species())
 	assert.InDelta(t, 891.5, sp["SSS"].MolarMass, 0.1)

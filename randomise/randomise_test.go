@@ -120,8 +120,8 @@ func TestRandomTripalmitinTriolein(t *testing.T) {
 	// pair, every species has ECN 48 (common practice in RP-HPLC of TAGs).
 	assert.Equal(t, map[int]float64{48: 100}, roundMap(d.ByECN()))
 
-	// Molar masses: DESIGN section 5 check values, tripalmitin 807.3 and
-	// triolein 885.4 g/mol.
+	// Molar masses: tripalmitin 807.3 and triolein 885.4 g/mol (PubChem,
+	// from memory).
 	sp := speciesByTag(d.Species())
 	assert.InDelta(t, 807.3, sp["PPP"].MolarMass, 0.1)
 	assert.InDelta(t, 885.4, sp["OOO"].MolarMass, 0.1)

@@ -14,7 +14,7 @@ import (
 	"lipoplan/optimise"
 )
 
-// Caution lines (DESIGN 10), long and short for narrow terminals.
+// Caution lines (README, "Cautions"), long and short for narrow terminals.
 const (
 	cautionLong  = "Estimates only: confirm by lab analysis (GC FAME, pulsed-NMR SFC) before use. Trans-fat and labelling rules are set by local food law."
 	cautionShort = "Estimates: confirm by GC FAME and NMR SFC. Trans, labelling: local food law."

@@ -9,8 +9,9 @@ import (
 )
 
 // bench550 is randomly interesterified demo palm oil: 10 acids, so every one
-// of the 10^2 x 11 / 2 = 550 TAG identities occurs (DESIGN section 7 case:
-// ~500 TAGs, 8 temperatures).
+// of the 10^2 x 11 / 2 = 550 TAG identities occurs (the case of the
+// performance target in DEVELOPERS.md, "Project decisions": about 500 TAGs,
+// 8 temperatures).
 func bench550(b *testing.B) (*randomise.Distribution, []float64) {
 	st, ok := catalogue.DemoStocks().Find("palm")
 	if !ok {
@@ -100,7 +101,8 @@ func BenchmarkCurveBisectionReference(b *testing.B) {
 }
 
 // BenchmarkDistributeReference is the TAG distribution of the same blend
-// (randomise, DESIGN target < 100 us), for scale.
+// (randomise; its target is under 100 us, DEVELOPERS.md "Project
+// decisions"), for scale.
 func BenchmarkDistributeReference(b *testing.B) {
 	st, _ := catalogue.DemoStocks().Find("palm")
 	parts := []catalogue.Part{{Stock: st, Pct: 100}}

@@ -1,5 +1,6 @@
 // Package sle predicts the solid fat content (SFC) of a fat from its TAG
-// composition by solid-liquid equilibrium (DESIGN section 5):
+// composition by solid-liquid equilibrium (README, "Methods"; each method's
+// source below):
 //
 //   - pure-TAG melting points and enthalpies of fusion for one polymorph
 //     (alpha, beta' or beta) from the correlations of Wesdorp (1990), as

@@ -63,7 +63,7 @@ func TestBinaryPPPOOOAgainstHildebrandByHand(t *testing.T) {
 	// liquid: the liquid is saturated in PPP (Hildebrand), L = 0.5/(1 - xs),
 	// solid PPP = 0.5 - L xs mol per mol, SFC = 100 solid M(PPP) / mean M,
 	// with M from catalogue.TAGMolarMass (tripalmitin 807.3, triolein 885.4
-	// g/mol, DESIGN section 5), so the set's own masses are checked too.
+	// g/mol, PubChem, from memory), so the set's own masses are checked too.
 	p, o := acid(t, "C16:0"), acid(t, "C18:1")
 	d := &randomise.Distribution{Acids: []catalogue.FattyAcid{p, o}, Mol: make([]float64, 8)}
 	d.Mol[0] = 0.5 // PPP (0,0,0)
