@@ -67,19 +67,19 @@ type Catalogue struct {
 }
 
 // Find returns the stock with the given id.
-func (c *Catalogue) Find(id string) (*Stock, bool) {
-	for i := range c.Stocks {
-		if c.Stocks[i].ID == id {
-			return &c.Stocks[i], true
+func (cat *Catalogue) Find(id string) (*Stock, bool) {
+	for i := range cat.Stocks {
+		if cat.Stocks[i].ID == id {
+			return &cat.Stocks[i], true
 		}
 	}
 	return nil, false
 }
 
 // Clone returns a deep copy, so that what-if edits never touch the original.
-func (c *Catalogue) Clone() *Catalogue {
-	out := &Catalogue{File: c.File, Currency: c.Currency, Stocks: make([]Stock, len(c.Stocks))}
-	for i, s := range c.Stocks {
+func (cat *Catalogue) Clone() *Catalogue {
+	out := &Catalogue{File: cat.File, Currency: cat.Currency, Stocks: make([]Stock, len(cat.Stocks))}
+	for i, s := range cat.Stocks {
 		s.FattyAcids = cloneMap(s.FattyAcids)
 		s.SN2 = cloneMap(s.SN2)
 		s.TAGs = cloneMap(s.TAGs)
@@ -157,10 +157,10 @@ func stockLabel(i int, id val) string {
 // Check reports every problem of a catalogue built or edited in code, by
 // the rules and in the words of ParseStocks (README, "File formats" and
 // "Accepted magnitudes"): at least one stock, each id used once, and each
-// stock's values as Stock.Check finds them. Problems name c.File when set.
+// stock's values as Stock.Check finds them. Problems name cat.File when set.
 // What only a file can get wrong (a missing key, a value of the wrong type,
 // two keys for one temperature) is the loader's alone.
-func (c *Catalogue) Check() Problems { return c.check(true) }
+func (cat *Catalogue) Check() Problems { return cat.check(true) }
 
 // CheckModel reports what keeps the stocks from being columns of a model,
 // in the words of Check: at least one stock; ids present, [a-z0-9-]+ and
@@ -171,25 +171,25 @@ func (c *Catalogue) Check() Problems { return c.check(true) }
 // sn-2 analysis; the TAG profile) is for what a person writes, and the TAG
 // model checks the profiles it uses (Stock.CheckProfiles). The optimiser
 // checks with it.
-func (c *Catalogue) CheckModel() Problems { return c.check(false) }
+func (cat *Catalogue) CheckModel() Problems { return cat.check(false) }
 
 // check is Check, or with typed unset CheckModel.
-func (c *Catalogue) check(typed bool) Problems {
-	if c == nil || len(c.Stocks) == 0 {
-		var ck collector
-		ck.noStocks()
-		return ck.problems()
+func (cat *Catalogue) check(typed bool) Problems {
+	if cat == nil || len(cat.Stocks) == 0 {
+		var c collector
+		c.noStocks()
+		return c.problems()
 	}
-	return checked(c.File, func(ck *collector) {
-		for i := range c.Stocks {
-			s := &c.Stocks[i]
-			where := ck.stockWhere(s)
-			if s.ID == "" && !ck.quiet {
+	return checked(cat.File, func(c *collector) {
+		for i := range cat.Stocks {
+			s := &cat.Stocks[i]
+			where := c.stockWhere(s)
+			if s.ID == "" && !c.quiet {
 				where = fmt.Sprintf("stock #%d", i+1)
 			}
-			ck.stockValues(where, s, typed)
+			c.stockValues(where, s, typed)
 		}
-		ck.uniqueIDs(c.Stocks)
+		c.uniqueIDs(cat.Stocks)
 	})
 }
 
