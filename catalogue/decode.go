@@ -254,6 +254,27 @@ func (c *collector) unknownKeys(md toml.MetaData, knownAt func(parent toml.Key) 
 	}
 }
 
+// arrayTables finds the [[name]] tables of a document: tableOf(i) is the
+// table (0 for the first) that holds the key at position i of md.Keys(),
+// -1 before the first, and count is how many there are.
+func arrayTables(md toml.MetaData, name string) (tableOf func(i int) int, count int) {
+	var pos []int // position in md.Keys() of each [[name]] header
+	for i, k := range md.Keys() {
+		if len(k) == 1 && k[0] == name {
+			pos = append(pos, i)
+		}
+	}
+	return func(i int) int {
+		n := -1
+		for j, p := range pos {
+			if p < i {
+				n = j
+			}
+		}
+		return n
+	}, len(pos)
+}
+
 // hasReportedPrefix reports whether a table holding k (a proper prefix of
 // it) was reported already; the key depth is bounded by MaxTOMLDepth.
 func hasReportedPrefix(reported map[string]bool, k toml.Key) bool {

@@ -63,12 +63,7 @@ func ParseOrders(name string, data []byte, dir string, cat *Catalogue) (*Orders,
 	if !ok {
 		return nil, c.problems()
 	}
-	var pos []int
-	for i, k := range md.Keys() {
-		if len(k) == 1 && k[0] == "order" {
-			pos = append(pos, i)
-		}
-	}
+	tableOf, _ := arrayTables(md, "order")
 	c.unknownKeys(md,
 		func(parent toml.Key) ([]string, bool) {
 			switch {
@@ -83,12 +78,7 @@ func ParseOrders(name string, data []byte, dir string, cat *Catalogue) (*Orders,
 			if k[0] != "order" || len(k) == 1 {
 				return ""
 			}
-			n := 0
-			for j, p := range pos {
-				if p < i {
-					n = j
-				}
-			}
+			n := max(tableOf(i), 0)
 			return fmt.Sprintf("order #%d", n+1)
 		})
 	out := c.orders(raw, dir, cat)

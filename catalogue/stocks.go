@@ -458,12 +458,7 @@ func ParseStocks(name string, data []byte) (*Catalogue, Problems) {
 	for i, s := range raw.Stock {
 		labels[i] = stockLabel(i, s.ID)
 	}
-	var pos []int // index into md.Keys() of each [[stock]] header
-	for i, k := range md.Keys() {
-		if len(k) == 1 && k[0] == "stock" {
-			pos = append(pos, i)
-		}
-	}
+	tableOf, tables := arrayTables(md, "stock")
 	c.unknownKeys(md,
 		func(parent toml.Key) ([]string, bool) {
 			switch {
@@ -478,13 +473,7 @@ func ParseStocks(name string, data []byte) (*Catalogue, Problems) {
 			if k[0] != "stock" || len(k) == 1 {
 				return ""
 			}
-			n := -1
-			for j, p := range pos {
-				if p < i {
-					n = j
-				}
-			}
-			if n >= 0 && n < len(labels) && len(pos) == len(labels) {
+			if n := tableOf(i); n >= 0 && n < len(labels) && tables == len(labels) {
 				return labels[n]
 			}
 			return "stock"
