@@ -5,17 +5,17 @@ import (
 	"strconv"
 )
 
-// words writes shadow prices in plain trade words: what moving a limit by
+// phrasing writes shadow prices in plain trade words: what moving a limit by
 // one unit saves (or costs) per tonne of product. Every phrase is appended
 // to a byte buffer, so that a report writes all its texts into one buffer
-// (see texts) rather than allocating a string or two per limit.
-type words struct {
+// (see limitTexts) rather than allocating a string or two per limit.
+type phrasing struct {
 	cur  string  // currency code for display; may be empty
 	tiny float64 // shadow prices below this count as zero
 }
 
 // money appends an amount per tonne of product, e.g. "3.10 EUR/t".
-func (w words) money(b []byte, v float64) []byte {
+func (w phrasing) money(b []byte, v float64) []byte {
 	b = strconv.AppendFloat(b, v, 'f', 2, 64)
 	if w.cur == "" {
 		return append(b, " per t"...)
@@ -24,7 +24,7 @@ func (w words) money(b []byte, v float64) []byte {
 }
 
 // batch appends an amount per batch, e.g. "62.00 EUR per batch".
-func (w words) batch(b []byte, v float64) []byte {
+func (w phrasing) batch(b []byte, v float64) []byte {
 	b = strconv.AppendFloat(b, v, 'f', 2, 64)
 	if w.cur == "" {
 		return append(b, " per batch"...)
@@ -35,7 +35,7 @@ func (w words) batch(b []byte, v float64) []byte {
 // move phrases the effect of moving a bound: s is the shadow price (+ =
 // raising the bound saves), loosenUp says which way relaxes the limit.
 // what is appended by the caller's func so it needs no string of its own.
-func (w words) move(b []byte, what func([]byte) []byte, s float64, loosenUp bool) []byte {
+func (w phrasing) move(b []byte, what func([]byte) []byte, s float64, loosenUp bool) []byte {
 	dir, saving := "lowering ", -s
 	if loosenUp {
 		dir, saving = "raising ", s
@@ -59,7 +59,7 @@ func slack(b []byte, lr LimitReport, unit string) []byte {
 
 // limit explains a property, fatty-acid or SFC limit, e.g. "raising the IV
 // maximum by 1 saves 3.10 EUR/t".
-func (w words) limit(b []byte, lr LimitReport, label, unit string, isMax bool) []byte {
+func (w phrasing) limit(b []byte, lr LimitReport, label, unit string, isMax bool) []byte {
 	if !lr.Binding {
 		return slack(b, lr, unit)
 	}
@@ -73,7 +73,7 @@ func (w words) limit(b []byte, lr LimitReport, label, unit string, isMax bool) [
 }
 
 // useLimit explains a [use] bound of one stock.
-func (w words) useLimit(b []byte, lr LimitReport, id string, isMax bool) []byte {
+func (w phrasing) useLimit(b []byte, lr LimitReport, id string, isMax bool) []byte {
 	if !lr.Binding {
 		return slack(b, lr, " %")
 	}
@@ -89,7 +89,7 @@ func (w words) useLimit(b []byte, lr LimitReport, id string, isMax bool) []byte 
 
 // avail explains an availability limit; its shadow price is per tonne of
 // stock on hand.
-func (w words) avail(b []byte, lr LimitReport, id string, batch float64) []byte {
+func (w phrasing) avail(b []byte, lr LimitReport, id string, batch float64) []byte {
 	if !lr.Binding {
 		b = append(b, "not binding: "...)
 		b = strconv.AppendFloat(b, math.Max(lr.Bound-lr.Value, 0), 'g', 4, 64)
@@ -104,7 +104,7 @@ func (w words) avail(b []byte, lr LimitReport, id string, batch float64) []byte 
 	return append(b, ')')
 }
 
-func (w words) minIfUsed(b []byte, lr LimitReport) []byte {
+func (w phrasing) minIfUsed(b []byte, lr LimitReport) []byte {
 	if !lr.Binding {
 		return slack(b, lr, " %")
 	}
@@ -113,7 +113,7 @@ func (w words) minIfUsed(b []byte, lr LimitReport) []byte {
 	}, lr.ShadowPrice, false)
 }
 
-func (w words) maxStocks(b []byte, lr LimitReport) []byte {
+func (w phrasing) maxStocks(b []byte, lr LimitReport) []byte {
 	if !lr.Binding {
 		b = append(b, "not binding: "...)
 		b = strconv.AppendInt(b, int64(lr.Value), 10)
@@ -127,22 +127,22 @@ func (w words) maxStocks(b []byte, lr LimitReport) []byte {
 	return w.money(append(b, "allowing one more stock saves "...), lr.ShadowPrice)
 }
 
-// texts gathers the names and explanations of a report's limits in one
+// limitTexts gathers the names and explanations of a report's limits in one
 // buffer; done turns the buffer into one string and hands each limit its
 // two substrings, so a report of forty limits costs one string allocation
 // instead of eighty.
-type texts struct {
+type limitTexts struct {
 	b  []byte
 	at []int // end of each name, then of its explanation, limit by limit
 }
 
-// name and explained close the current limit's name and explanation; the
+// endName and endExplanation close the current limit's name and explanation; the
 // caller appends each to t.b first.
-func (t *texts) name()      { t.at = append(t.at, len(t.b)) }
-func (t *texts) explained() { t.at = append(t.at, len(t.b)) }
+func (t *limitTexts) endName()        { t.at = append(t.at, len(t.b)) }
+func (t *limitTexts) endExplanation() { t.at = append(t.at, len(t.b)) }
 
 // done sets Name and Explain of limits[k] for every limit written.
-func (t *texts) done(limits []LimitReport) {
+func (t *limitTexts) done(limits []LimitReport) {
 	s := string(t.b)
 	prev := 0
 	for k := 0; 2*k+1 < len(t.at); k++ {
