@@ -1,6 +1,7 @@
 package optimise
 
 import (
+	"math"
 	"time"
 
 	"lipoplan/blend"
@@ -50,9 +51,26 @@ type LimitReport struct {
 	Name        string  // "iv.max", "sfc.20.min", "use.pko-r.max", "avail.pko-r", ...
 	Value       float64 // the blend's value of the limited quantity
 	Bound       float64 // the bound written in the spec
-	Binding     bool
+	Binding     bool    // the limit holds the blend: the LP sits at this bound
 	ShadowPrice float64 // currency per tonne of product per unit of the limit (+ = raising the bound saves)
-	Explain     string  // plain trade words, e.g. "raising the IV maximum by 1 saves 3.10 EUR/t"
+	// HoldsFrom and HoldsTo are the values of the bound between which
+	// ShadowPrice prices every change (right-hand-side ranging on the final
+	// basis; the blend's make-up changes beyond them, and with it the
+	// price of a further move); NaN when the limit does not hold the blend.
+	HoldsFrom, HoldsTo float64
+	// Excluded marks a [use] cap of 0: a stock left out by the spec, which
+	// reports list once as such rather than as a cost.
+	Excluded bool
+	Explain  string // plain trade words, e.g. "raising the IV maximum by 1 saves 3.10 EUR/t, up to 52.5"
+}
+
+// Room is how far the blend is from the bound, in the limit's own unit (0
+// when the limit holds the blend).
+func (l LimitReport) Room() float64 {
+	if l.Binding {
+		return 0
+	}
+	return math.Abs(l.Bound - l.Value)
 }
 
 // Range is the price range over which the blend stays optimal for one stock.

@@ -211,6 +211,18 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 	}
 	res.Properties = props
 
+	// Ranging: of costs (the stock's price) and of bounds (how far a
+	// holding limit's shadow price holds), on the final basis.
+	rg, ferr := rangingOf(m, sol)
+	if ferr != nil {
+		return fmt.Errorf("optimise %s: ranging: %w", specWhere(l.spec), ferr)
+	}
+	nan := math.NaN()
+	holds := func(lr *LimitReport, lo, hi, shift, scale float64) {
+		if lr.Binding && !math.IsNaN(lo) {
+			lr.HoldsFrom, lr.HoldsTo = (lo-shift)*scale, (hi-shift)*scale
+		}
+	}
 	w := phrasing{cur: l.cat.Currency, tiny: 1e-7 * math.Max(1, cost)}
 	tx := l.buf.texts(nl)
 	add := func(lr LimitReport) { res.Limits = append(res.Limits, lr) }
@@ -226,10 +238,12 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 		// binding: the LP holds the row at its bound (a linearised row's
 		// bound is moved by the linearisation's constant)
 		if ri.bound.HasMin() {
-			lr := LimitReport{Value: shown, Bound: ri.bound.Min, Binding: near(v, m.rowLo[i])}
+			lr := LimitReport{Value: shown, Bound: ri.bound.Min, Binding: near(v, m.rowLo[i]), HoldsFrom: nan, HoldsTo: nan}
 			if y > 0 {
 				lr.ShadowPrice = -y
 			}
+			lo, hi := rg.RowBoundRange(i, false)
+			holds(&lr, lo, hi, m.rowLo[i]-ri.bound.Min, 1)
 			tx.b = append(append(tx.b, ri.key...), ".min"...)
 			tx.endName()
 			tx.b = w.limit(tx.b, lr, ri.label, ri.unit, false)
@@ -237,10 +251,12 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 			add(lr)
 		}
 		if ri.bound.HasMax() {
-			lr := LimitReport{Value: shown, Bound: ri.bound.Max, Binding: near(v, m.rowUp[i])}
+			lr := LimitReport{Value: shown, Bound: ri.bound.Max, Binding: near(v, m.rowUp[i]), HoldsFrom: nan, HoldsTo: nan}
 			if y < 0 {
 				lr.ShadowPrice = -y
 			}
+			lo, hi := rg.RowBoundRange(i, true)
+			holds(&lr, lo, hi, m.rowUp[i]-ri.bound.Max, 1)
 			tx.b = append(append(tx.b, ri.key...), ".max"...)
 			tx.endName()
 			tx.b = w.limit(tx.b, lr, ri.label, ri.unit, true)
@@ -266,9 +282,11 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 			}
 		}
 		if c.use.HasMin() {
-			lr := LimitReport{Value: x, Bound: c.use.Min, Binding: near(x, c.use.Min)}
+			lr := LimitReport{Value: x, Bound: c.use.Min, Binding: near(x, c.use.Min), HoldsFrom: nan, HoldsTo: nan}
 			if atLo && !ruleLo && m.colLo[j] == c.use.Min {
 				lr.ShadowPrice = -d
+				lo, hi := rg.ColBoundRange(j, false)
+				holds(&lr, lo, hi, 0, 1)
 			}
 			tx.b = append(append(append(tx.b, "use."...), id...), ".min"...)
 			tx.endName()
@@ -278,9 +296,11 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 		}
 		useTight := c.use.HasMax() && c.use.Max <= c.availPct
 		if c.use.HasMax() {
-			lr := LimitReport{Value: x, Bound: c.use.Max, Binding: near(x, c.use.Max)}
+			lr := LimitReport{Value: x, Bound: c.use.Max, Binding: near(x, c.use.Max), HoldsFrom: nan, HoldsTo: nan, Excluded: c.use.Max <= 0}
 			if atUp && useTight && m.colUp[j] == c.use.Max {
 				lr.ShadowPrice = -d
+				lo, hi := rg.ColBoundRange(j, true)
+				holds(&lr, lo, hi, 0, 1)
 			}
 			tx.b = append(append(append(tx.b, "use."...), id...), ".max"...)
 			tx.endName()
@@ -289,9 +309,11 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 			add(lr)
 		}
 		if c.stock.Limited() {
-			lr := LimitReport{Value: x * batch / 100, Bound: c.stock.Available, Binding: near(x, c.availPct)}
+			lr := LimitReport{Value: x * batch / 100, Bound: c.stock.Available, Binding: near(x, c.availPct), HoldsFrom: nan, HoldsTo: nan}
 			if atUp && !useTight && m.colUp[j] == c.availPct {
 				lr.ShadowPrice = -d * 100 / batch
+				lo, hi := rg.ColBoundRange(j, true)
+				holds(&lr, lo, hi, 0, batch/100)
 			}
 			tx.b = append(append(tx.b, "avail."...), id...)
 			tx.endName()
@@ -304,7 +326,7 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 		if math.IsInf(minUsed, 1) {
 			minUsed = 0
 		}
-		lr := LimitReport{Value: minUsed, Bound: l.rules.MinIfUsed, Binding: near(minUsed, l.rules.MinIfUsed), ShadowPrice: -minDose}
+		lr := LimitReport{Value: minUsed, Bound: l.rules.MinIfUsed, Binding: near(minUsed, l.rules.MinIfUsed), ShadowPrice: -minDose, HoldsFrom: nan, HoldsTo: nan}
 		tx.b = append(tx.b, "min_if_used"...)
 		tx.endName()
 		tx.b = w.minIfUsed(tx.b, lr)
@@ -318,7 +340,6 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 	// of the coefficient is a price change of 100·δ. (In a [process] model
 	// each stock's price sits in its total-inclusion column, so the same
 	// ratio test covers the reactor-feed stocks.)
-	rg, ferr := rangingOf(m, sol)
 	for j := 0; j < n; j++ {
 		s := l.cols[j].stock
 		r := Range{Stock: s.ID, InBlend: sol.x[j] > usedTol, Price: s.Price, PriceLow: math.Inf(-1), PriceHigh: math.Inf(1)}
@@ -329,11 +350,9 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 			if d := sol.d[j]; d > 0 {
 				r.PriceLow = s.Price - 100*d
 			}
-		case ferr == nil:
+		default:
 			lo, hi := rg.CostRange(j)
 			r.PriceLow, r.PriceHigh = s.Price+100*lo, s.Price+100*hi
-		default:
-			return fmt.Errorf("optimise %s: ranging: %w", specWhere(l.spec), ferr)
 		}
 		res.Ranging = append(res.Ranging, r)
 	}
@@ -359,7 +378,7 @@ func (l *layout) lines(x []float64) []Line {
 func (l *layout) priceMaxStocks(eng *engine, base *model, res *Result) error {
 	r := l.rules
 	used := len(res.Blend)
-	lr := LimitReport{Name: "max_stocks", Value: float64(used), Bound: float64(r.MaxStocks), Binding: used >= r.MaxStocks}
+	lr := LimitReport{Name: "max_stocks", Value: float64(used), Bound: float64(r.MaxStocks), Binding: used >= r.MaxStocks, HoldsFrom: math.NaN(), HoldsTo: math.NaN()}
 	if lr.Binding && r.MaxStocks < l.n() && res.Status == Optimal {
 		more := r
 		more.MaxStocks++
