@@ -49,6 +49,8 @@ type Line struct {
 // LimitReport is one row of the model as the user wrote it.
 type LimitReport struct {
 	Name        string  // "iv.max", "sfc.20.min", "use.pko-r.max", "avail.pko-r", ...
+	Label       string  // the limit in words, e.g. "SFC at 20 °C, at least", "pko-r on hand"
+	Unit        string  // of Value and Bound, e.g. " % solid", " t", "" (IV)
 	Value       float64 // the blend's value of the limited quantity
 	Bound       float64 // the bound written in the spec
 	Binding     bool    // the limit holds the blend: the LP sits at this bound

@@ -238,7 +238,7 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 		// binding: the LP holds the row at its bound (a linearised row's
 		// bound is moved by the linearisation's constant)
 		if ri.bound.HasMin() {
-			lr := LimitReport{Value: shown, Bound: ri.bound.Min, Binding: near(v, m.rowLo[i]), HoldsFrom: nan, HoldsTo: nan}
+			lr := LimitReport{Label: ri.label + ", at least", Unit: ri.unit, Value: shown, Bound: ri.bound.Min, Binding: near(v, m.rowLo[i]), HoldsFrom: nan, HoldsTo: nan}
 			if y > 0 {
 				lr.ShadowPrice = -y
 			}
@@ -251,7 +251,7 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 			add(lr)
 		}
 		if ri.bound.HasMax() {
-			lr := LimitReport{Value: shown, Bound: ri.bound.Max, Binding: near(v, m.rowUp[i]), HoldsFrom: nan, HoldsTo: nan}
+			lr := LimitReport{Label: ri.label + ", at most", Unit: ri.unit, Value: shown, Bound: ri.bound.Max, Binding: near(v, m.rowUp[i]), HoldsFrom: nan, HoldsTo: nan}
 			if y < 0 {
 				lr.ShadowPrice = -y
 			}
@@ -282,7 +282,7 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 			}
 		}
 		if c.use.HasMin() {
-			lr := LimitReport{Value: x, Bound: c.use.Min, Binding: near(x, c.use.Min), HoldsFrom: nan, HoldsTo: nan}
+			lr := LimitReport{Label: id + ", share at least", Unit: " %", Value: x, Bound: c.use.Min, Binding: near(x, c.use.Min), HoldsFrom: nan, HoldsTo: nan}
 			if atLo && !ruleLo && m.colLo[j] == c.use.Min {
 				lr.ShadowPrice = -d
 				lo, hi := rg.ColBoundRange(j, false)
@@ -296,7 +296,7 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 		}
 		useTight := c.use.HasMax() && c.use.Max <= c.availPct
 		if c.use.HasMax() {
-			lr := LimitReport{Value: x, Bound: c.use.Max, Binding: near(x, c.use.Max), HoldsFrom: nan, HoldsTo: nan, Excluded: c.use.Max <= 0}
+			lr := LimitReport{Label: id + ", share at most", Unit: " %", Value: x, Bound: c.use.Max, Binding: near(x, c.use.Max), HoldsFrom: nan, HoldsTo: nan, Excluded: c.use.Max <= 0}
 			if atUp && useTight && m.colUp[j] == c.use.Max {
 				lr.ShadowPrice = -d
 				lo, hi := rg.ColBoundRange(j, true)
@@ -309,7 +309,7 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 			add(lr)
 		}
 		if c.stock.Limited() {
-			lr := LimitReport{Value: x * batch / 100, Bound: c.stock.Available, Binding: near(x, c.availPct), HoldsFrom: nan, HoldsTo: nan}
+			lr := LimitReport{Label: id + " on hand", Unit: " t", Value: x * batch / 100, Bound: c.stock.Available, Binding: near(x, c.availPct), HoldsFrom: nan, HoldsTo: nan}
 			if atUp && !useTight && m.colUp[j] == c.availPct {
 				lr.ShadowPrice = -d * 100 / batch
 				lo, hi := rg.ColBoundRange(j, true)
@@ -326,7 +326,7 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 		if math.IsInf(minUsed, 1) {
 			minUsed = 0
 		}
-		lr := LimitReport{Value: minUsed, Bound: l.rules.MinIfUsed, Binding: near(minUsed, l.rules.MinIfUsed), ShadowPrice: -minDose, HoldsFrom: nan, HoldsTo: nan}
+		lr := LimitReport{Label: "smallest share of a stock in use", Unit: " %", Value: minUsed, Bound: l.rules.MinIfUsed, Binding: near(minUsed, l.rules.MinIfUsed), ShadowPrice: -minDose, HoldsFrom: nan, HoldsTo: nan}
 		tx.b = append(tx.b, "min_if_used"...)
 		tx.endName()
 		tx.b = w.minIfUsed(tx.b, lr)
@@ -378,7 +378,7 @@ func (l *layout) lines(x []float64) []Line {
 func (l *layout) priceMaxStocks(eng *engine, base *model, res *Result) error {
 	r := l.rules
 	used := len(res.Blend)
-	lr := LimitReport{Name: "max_stocks", Value: float64(used), Bound: float64(r.MaxStocks), Binding: used >= r.MaxStocks, HoldsFrom: math.NaN(), HoldsTo: math.NaN()}
+	lr := LimitReport{Name: "max_stocks", Label: "stocks in the blend, at most", Value: float64(used), Bound: float64(r.MaxStocks), Binding: used >= r.MaxStocks, HoldsFrom: math.NaN(), HoldsTo: math.NaN()}
 	if lr.Binding && r.MaxStocks < l.n() && res.Status == Optimal {
 		more := r
 		more.MaxStocks++
