@@ -426,10 +426,20 @@ func writeDiagnosis(w io.Writer, r *optimise.Result, spec *catalogue.Spec) {
 			if strings.HasSuffix(x.Name, ".min") {
 				to = b - x.By
 			}
-			line += " (from " + strconv.FormatFloat(b, 'g', 6, 64) + " to " + strconv.FormatFloat(to, 'g', 6, 64) + ")"
+			u := relaxUnit(x.Name)
+			line += " (from " + quantity(b, u) + " to " + quantity(to, u) + ")"
 		}
 		fmt.Fprintf(w, "  %-22s %s\n", x.Name, line)
 	}
+}
+
+// relaxUnit is the unit of a relaxation's limit, for its rounding rule
+// (tonnes for availability, as the limits print them).
+func relaxUnit(name string) string {
+	if strings.HasPrefix(name, "avail.") {
+		return " t"
+	}
+	return ""
 }
 
 // boundOf finds the bound a relaxation name refers to in the spec.
@@ -473,7 +483,7 @@ func boundOf(spec *catalogue.Spec, name string) (float64, bool) {
 }
 
 func relaxWords(x optimise.Relax) string {
-	by := strconv.FormatFloat(x.By, 'g', 4, 64)
+	by := quantity(x.By, relaxUnit(x.Name))
 	switch {
 	case strings.HasPrefix(x.Name, "avail."):
 		return "have " + by + " t more of " + strings.TrimPrefix(x.Name, "avail.") + " on hand"
