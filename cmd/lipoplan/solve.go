@@ -499,12 +499,11 @@ func relaxWords(x optimise.Relax) string {
 // goes through the reactor, what it costs and the reacted fat's SFC.
 func writeReactor(w io.Writer, r *optimise.Result, temps []float64) {
 	p := r.Process
-	fmt.Fprintf(w, "Reactor (%s interesterification, SFC of the reacted fat %s)\n", p.Method, p.SFCModel)
 	if len(p.Feed) == 0 {
-		fmt.Fprintln(w, "  not used: blending the stocks as they are is cheaper")
-		fmt.Fprintln(w)
+		fmt.Fprintf(w, "Reactor (%s interesterification): not used, nothing goes through it; blending the stocks as they are is cheaper.\n\n", p.Method)
 		return
 	}
+	fmt.Fprintf(w, "Reactor (%s interesterification, SFC of the reacted fat %s)\n", p.Method, p.SFCModel)
 	for _, l := range p.Feed {
 		fmt.Fprintf(w, "  %-14s %8.2f %% of batch %9.3f t\n", l.Stock, l.Pct, l.Tonnes)
 	}
