@@ -1,36 +1,7 @@
-// Package optimise turns stocks and a product spec into a linear (or mixed
-// integer) programme, solves it through the engine layer
-// (lipoplan/optimise/lp: lipoplan's own simplex and branch and bound, or
-// COIN-OR CLP/CBC in the coin build), and reports the cheapest blend with
-// shadow prices, cost ranging and, for an impossible spec, the smallest
-// relaxation from an elastic LP.
-//
-// The model has one column per stock, its share in % of the batch, costing
-// price/100 so that the objective is currency per tonne of product. Rows
-// and limit names (LimitReport.Name, Relax.Name; MPS row names drop the
-// side):
-//
-//	sum                shares add up to 100 % (MPS only, never relaxed)
-//	iv.min, iv.max     a [limits] entry: iv, sv, safa, mufa, pufa, trans,
-//	C18:2.max ...      cox, omega3 or a fatty-acid key; Σ x_j/100 · v_j
-//	sfc.20.min ...     a [limits.sfc] entry, linear in measured curves
-//	use.<id>.min/max   a [use] bound (column bound, % of batch)
-//	avail.<id>         availability, x_j <= 100·available/batch (column
-//	                   bound; value, bound and By in tonnes, shadow price
-//	                   per tonne of stock on hand)
-//	max_stocks         integer rule Σ used_j <= N (MPS rows "count",
-//	                   "link.<id>", columns "used.<id>")
-//	min_if_used        integer rule x_j >= m·used_j (MPS rows "minuse.<id>")
-//
-// Shadow prices are in currency per tonne of product per unit of the limit,
-// positive when raising the bound saves money. Cost ranging is the textbook
-// ratio test on the final basis; a stock out of the blend gets the price at
-// which it would enter (its reduced cost). With integer rules the duals and
-// ranges are those of the LP with the integer choices fixed, and max_stocks
-// is priced by solving again with one stock more.
 package optimise
 
 import (
+	"math"
 	"time"
 
 	"lipoplan/blend"
@@ -78,11 +49,30 @@ type Line struct {
 // LimitReport is one row of the model as the user wrote it.
 type LimitReport struct {
 	Name        string  // "iv.max", "sfc.20.min", "use.pko-r.max", "avail.pko-r", ...
+	Label       string  // the limit in words, e.g. "SFC at 20 °C, at least", "pko-r on hand"
+	Unit        string  // of Value and Bound, e.g. " % solid", " t", "" (IV)
 	Value       float64 // the blend's value of the limited quantity
 	Bound       float64 // the bound written in the spec
-	Binding     bool
+	Binding     bool    // the limit holds the blend: the LP sits at this bound
 	ShadowPrice float64 // currency per tonne of product per unit of the limit (+ = raising the bound saves)
-	Explain     string  // plain trade words, e.g. "raising the IV maximum by 1 saves 3.10 EUR/t"
+	// HoldsFrom and HoldsTo are the values of the bound between which
+	// ShadowPrice prices every change (right-hand-side ranging on the final
+	// basis; the blend's make-up changes beyond them, and with it the
+	// price of a further move); NaN when the limit does not hold the blend.
+	HoldsFrom, HoldsTo float64
+	// Excluded marks a [use] cap of 0: a stock left out by the spec, which
+	// reports list once as such rather than as a cost.
+	Excluded bool
+	Explain  string // plain trade words, e.g. "raising the IV maximum by 1 saves 3.10 EUR/t, up to 52.5"
+}
+
+// Room is how far the blend is from the bound, in the limit's own unit (0
+// when the limit holds the blend).
+func (l LimitReport) Room() float64 {
+	if l.Binding {
+		return 0
+	}
+	return math.Abs(l.Bound - l.Value)
 }
 
 // Range is the price range over which the blend stays optimal for one stock.

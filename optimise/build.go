@@ -47,7 +47,7 @@ type layout struct {
 	// properties (mix) and stay valid until the cache's next build.
 	prof  []*blend.Properties
 	share [][]float64
-	sc    *scratch // buffers for the report; nil: allocate
+	buf   *scratch // buffers for the report; nil: allocate
 	// filled by withRules:
 	used     []int // binary column of each stock, -1 when none
 	milpRows []rowInfo
@@ -117,10 +117,10 @@ func buildWith(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache)
 	return buildIn(cat, spec, pc, nil, false)
 }
 
-// buildIn is buildWith taking its arrays from sc (nil: allocated); the
-// model and layout it returns live in sc until sc's next build. With
+// buildIn is buildWith taking its arrays from buf (nil: allocated); the
+// model and layout it returns live in buf until buf's next build. With
 // predicted set, SFC rows need no measured curves (buildPredicted).
-func buildIn(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache, sc *scratch, predicted bool) (*model, *layout, error) {
+func buildIn(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache, buf *scratch, predicted bool) (*model, *layout, error) {
 	if spec == nil {
 		return nil, nil, catalogue.Badf("no spec given")
 	}
@@ -132,9 +132,9 @@ func buildIn(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache, s
 		return nil, nil, err
 	}
 	n := len(cat.Stocks)
-	lay := sc.newLayout()
-	*lay = layout{cat: cat, spec: spec, cols: sc.colInfos(n), rules: spec.Rules, sc: sc}
-	index := sc.stockIndex(n)
+	lay := buf.newLayout()
+	*lay = layout{cat: cat, spec: spec, cols: buf.colInfos(n), rules: spec.Rules, buf: buf}
+	index := buf.stockIndex(n)
 	for j := range cat.Stocks {
 		s := &cat.Stocks[j]
 		index[s.ID] = j
@@ -149,9 +149,9 @@ func buildIn(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache, s
 
 	// One block of floats and one of names hold every array of the model.
 	rows := 1 + len(spec.Limits) + len(spec.SFC)
-	fl := sc.floats(4*n + 2*rows + rows*n)
-	str := sc.strings(n + rows)
-	m := sc.newModel()
+	fl := buf.floats(4*n + 2*rows + rows*n)
+	str := buf.strings(n + rows)
+	m := buf.newModel()
 	*m = model{nCols: n, colName: str[:n:n], rowName: str[n : n : n+rows]}
 	m.obj, m.colLo, m.colUp, fl = fl[:n:n], fl[n:2*n:2*n], fl[2*n:3*n:3*n], fl[3*n:]
 	m.rowLo, m.rowUp, fl = fl[:0:rows], fl[rows:rows:2*rows], fl[2*rows:]
@@ -160,7 +160,7 @@ func buildIn(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache, s
 	for j := range m.colUp {
 		m.colUp[j] = math.Inf(1)
 	}
-	lay.rows = sc.rowInfos(rows)
+	lay.rows = buf.rowInfos(rows)
 	for j, c := range lay.cols {
 		m.colName[j] = c.stock.ID
 		m.obj[j] = c.stock.Price / 100
@@ -185,8 +185,8 @@ func buildIn(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache, s
 	// stock (only when a property limit needs it) gives that stock's value
 	// of every limited quantity at once; fatty-acid limits read the profile
 	// directly. The rows are written straight into the flat matrix.
-	active := sc.limits(len(spec.Limits))
-	rank := sc.intSlice(len(spec.Limits))[:0] // reference-table rank of a fatty-acid limit, -1 for a property
+	active := buf.limits(len(spec.Limits))
+	rank := buf.intSlice(len(spec.Limits))[:0] // reference-table rank of a fatty-acid limit, -1 for a property
 	needProfile := false
 	for _, l := range spec.Limits {
 		if !l.HasMin() && !l.HasMax() {
@@ -206,7 +206,7 @@ func buildIn(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache, s
 		m.addRow(l.Name, coef[:0], l.Min, l.Max) // coefficients follow
 	}
 	m.a = m.a[:m.nRows*n]
-	lay.prof, lay.share = sc.profiles(n)
+	lay.prof, lay.share = buf.profiles(n)
 	var own []blend.Properties // profiles computed without a cache
 	if pc == nil && needProfile {
 		own = make([]blend.Properties, n)

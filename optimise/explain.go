@@ -5,17 +5,17 @@ import (
 	"strconv"
 )
 
-// words writes shadow prices in plain trade words: what moving a limit by
+// phrasing writes shadow prices in plain trade words: what moving a limit by
 // one unit saves (or costs) per tonne of product. Every phrase is appended
 // to a byte buffer, so that a report writes all its texts into one buffer
-// (see texts) rather than allocating a string or two per limit.
-type words struct {
+// (see limitTexts) rather than allocating a string or two per limit.
+type phrasing struct {
 	cur  string  // currency code for display; may be empty
 	tiny float64 // shadow prices below this count as zero
 }
 
 // money appends an amount per tonne of product, e.g. "3.10 EUR/t".
-func (w words) money(b []byte, v float64) []byte {
+func (w phrasing) money(b []byte, v float64) []byte {
 	b = strconv.AppendFloat(b, v, 'f', 2, 64)
 	if w.cur == "" {
 		return append(b, " per t"...)
@@ -24,7 +24,7 @@ func (w words) money(b []byte, v float64) []byte {
 }
 
 // batch appends an amount per batch, e.g. "62.00 EUR per batch".
-func (w words) batch(b []byte, v float64) []byte {
+func (w phrasing) batch(b []byte, v float64) []byte {
 	b = strconv.AppendFloat(b, v, 'f', 2, 64)
 	if w.cur == "" {
 		return append(b, " per batch"...)
@@ -33,67 +33,99 @@ func (w words) batch(b []byte, v float64) []byte {
 }
 
 // move phrases the effect of moving a bound: s is the shadow price (+ =
-// raising the bound saves), loosenUp says which way relaxes the limit.
-// what is appended by the caller's func so it needs no string of its own.
-func (w words) move(b []byte, what func([]byte) []byte, s float64, loosenUp bool) []byte {
+// raising the bound saves), loosenUp says which way relaxes the limit, per
+// is the unit step ("1 % solid"), and lr's HoldsFrom/HoldsTo how far the
+// price holds; what is appended by the caller's func so it needs no string
+// of its own. E.g. "lowering the SFC at 35 °C minimum saves 13.20 EUR/t per
+// 1 % solid, down to 11.93; past that the blend changes".
+func (w phrasing) move(b []byte, lr LimitReport, what func([]byte) []byte, per string, loosenUp bool) []byte {
+	s := lr.ShadowPrice
 	dir, saving := "lowering ", -s
 	if loosenUp {
 		dir, saving = "raising ", s
 	}
 	if math.Abs(s) <= w.tiny {
-		b = append(append(b, "binding, but "...), dir...)
+		b = append(append(b, "holds the blend, but "...), dir...)
 		return append(what(b), " saves nothing at the margin"...)
 	}
 	b = what(append(b, dir...))
 	if saving > 0 {
-		return w.money(append(b, " saves "...), saving)
+		b = w.money(append(b, " saves "...), saving)
+	} else {
+		b = w.money(append(b, " costs "...), -saving)
 	}
-	return w.money(append(b, " costs "...), -saving)
+	b = append(append(b, " per "...), per...)
+	end, way := lr.HoldsFrom, ", down to "
+	if loosenUp {
+		end, way = lr.HoldsTo, ", up to "
+	}
+	switch {
+	case math.IsNaN(end):
+		return b
+	case math.IsInf(end, 0):
+		return append(b, " however far it moves"...)
+	}
+	b = strconv.AppendFloat(append(b, way...), end, 'f', 2, 64)
+	if !loosenUp && end <= 0 {
+		return b // a limit cannot go below nothing
+	}
+	return append(b, "; past that the blend changes"...)
+}
+
+// holding limits' shadow prices apply per one unit of the limit.
+func perUnit(unit string) string {
+	if unit == "" {
+		return "1"
+	}
+	return "1" + unit
 }
 
 func slack(b []byte, lr LimitReport, unit string) []byte {
-	b = append(b, "not binding: "...)
-	b = strconv.AppendFloat(b, math.Abs(lr.Value-lr.Bound), 'g', 4, 64)
-	return append(append(b, unit...), " inside the bound"...)
+	b = append(b, "room left: "...)
+	b = strconv.AppendFloat(b, lr.Room(), 'g', 4, 64)
+	return append(b, unit...)
 }
 
 // limit explains a property, fatty-acid or SFC limit, e.g. "raising the IV
-// maximum by 1 saves 3.10 EUR/t".
-func (w words) limit(b []byte, lr LimitReport, label, unit string, isMax bool) []byte {
+// maximum saves 3.10 EUR/t per 1, up to 52.50; past that the blend changes".
+func (w phrasing) limit(b []byte, lr LimitReport, label, unit string, isMax bool) []byte {
 	if !lr.Binding {
 		return slack(b, lr, unit)
 	}
-	side := " minimum by 1"
+	side := " minimum"
 	if isMax {
-		side = " maximum by 1"
+		side = " maximum"
 	}
-	return w.move(b, func(b []byte) []byte {
-		return append(append(append(append(b, "the "...), label...), side...), unit...)
-	}, lr.ShadowPrice, isMax)
+	return w.move(b, lr, func(b []byte) []byte {
+		return append(append(append(b, "the "...), label...), side...)
+	}, perUnit(unit), isMax)
 }
 
 // useLimit explains a [use] bound of one stock.
-func (w words) useLimit(b []byte, lr LimitReport, id string, isMax bool) []byte {
+func (w phrasing) useLimit(b []byte, lr LimitReport, id string, isMax bool) []byte {
+	if lr.Excluded {
+		return append(append(b, id...), " is left out by the spec"...)
+	}
 	if !lr.Binding {
-		return slack(b, lr, " %")
+		return slack(b, lr, " % of the batch")
 	}
 	if isMax {
-		return w.move(b, func(b []byte) []byte {
-			return append(append(append(b, "the cap on "...), id...), " by 1 % of the batch"...)
-		}, lr.ShadowPrice, true)
+		return w.move(b, lr, func(b []byte) []byte {
+			return append(append(b, "the cap on "...), id...)
+		}, "1 % of the batch", true)
 	}
-	return w.move(b, func(b []byte) []byte {
-		return append(append(append(b, "the minimum of "...), id...), " by 1 % of the batch"...)
-	}, lr.ShadowPrice, false)
+	return w.move(b, lr, func(b []byte) []byte {
+		return append(append(b, "the minimum of "...), id...)
+	}, "1 % of the batch", false)
 }
 
 // avail explains an availability limit; its shadow price is per tonne of
 // stock on hand.
-func (w words) avail(b []byte, lr LimitReport, id string, batch float64) []byte {
+func (w phrasing) avail(b []byte, lr LimitReport, id string, batch float64) []byte {
 	if !lr.Binding {
-		b = append(b, "not binding: "...)
+		b = append(b, "room left: "...)
 		b = strconv.AppendFloat(b, math.Max(lr.Bound-lr.Value, 0), 'g', 4, 64)
-		return append(append(append(b, " t of "...), id...), " left over"...)
+		return append(append(append(b, " t of "...), id...), " not used"...)
 	}
 	if lr.ShadowPrice <= w.tiny {
 		return append(append(append(b, "all "...), id...), " on hand is used, but more of it would save nothing"...)
@@ -101,48 +133,53 @@ func (w words) avail(b []byte, lr LimitReport, id string, batch float64) []byte 
 	b = append(append(append(b, "each extra tonne of "...), id...), " on hand saves "...)
 	b = w.money(b, lr.ShadowPrice)
 	b = w.batch(append(b, " ("...), lr.ShadowPrice*batch)
-	return append(b, ')')
-}
-
-func (w words) minIfUsed(b []byte, lr LimitReport) []byte {
-	if !lr.Binding {
-		return slack(b, lr, " %")
+	b = append(b, ')')
+	if !math.IsNaN(lr.HoldsTo) && !math.IsInf(lr.HoldsTo, 0) {
+		b = strconv.AppendFloat(append(b, ", up to "...), lr.HoldsTo, 'f', 2, 64)
+		b = append(b, " t on hand; past that the blend changes"...)
 	}
-	return w.move(b, func(b []byte) []byte {
-		return append(b, "the minimum dose of a stock in use by 1 %"...)
-	}, lr.ShadowPrice, false)
+	return b
 }
 
-func (w words) maxStocks(b []byte, lr LimitReport) []byte {
+func (w phrasing) minIfUsed(b []byte, lr LimitReport) []byte {
 	if !lr.Binding {
-		b = append(b, "not binding: "...)
+		return slack(b, lr, " % of the batch")
+	}
+	return w.move(b, lr, func(b []byte) []byte {
+		return append(b, "the smallest share of a stock in use"...)
+	}, "1 % of the batch", false)
+}
+
+func (w phrasing) maxStocks(b []byte, lr LimitReport) []byte {
+	if !lr.Binding {
+		b = append(b, "room left: "...)
 		b = strconv.AppendInt(b, int64(lr.Value), 10)
-		b = append(b, " stocks in the blend, "...)
+		b = append(b, " stocks used of "...)
 		b = strconv.AppendInt(b, int64(lr.Bound), 10)
 		return append(b, " allowed"...)
 	}
 	if lr.ShadowPrice <= w.tiny {
-		return append(b, "binding, but allowing one more stock saves nothing"...)
+		return append(b, "holds the blend, but allowing one more stock saves nothing"...)
 	}
 	return w.money(append(b, "allowing one more stock saves "...), lr.ShadowPrice)
 }
 
-// texts gathers the names and explanations of a report's limits in one
+// limitTexts gathers the names and explanations of a report's limits in one
 // buffer; done turns the buffer into one string and hands each limit its
 // two substrings, so a report of forty limits costs one string allocation
 // instead of eighty.
-type texts struct {
+type limitTexts struct {
 	b  []byte
 	at []int // end of each name, then of its explanation, limit by limit
 }
 
-// name and explained close the current limit's name and explanation; the
+// endName and endExplanation close the current limit's name and explanation; the
 // caller appends each to t.b first.
-func (t *texts) name()      { t.at = append(t.at, len(t.b)) }
-func (t *texts) explained() { t.at = append(t.at, len(t.b)) }
+func (t *limitTexts) endName()        { t.at = append(t.at, len(t.b)) }
+func (t *limitTexts) endExplanation() { t.at = append(t.at, len(t.b)) }
 
 // done sets Name and Explain of limits[k] for every limit written.
-func (t *texts) done(limits []LimitReport) {
+func (t *limitTexts) done(limits []LimitReport) {
 	s := string(t.b)
 	prev := 0
 	for k := 0; 2*k+1 < len(t.at); k++ {

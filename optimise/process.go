@@ -41,64 +41,19 @@ const (
 // solveProcess is Solve for a spec with a [process] step: stocks listed
 // under interesterify may pass through the reactor together (chemical:
 // random interesterification; enzymatic: sn-1,3-specific) before the final
-// blend, at the process cost per tonne processed.
-//
-// Model. Besides the column x_j (% of batch of stock j blended directly,
-// cost price_j/100) each reactor-feed stock k gets a column z_k (% of batch
-// of stock k fed to the reactor, cost (price_k + cost)/100, so the objective
-// stays currency per tonne of product). Interesterification moves acids
-// between glycerol positions and does not change the fatty-acid composition
-// (the first principle of the reaction; randomise.Distribute conserves it),
-// so every [limits] row (fatty acids, IV, SV, SAFA, trans, Cox ...) is linear
-// in x and z with the stock's own coefficient in both. Availability and [use]
-// bounds apply to the total inclusion x_k + z_k. (The LP is solved in an
-// equivalent total form, see procModel.lp.)
-//
-// With sfc = "measured" the SFC rows are linear in the stocks' measured
-// curves, the reacted fat's curve being its feed's mass-weighted one, so the
-// model is one LP. Measured curves do not see the reaction: in this mode the
-// reactor only adds cost and is never used unless it costs nothing.
-//
-// With sfc = "predicted" the SFC of the final blend is the TAG model's for
-// the whole blend (wholeBlend): the native TAGs of the stocks blended as
-// they are and the interesterified TAGs of the reactor's product go through
-// one solid-liquid equilibrium (sle.BlendModel). Solid fat does not add up
-// over the parts of a mix, and no stock needs a measured curve. The SFC rows
-// are then nonlinear in (x, z) and the cheapest blend is found by
-// successive linear programming (SLP; Griffith & Stewart, Management
-// Science 7 (1961) 379; the trust-region form in Nocedal & Wright,
-// Numerical Optimization, 2nd ed. (2006), ch. 4 and 18): each LP has the SFC
-// rows linearised at the current blend (forward differences of the TAG
-// model along every column) and every column boxed to ±Δ around it. The
-// merit of a blend is cost + μ·(Σ violation of the SFC limits by its
-// predicted SFC, % solid), μ ten times the largest SFC shadow price seen (an
-// exact penalty); a step is accepted when the merit falls by at least a
-// tenth of what the LP promised (Δ doubles when by three quarters), else Δ
-// shrinks to half the step. A search stops when an accepted step moves the
-// blend by less than 1e-4 % of batch and the predicted SFC meets every limit
-// within 0.05 % solid, or at the shared cap of 90 LP solves. SLP finds a
-// local optimum, so it runs from up to three starts and keeps the cheapest
-// blend that meets the limits: the LP with measured curves (when every
-// stock that may enter has them), the cheapest blend ignoring the SFC
-// limits, and that blend with 30 % of the batch sent through the reactor in
-// equal parts of its feed stocks. Shadow prices and cost ranging are those
-// of the final LP: of the linearised model at the answer.
-//
-// An impossible spec is reported with the relaxation of a model without
-// the reactor: for "measured" the plain model (the two have the same
-// feasible blends), for "predicted" the blend model with its SFC rows
-// linearised at the last blend tried (an estimate; a Note says so). Integer
-// [rules] together with a [process] step are not supported.
+// blend, at the process cost per tonne processed. The model and the search
+// are procModel's.
 func solveProcess(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result, error) {
-	mode := "predicted"
-	if spec.Process != nil && spec.Process.SFC == "measured" {
-		mode = "measured"
-	}
-	builder := build
-	if mode == "predicted" {
-		builder = buildPredicted
-	}
-	base, lay, err := builder(cat, spec)
+	eng := reusableEngine()
+	defer eng.close()
+	return solveProcessIn(eng, nil, nil, cat, spec, opt)
+}
+
+// solveProcessIn is solveProcess on engine eng with stock profiles from pc
+// and working buffers from buf (nil: computed, allocated), as solveIn.
+func solveProcessIn(eng *engine, pc *profileCache, buf *scratch, cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result, error) {
+	predicted := spec.Process == nil || spec.Process.SFC != "measured"
+	base, lay, err := buildIn(cat, spec, pc, buf, predicted)
 	if err != nil {
 		return nil, err
 	}
@@ -106,10 +61,7 @@ func solveProcess(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (
 	if err != nil {
 		return nil, err
 	}
-	eng := reusableEngine()
-	defer eng.close()
 	res := &Result{Engine: eng.name(), Currency: cat.Currency, Spec: spec.Name, Batch: spec.Batch}
-	temps := reportTemps(spec, opt)
 	pr := spec.Process
 	rep := &ProcessReport{Method: pr.Method, SFCModel: pm.mode}
 	res.Process = rep
@@ -128,8 +80,8 @@ func solveProcess(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (
 			return pm.infeasible(eng, res, base, "")
 		}
 		rep.Converged = true
-		return pm.finish(res, m, sol, temps, nil, "[process] sfc = \"measured\": the reacted fat's SFC is taken as the mass-weighted sum of its feed stocks' measured curves, "+
-			"which do not see the reaction, so the reactor only adds cost; use sfc = \"predicted\" to let the TAG model judge what interesterification does.")
+		return pm.finish(res, m, sol, opt, nil, "[process] sfc = \"measured\": the interesterified fat is given the SFC of its feed as blended, because measured curves cannot show what the "+
+			"reaction does; so the reactor only adds cost here. Use sfc = \"predicted\" to let the TAG model judge what interesterification does to the melting.")
 	}
 
 	wb, err := newWholeBlend(pm, randomise.Method(pr.Method), opt.Model)
@@ -147,7 +99,7 @@ func solveProcess(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (
 		if sol.status != solOptimal {
 			return pm.infeasible(eng, res, base, "")
 		}
-		return pm.finish(res, m, sol, temps, wb, "[process] sfc = \"predicted\" with no SFC limit: the blend is one LP, and its SFC is the TAG model's for the whole blend.")
+		return pm.finish(res, m, sol, opt, wb, "[process] sfc = \"predicted\" with no SFC limit: the cheapest blend is found directly, and its SFC shown is the TAG model's for the whole blend.")
 	}
 	var best *slpRun
 	var last *procPoint
@@ -179,14 +131,14 @@ func solveProcess(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (
 	if best == nil {
 		why := ""
 		if linInfeasible {
-			why = "the linearised model (predicted SFC of the whole blend) has no feasible blend; "
+			why = "even the straight-line estimate of the predicted SFC admits no blend; "
 		}
-		res.Notes = append(res.Notes, fmt.Sprintf("the successive LP found no blend whose predicted SFC meets the limits within %.2g %% solid in %d LP solves", slpSFCTol, rep.Iterations))
+		res.Notes = append(res.Notes, fmt.Sprintf("no blend was found whose predicted SFC meets the limits (within %.2g %% solid) in %d trial blends", slpSFCTol, rep.Iterations))
 		return pm.infeasiblePredicted(eng, wb, res, base, last, why)
 	}
 	rep.Converged = best.converged
 	if !best.converged {
-		res.Notes = append(res.Notes, fmt.Sprintf("the successive LP stopped at its cap of %d LP solves before the blend settled; the blend meets the limits but may not be the cheapest", slpMaxIter))
+		res.Notes = append(res.Notes, fmt.Sprintf("the search stopped at its cap of %d trial blends before the blend settled: this blend meets the limits but a slightly cheaper one may exist", slpMaxIter))
 	}
 	curM, curSol := best.m, best.sol
 	// Duals of the linearisation at the answer without the trust-region
@@ -203,11 +155,11 @@ func solveProcess(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (
 		}
 	}
 	if boxed(curM, pm) {
-		res.Notes = append(res.Notes, "the last LP of the successive LP keeps the blend within a trust-region box; shadow prices do not price that box")
+		res.Notes = append(res.Notes, "the search ended with the blend held close to its last step, so the savings per unit shown for the limits are for small moves only")
 	}
-	return pm.finish(res, curM, curSol, temps, wb, "[process] sfc = \"predicted\": the SFC of the final blend is the TAG model's for the whole blend "+
-		"(the native TAGs of the stocks blended as they are and the interesterified TAGs of the reactor's product in one solid-liquid equilibrium; "+
-		"no stock needs a measured curve). Shadow prices and cost ranging are those of the linearised model at the answer (the last LP of the successive LP).")
+	return pm.finish(res, curM, curSol, opt, wb, "[process] sfc = \"predicted\": the SFC of the final blend is predicted by the TAG model for the whole blend "+
+		"(the stocks blended as they are and the interesterified fat together, so no stock needs a measured curve). The blend was found by "+
+		"trying blends step by step; the cheapest found that meets the limits is shown, and the savings per unit and price ranges hold near it.")
 }
 
 // slpRun is one successive-LP search from a start point.
@@ -407,8 +359,56 @@ func (pm *procModel) costOf(p *procPoint) float64 {
 	return c
 }
 
-// procModel is the process model's layout: the base model's rows and
-// stock columns, then one reactor column per feed stock.
+// procModel is the model of a spec with a [process] step (solveProcess):
+// the base model's rows and stock columns, then one reactor column per feed
+// stock.
+//
+// Model. Besides the column x_j (% of batch of stock j blended directly,
+// cost price_j/100) each reactor-feed stock k gets a column z_k (% of batch
+// of stock k fed to the reactor, cost (price_k + cost)/100, so the objective
+// stays currency per tonne of product). Interesterification moves acids
+// between glycerol positions and does not change the fatty-acid composition
+// (the first principle of the reaction; randomise.Distribute conserves it),
+// so every [limits] row (fatty acids, IV, SV, SAFA, trans, Cox ...) is linear
+// in x and z with the stock's own coefficient in both. Availability and [use]
+// bounds apply to the total inclusion x_k + z_k. (The LP is solved in an
+// equivalent total form, see procModel.lp.)
+//
+// With sfc = "measured" the SFC rows are linear in the stocks' measured
+// curves, the reacted fat's curve being its feed's mass-weighted one, so the
+// model is one LP. Measured curves do not see the reaction: in this mode the
+// reactor only adds cost and is never used unless it costs nothing.
+//
+// With sfc = "predicted" the SFC of the final blend is the TAG model's for
+// the whole blend (wholeBlend): the native TAGs of the stocks blended as
+// they are and the interesterified TAGs of the reactor's product go through
+// one solid-liquid equilibrium (sle.BlendModel). Solid fat does not add up
+// over the parts of a mix, and no stock needs a measured curve. The SFC rows
+// are then nonlinear in (x, z) and the cheapest blend is found by
+// successive linear programming (SLP; Griffith & Stewart, Management
+// Science 7 (1961) 379; the trust-region form in Nocedal & Wright,
+// Numerical Optimization, 2nd ed. (2006), ch. 4 and 18): each LP has the SFC
+// rows linearised at the current blend (forward differences of the TAG
+// model along every column) and every column boxed to ±Δ around it. The
+// merit of a blend is cost + μ·(Σ violation of the SFC limits by its
+// predicted SFC, % solid), μ ten times the largest SFC shadow price seen (an
+// exact penalty); a step is accepted when the merit falls by at least a
+// tenth of what the LP promised (Δ doubles when by three quarters), else Δ
+// shrinks to half the step. A search stops when an accepted step moves the
+// blend by less than 1e-4 % of batch and the predicted SFC meets every limit
+// within 0.05 % solid, or at the shared cap of 90 LP solves. SLP finds a
+// local optimum, so it runs from up to three starts and keeps the cheapest
+// blend that meets the limits: the LP with measured curves (when every
+// stock that may enter has them), the cheapest blend ignoring the SFC
+// limits, and that blend with 30 % of the batch sent through the reactor in
+// equal parts of its feed stocks. Shadow prices and cost ranging are those
+// of the final LP: of the linearised model at the answer.
+//
+// An impossible spec is reported with the relaxation of a model without
+// the reactor: for "measured" the plain model (the two have the same
+// feasible blends), for "predicted" the blend model with its SFC rows
+// linearised at the last blend tried (an estimate; a Note says so). Integer
+// [rules] together with a [process] step are not supported.
 type procModel struct {
 	base     *model
 	lay      *layout
@@ -727,7 +727,7 @@ func (pm *procModel) infeasible(eng *engine, res *Result, base *model, why strin
 		return nil, err
 	}
 	res.Relaxation = r
-	res.Notes = append(res.Notes, why+"the relaxation shown is that of the plain blend model (no reactor, SFC linear in measured curves)")
+	res.Notes = append(res.Notes, why+"the change shown is for the blend without the reactor, with SFC from the measured curves")
 	return res, nil
 }
 
@@ -761,159 +761,75 @@ func (pm *procModel) infeasiblePredicted(eng *engine, wb *wholeBlend, res *Resul
 		return nil, err
 	}
 	res.Relaxation = rel
-	res.Notes = append(res.Notes, why+"the relaxation shown is that of the blend without the reactor, with the TAG model's SFC linearised at the last blend tried: an estimate; solve again with it to check")
+	res.Notes = append(res.Notes, why+"the change shown is for the blend without the reactor, with the TAG model's SFC estimated near the last blend tried: an estimate; apply it and solve again to check")
 	return res, nil
 }
 
-// finish fills res from the optimal solution sol of the process LP m. wb is
-// nil for measured SFC. note, the model's caveats, goes first in res.Notes.
-func (pm *procModel) finish(res *Result, m *model, sol *solution, temps []float64, wb *wholeBlend, note string) (*Result, error) {
+// finish fills res from the optimal solution sol of the process LP m: the
+// plain report (layout.report) of the stocks' total inclusions, with the
+// processing cost, the reactor's lines and, for predicted SFC (wb not nil),
+// the whole blend's predicted SFC. note, the model's caveats, goes first in
+// res.Notes.
+func (pm *procModel) finish(res *Result, m *model, sol *solution, opt Options, wb *wholeBlend, note string) (*Result, error) {
 	lay, spec := pm.lay, pm.lay.spec
-	n, batch := lay.n(), spec.Batch
+	batch := spec.Batch
+	temps := reportTemps(spec, opt)
 	p := pm.point(sol.x)
 	rep := res.Process
 	res.Status = Optimal
-
-	total := make([]float64, n)
-	copy(total, p.x)
 	var Z float64
 	for k, j := range pm.feed {
-		total[j] += p.z[k]
-		Z += p.z[k]
 		if p.z[k] > usedTol {
 			s := lay.cols[j].stock
 			rep.Feed = append(rep.Feed, Line{Stock: s.ID, Name: s.Name, Pct: p.z[k], Tonnes: p.z[k] * batch / 100})
+			Z += p.z[k]
 		}
 	}
 	sort.SliceStable(rep.Feed, func(a, b int) bool { return rep.Feed[a].Pct > rep.Feed[b].Pct })
-	if len(rep.Feed) == 0 {
-		Z = 0
-	}
 	rep.Tonnes = Z * batch / 100
 	rep.Cost = rep.Tonnes * pm.cost
 
-	var cost float64
-	var parts []blend.Part
-	for j, v := range total {
-		s := lay.cols[j].stock
-		cost += s.Price * v / 100
-		if v > usedTol {
-			res.Blend = append(res.Blend, Line{Stock: s.ID, Name: s.Name, Pct: v, Tonnes: v * batch / 100})
-			parts = append(parts, blend.Part{Stock: s, Pct: v})
-		}
-	}
-	sort.SliceStable(res.Blend, func(a, b int) bool { return res.Blend[a].Pct > res.Blend[b].Pct })
-	cost += pm.cost * Z / 100
-	res.CostPerTonne = cost
-	res.BatchCost = cost * batch
-
 	// Fatty acids and everything linear in them: interesterification
 	// conserves the fatty-acid composition, so the product has the
-	// properties of the physical mix of all stocks used.
-	props, err := blend.Mix(parts, temps)
-	if err != nil {
-		return nil, fmt.Errorf("optimise %s: properties of the blend: %w", specWhere(spec), err)
-	}
-	var rowSFC []float64 // predicted SFC at each SFC row
+	// properties of the physical mix of all stocks used (the plain report).
+	adds := &reportAdds{cost: pm.cost * Z / 100}
 	if wb != nil {
-		rowSFC, err = wb.rows(p)
+		rowSFC, err := wb.rows(p)
 		if err != nil {
 			return nil, fmt.Errorf("optimise %s: %w", specWhere(spec), err)
+		}
+		sfcIdx := make(map[int]int, len(pm.sfcRows))
+		for r, i := range pm.sfcRows {
+			sfcIdx[i] = r
+		}
+		adds.value = func(i int) (float64, bool) {
+			r, ok := sfcIdx[i]
+			if !ok {
+				return 0, false
+			}
+			return rowSFC[r], true
 		}
 		whole, product, err := wb.report(p, temps)
 		if err != nil {
 			return nil, fmt.Errorf("optimise %s: %w", specWhere(spec), err)
 		}
-		props.SFC, props.SFCMissing = whole, nil
+		adds.sfc = whole
 		if Z > 0 {
 			rep.SFC = product
 		}
-		res.Notes = appendUnique(res.Notes, wb.notes(parts)...)
 	} else if Z > 0 {
 		rep.SFC, _ = blend.SFC(feedParts(lay, pm, p), temps)
 	}
-
-	res.Properties = props
-
-	w := words{cur: lay.cat.Currency, tiny: 1e-7 * math.Max(1, cost)}
-	sfcIdx := make(map[int]int, len(pm.sfcRows))
-	for r, i := range pm.sfcRows {
-		sfcIdx[i] = r
+	if err := lay.report(res, m, sol, nil, opt, adds); err != nil {
+		return nil, err
 	}
-	for i := 1; i < pm.base.nRows; i++ {
-		ri := &lay.rows[i]
-		v, y := sol.act[i], sol.y[i]
-		val := v
-		if r, ok := sfcIdx[i]; ok && rowSFC != nil {
-			val = rowSFC[r]
+	if wb != nil {
+		var used []blend.Part
+		for _, l := range res.Blend {
+			s, _ := lay.cat.Find(l.Stock)
+			used = append(used, blend.Part{Stock: s, Pct: l.Pct})
 		}
-		// binding in the LP: at its row bound (moved by a linearisation's
-		// constant in a predicted SFC row)
-		if ri.bound.HasMin() {
-			lr := LimitReport{Name: ri.key + ".min", Value: val, Bound: ri.bound.Min, Binding: near(v, m.rowLo[i])}
-			if y > 0 {
-				lr.ShadowPrice = -y
-			}
-			lr.Explain = string(w.limit(nil, lr, ri.label, ri.unit, false))
-			res.Limits = append(res.Limits, lr)
-		}
-		if ri.bound.HasMax() {
-			lr := LimitReport{Name: ri.key + ".max", Value: val, Bound: ri.bound.Max, Binding: near(v, m.rowUp[i])}
-			if y < 0 {
-				lr.ShadowPrice = -y
-			}
-			lr.Explain = string(w.limit(nil, lr, ri.label, ri.unit, true))
-			res.Limits = append(res.Limits, lr)
-		}
-	}
-	for j := 0; j < n; j++ {
-		c := &lay.cols[j]
-		id := c.stock.ID
-		x := total[j]
-		// [use] and availability are column bounds (of the total
-		// inclusion for a feed stock), as in the plain report.
-		d := sol.d[j]
-		atLo := sol.basis[j] == stLower || sol.basis[j] == stFixed && d > 0
-		atUp := sol.basis[j] == stUpper || sol.basis[j] == stFixed && d < 0
-		dLo, dUp := d, d
-		if c.use.HasMin() {
-			lr := LimitReport{Name: "use." + id + ".min", Value: x, Bound: c.use.Min, Binding: near(x, c.use.Min)}
-			if atLo && lr.Binding {
-				lr.ShadowPrice = -dLo
-			}
-			lr.Explain = string(w.useLimit(nil, lr, id, false))
-			res.Limits = append(res.Limits, lr)
-		}
-		useTight := c.use.HasMax() && c.use.Max <= c.availPct
-		if c.use.HasMax() {
-			lr := LimitReport{Name: "use." + id + ".max", Value: x, Bound: c.use.Max, Binding: near(x, c.use.Max)}
-			if atUp && useTight && lr.Binding {
-				lr.ShadowPrice = -dUp
-			}
-			lr.Explain = string(w.useLimit(nil, lr, id, true))
-			res.Limits = append(res.Limits, lr)
-		}
-		if c.stock.Limited() {
-			lr := LimitReport{Name: "avail." + id, Value: x * batch / 100, Bound: c.stock.Available, Binding: near(x, c.availPct)}
-			if atUp && !useTight && lr.Binding {
-				lr.ShadowPrice = -dUp * 100 / batch
-			}
-			lr.Explain = string(w.avail(nil, lr, id, batch))
-			res.Limits = append(res.Limits, lr)
-		}
-	}
-
-	// Cost ranging: in the total form each stock's price is the cost of
-	// one column, so the plain ratio test applies to every stock.
-	rg, ferr := rangingOf(m, sol)
-	if ferr != nil {
-		return nil, fmt.Errorf("optimise %s: ranging: %w", specWhere(spec), ferr)
-	}
-	for j := 0; j < n; j++ {
-		s := lay.cols[j].stock
-		lo, hi := rg.CostRange(j)
-		res.Ranging = append(res.Ranging, Range{Stock: s.ID, InBlend: sol.x[j] > usedTol, Price: s.Price,
-			PriceLow: s.Price + 100*lo, PriceHigh: s.Price + 100*hi})
+		res.Notes = appendUnique(res.Notes, wb.notes(used)...)
 	}
 	res.Notes = append([]string{note}, res.Notes...)
 	return res, nil

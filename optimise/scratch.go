@@ -119,10 +119,10 @@ func (s *scratch) newLayout() *layout {
 	return &s.lay
 }
 
-// texts is an empty texts with room for n limits.
-func (s *scratch) texts(n int) texts {
+// texts is an empty limitTexts with room for n limits.
+func (s *scratch) texts(n int) limitTexts {
 	if s == nil {
-		return texts{b: make([]byte, 0, 48*n), at: make([]int, 0, 2*n)}
+		return limitTexts{b: make([]byte, 0, 48*n), at: make([]int, 0, 2*n)}
 	}
 	if cap(s.text) < 48*n {
 		s.text = make([]byte, 0, 48*n)
@@ -130,11 +130,11 @@ func (s *scratch) texts(n int) texts {
 	if cap(s.at) < 2*n {
 		s.at = make([]int, 0, 2*n)
 	}
-	return texts{b: s.text[:0], at: s.at[:0]}
+	return limitTexts{b: s.text[:0], at: s.at[:0]}
 }
 
 // keepTexts hands a report's (possibly grown) text buffers back.
-func (s *scratch) keepTexts(t texts) {
+func (s *scratch) keepTexts(t limitTexts) {
 	if s != nil {
 		s.text, s.at = t.b[:0], t.at[:0]
 	}

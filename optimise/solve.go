@@ -33,9 +33,9 @@ func solveWith(eng *engine, cat *catalogue.Catalogue, spec *catalogue.Spec, opt 
 }
 
 // solveIn is solveWith taking stock profiles from pc (nil: computed) and
-// working buffers from sc (nil: allocated).
-func solveIn(eng *engine, pc *profileCache, sc *scratch, cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result, error) {
-	base, lay, err := buildIn(cat, spec, pc, sc, false)
+// working buffers from buf (nil: allocated).
+func solveIn(eng *engine, pc *profileCache, buf *scratch, cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result, error) {
+	base, lay, err := buildIn(cat, spec, pc, buf, false)
 	if err != nil {
 		return nil, err
 	}
@@ -83,7 +83,7 @@ func solveIn(eng *engine, pc *profileCache, sc *scratch, cat *catalogue.Catalogu
 		return nil, fmt.Errorf("optimise %s: the programme is unbounded, which a blend with shares adding to 100 %% cannot be", specWhere(spec))
 	}
 	res.Status = status
-	if err := lay.report(res, lpm, sol, choice, opt); err != nil {
+	if err := lay.report(res, lpm, sol, choice, opt, nil); err != nil {
 		return nil, err
 	}
 	if lay.rules.MaxStocks > 0 {
@@ -150,8 +150,27 @@ const (
 
 func near(v, b float64) bool { return math.Abs(v-b) <= 1e-6*(1+math.Abs(b)) }
 
-// report fills res from an optimal LP solution of m.
-func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt Options) error {
+// reportAdds is what the report of a model beyond the plain blend adds to
+// it: the [process] step's processing cost and its predicted SFC. The zero
+// value (or nil) is the plain report.
+type reportAdds struct {
+	cost float64 // currency per tonne of product on top of the stocks' prices
+	// value is what to show for base row i instead of the LP's activity
+	// (ok false: the activity), e.g. the predicted SFC of the whole blend
+	value func(i int) (float64, bool)
+	sfc   map[float64]float64 // the blend's SFC instead of the measured-linear one
+}
+
+// report fills res from an optimal LP solution of m, whose first columns
+// are the stock columns (each stock's total inclusion, % of batch) and whose
+// first rows are the layout's rows; a model may carry more of both after
+// them (the reactor's columns and rows, a trust region's box: a limit's
+// shadow price is claimed only when the LP holds it at the limit's own
+// bound). adds is nil for the plain blend.
+func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt Options, adds *reportAdds) error {
+	if adds == nil {
+		adds = &reportAdds{}
+	}
 	n := l.n()
 	batch := l.spec.Batch
 	nl := 2 + 2*len(l.rows)
@@ -168,7 +187,7 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 	}
 	res.Limits = make([]LimitReport, 0, nl)
 	res.Ranging = make([]Range, 0, n)
-	parts, idx := l.sc.blendParts(m.nRows)
+	parts, idx := l.buf.blendParts(m.nRows)
 	var cost float64
 	res.Blend = l.lines(sol.x)
 	for j := 0; j < n; j++ {
@@ -180,40 +199,68 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 			idx = append(idx, j)
 		}
 	}
+	cost += adds.cost
 	res.CostPerTonne = cost
 	res.BatchCost = cost * batch
 	props, err := l.mix(parts, idx, reportTemps(l.spec, opt))
 	if err != nil {
 		return fmt.Errorf("optimise %s: properties of the blend: %w", specWhere(l.spec), err)
 	}
+	if adds.sfc != nil {
+		props.SFC, props.SFCMissing = adds.sfc, nil
+	}
 	res.Properties = props
 
-	w := words{cur: l.cat.Currency, tiny: 1e-7 * math.Max(1, cost)}
-	tx := l.sc.texts(nl)
+	// Ranging: of costs (the stock's price) and of bounds (how far a
+	// holding limit's shadow price holds), on the final basis.
+	rg, ferr := rangingOf(m, sol)
+	if ferr != nil {
+		return fmt.Errorf("optimise %s: ranging: %w", specWhere(l.spec), ferr)
+	}
+	nan := math.NaN()
+	holds := func(lr *LimitReport, lo, hi, shift, scale float64) {
+		if lr.Binding && !math.IsNaN(lo) {
+			lr.HoldsFrom, lr.HoldsTo = (lo-shift)*scale, (hi-shift)*scale
+		}
+	}
+	w := phrasing{cur: l.cat.Currency, tiny: 1e-7 * math.Max(1, cost)}
+	tx := l.buf.texts(nl)
 	add := func(lr LimitReport) { res.Limits = append(res.Limits, lr) }
-	for i := 1; i < m.nRows; i++ { // row 0 is the sum
+	for i := 1; i < len(l.rows); i++ { // row 0 is the sum
 		ri := &l.rows[i]
 		v, y := sol.act[i], sol.y[i]
+		shown := v
+		if adds.value != nil {
+			if x, ok := adds.value(i); ok {
+				shown = x
+			}
+		}
+		// binding: the LP holds the row at its bound (a linearised row's
+		// bound is moved by the linearisation's constant)
 		if ri.bound.HasMin() {
-			lr := LimitReport{Value: v, Bound: ri.bound.Min, Binding: near(v, ri.bound.Min)}
+			lr := LimitReport{Label: ri.label + ", at least", Unit: ri.unit, Value: shown, Bound: ri.bound.Min, Binding: near(v, m.rowLo[i]), HoldsFrom: nan, HoldsTo: nan}
 			if y > 0 {
 				lr.ShadowPrice = -y
 			}
+			lo, hi := rg.RowBoundRange(i, false)
+			holds(&lr, lo, hi, m.rowLo[i]-ri.bound.Min, 1)
 			tx.b = append(append(tx.b, ri.key...), ".min"...)
-			tx.name()
+			tx.endName()
 			tx.b = w.limit(tx.b, lr, ri.label, ri.unit, false)
-			tx.explained()
+			tx.endExplanation()
 			add(lr)
 		}
 		if ri.bound.HasMax() {
-			lr := LimitReport{Value: v, Bound: ri.bound.Max, Binding: near(v, ri.bound.Max)}
+			lr := LimitReport{Label: ri.label + ", at most", Unit: ri.unit, Value: shown, Bound: ri.bound.Max, Binding: near(v, m.rowUp[i]), HoldsFrom: nan, HoldsTo: nan}
 			if y < 0 {
 				lr.ShadowPrice = -y
 			}
+			lo, hi := rg.RowBoundRange(i, true)
+			holds(&lr, lo, hi, m.rowUp[i]-ri.bound.Max, 1)
 			tx.b = append(append(tx.b, ri.key...), ".max"...)
-			tx.name()
+			tx.endName()
 			tx.b = w.limit(tx.b, lr, ri.label, ri.unit, true)
-			tx.explained()
+			tx.endExplanation()
 			add(lr)
 		}
 	}
@@ -235,37 +282,43 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 			}
 		}
 		if c.use.HasMin() {
-			lr := LimitReport{Value: x, Bound: c.use.Min, Binding: near(x, c.use.Min)}
+			lr := LimitReport{Label: id + ", share at least", Unit: " %", Value: x, Bound: c.use.Min, Binding: near(x, c.use.Min), HoldsFrom: nan, HoldsTo: nan}
 			if atLo && !ruleLo && m.colLo[j] == c.use.Min {
 				lr.ShadowPrice = -d
+				lo, hi := rg.ColBoundRange(j, false)
+				holds(&lr, lo, hi, 0, 1)
 			}
 			tx.b = append(append(append(tx.b, "use."...), id...), ".min"...)
-			tx.name()
+			tx.endName()
 			tx.b = w.useLimit(tx.b, lr, id, false)
-			tx.explained()
+			tx.endExplanation()
 			add(lr)
 		}
 		useTight := c.use.HasMax() && c.use.Max <= c.availPct
 		if c.use.HasMax() {
-			lr := LimitReport{Value: x, Bound: c.use.Max, Binding: near(x, c.use.Max)}
+			lr := LimitReport{Label: id + ", share at most", Unit: " %", Value: x, Bound: c.use.Max, Binding: near(x, c.use.Max), HoldsFrom: nan, HoldsTo: nan, Excluded: c.use.Max <= 0}
 			if atUp && useTight && m.colUp[j] == c.use.Max {
 				lr.ShadowPrice = -d
+				lo, hi := rg.ColBoundRange(j, true)
+				holds(&lr, lo, hi, 0, 1)
 			}
 			tx.b = append(append(append(tx.b, "use."...), id...), ".max"...)
-			tx.name()
+			tx.endName()
 			tx.b = w.useLimit(tx.b, lr, id, true)
-			tx.explained()
+			tx.endExplanation()
 			add(lr)
 		}
 		if c.stock.Limited() {
-			lr := LimitReport{Value: x * batch / 100, Bound: c.stock.Available, Binding: near(x, c.availPct)}
+			lr := LimitReport{Label: id + " on hand", Unit: " t", Value: x * batch / 100, Bound: c.stock.Available, Binding: near(x, c.availPct), HoldsFrom: nan, HoldsTo: nan}
 			if atUp && !useTight && m.colUp[j] == c.availPct {
 				lr.ShadowPrice = -d * 100 / batch
+				lo, hi := rg.ColBoundRange(j, true)
+				holds(&lr, lo, hi, 0, batch/100)
 			}
 			tx.b = append(append(tx.b, "avail."...), id...)
-			tx.name()
+			tx.endName()
 			tx.b = w.avail(tx.b, lr, id, batch)
-			tx.explained()
+			tx.endExplanation()
 			add(lr)
 		}
 	}
@@ -273,19 +326,20 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 		if math.IsInf(minUsed, 1) {
 			minUsed = 0
 		}
-		lr := LimitReport{Value: minUsed, Bound: l.rules.MinIfUsed, Binding: near(minUsed, l.rules.MinIfUsed), ShadowPrice: -minDose}
+		lr := LimitReport{Label: "smallest share of a stock in use", Unit: " %", Value: minUsed, Bound: l.rules.MinIfUsed, Binding: near(minUsed, l.rules.MinIfUsed), ShadowPrice: -minDose, HoldsFrom: nan, HoldsTo: nan}
 		tx.b = append(tx.b, "min_if_used"...)
-		tx.name()
+		tx.endName()
 		tx.b = w.minIfUsed(tx.b, lr)
-		tx.explained()
+		tx.endExplanation()
 		add(lr)
 	}
 	tx.done(res.Limits)
-	l.sc.keepTexts(tx)
+	l.buf.keepTexts(tx)
 
 	// Cost ranging: objective coefficients are price/100, so a change δ
-	// of the coefficient is a price change of 100·δ.
-	rg, ferr := rangingOf(m, sol)
+	// of the coefficient is a price change of 100·δ. (In a [process] model
+	// each stock's price sits in its total-inclusion column, so the same
+	// ratio test covers the reactor-feed stocks.)
 	for j := 0; j < n; j++ {
 		s := l.cols[j].stock
 		r := Range{Stock: s.ID, InBlend: sol.x[j] > usedTol, Price: s.Price, PriceLow: math.Inf(-1), PriceHigh: math.Inf(1)}
@@ -296,11 +350,9 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 			if d := sol.d[j]; d > 0 {
 				r.PriceLow = s.Price - 100*d
 			}
-		case ferr == nil:
+		default:
 			lo, hi := rg.CostRange(j)
 			r.PriceLow, r.PriceHigh = s.Price+100*lo, s.Price+100*hi
-		default:
-			return fmt.Errorf("optimise %s: ranging: %w", specWhere(l.spec), ferr)
 		}
 		res.Ranging = append(res.Ranging, r)
 	}
@@ -326,7 +378,7 @@ func (l *layout) lines(x []float64) []Line {
 func (l *layout) priceMaxStocks(eng *engine, base *model, res *Result) error {
 	r := l.rules
 	used := len(res.Blend)
-	lr := LimitReport{Name: "max_stocks", Value: float64(used), Bound: float64(r.MaxStocks), Binding: used >= r.MaxStocks}
+	lr := LimitReport{Name: "max_stocks", Label: "stocks in the blend, at most", Value: float64(used), Bound: float64(r.MaxStocks), Binding: used >= r.MaxStocks, HoldsFrom: math.NaN(), HoldsTo: math.NaN()}
 	if lr.Binding && r.MaxStocks < l.n() && res.Status == Optimal {
 		more := r
 		more.MaxStocks++
@@ -345,7 +397,7 @@ func (l *layout) priceMaxStocks(eng *engine, base *model, res *Result) error {
 			lr.ShadowPrice = math.Max(res.CostPerTonne-c, 0)
 		}
 	}
-	w := words{cur: l.cat.Currency, tiny: 1e-7 * math.Max(1, res.CostPerTonne)}
+	w := phrasing{cur: l.cat.Currency, tiny: 1e-7 * math.Max(1, res.CostPerTonne)}
 	lr.Explain = string(w.maxStocks(nil, lr))
 	res.Limits = append(res.Limits, lr)
 	return nil

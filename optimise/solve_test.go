@@ -57,7 +57,8 @@ func rangeOf(t *testing.T, r *Result, id string) Range {
 // 20 t. With x the share of soft, cost = 10(100-x) + 15x = 1000 + 5x EUR/t,
 // rising in x, so x sits at its minimum 30: 70 % hard (14 t), 30 % soft (6 t),
 // 1150 EUR/t, 23 000 EUR per batch. Raising the minimum by 1 raises the cost
-// by 5 EUR/t: shadow price -5. The blend stays optimal while hard is the
+// by 5 EUR/t: shadow price -5, for every minimum b from 0 to 100 (x = b
+// stays a blend of the two). The blend stays optimal while hard is the
 // cheaper stock: hard's price may rise to 1500 (and fall without limit),
 // soft's may fall to 1000. The IV of the blend is 30 x 0.8601 = 25.80 with
 // the AOCS Cd 1c-85 factor for C18:1 (0.8601, triolein).
@@ -80,7 +81,9 @@ func TestTwoStocksOnPaper(t *testing.T) {
 			assert.True(t, l.Binding)
 			assert.InDelta(t, 30, l.Value, 1e-9)
 			assert.InDelta(t, -5, l.ShadowPrice, 1e-9)
-			assert.Equal(t, "lowering the C18:1 minimum by 1 % saves 5.00 EUR/t", l.Explain)
+			assert.InDelta(t, 0, l.HoldsFrom, 1e-9)
+			assert.InDelta(t, 100, l.HoldsTo, 1e-9)
+			assert.Equal(t, "lowering the C18:1 minimum saves 5.00 EUR/t per 1 %, down to 0.00", l.Explain)
 			h := rangeOf(t, r, "hard")
 			assert.True(t, h.InBlend)
 			assert.True(t, math.IsInf(h.PriceLow, -1))
@@ -97,7 +100,8 @@ func TestTwoStocksOnPaper(t *testing.T) {
 // of hard on hand for a 20 t batch, so hard <= 50 %. Solved by hand: hard
 // 50 %, soft 50 %, cost 10·50 + 15·50 = 1250 EUR/t. With A tonnes of hard,
 // hard = 5A % and cost = 1500 - 25A EUR/t: each extra tonne saves 25 EUR/t
-// (500 EUR per batch). C18:1 (50 %) is not binding. Hard sits at its upper
+// (500 EUR per batch), for A from 0 up to 14 t, where hard reaches the 70 %
+// that C18:1 >= 30 allows. C18:1 (50 %) is not binding. Hard sits at its upper
 // bound with reduced cost 10 - 15 = -5 per %, so its price may rise to 1500.
 func TestAvailabilityOnPaper(t *testing.T) {
 	cat := twoStocks()
@@ -113,7 +117,9 @@ func TestAvailabilityOnPaper(t *testing.T) {
 			assert.InDelta(t, 10, a.Value, 1e-9)
 			assert.InDelta(t, 10, a.Bound, 0)
 			assert.InDelta(t, 25, a.ShadowPrice, 1e-9)
-			assert.Equal(t, "each extra tonne of hard on hand saves 25.00 EUR/t (500.00 EUR per batch)", a.Explain)
+			assert.InDelta(t, 0, a.HoldsFrom, 1e-9)
+			assert.InDelta(t, 14, a.HoldsTo, 1e-9)
+			assert.Equal(t, "each extra tonne of hard on hand saves 25.00 EUR/t (500.00 EUR per batch), up to 14.00 t on hand; past that the blend changes", a.Explain)
 			l := limitByName(t, r, "C18:1.min")
 			assert.False(t, l.Binding)
 			assert.Zero(t, l.ShadowPrice)

@@ -25,7 +25,7 @@ import (
 type Solver struct {
 	eng  *engine
 	prof profileCache
-	sc   scratch
+	buf  scratch
 }
 
 // NewSolver makes a Solver. Call Close when done with it.
@@ -39,9 +39,9 @@ func (s *Solver) Solve(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Optio
 		return nil, errSolverClosed
 	}
 	if spec != nil && spec.Process != nil {
-		return solveProcess(cat, spec, opt) // as Solve: its own successive LP
+		return solveProcessIn(s.eng, &s.prof, &s.buf, cat, spec, opt)
 	}
-	return solveIn(s.eng, &s.prof, &s.sc, cat, spec, opt)
+	return solveIn(s.eng, &s.prof, &s.buf, cat, spec, opt)
 }
 
 // Plan is Plan with the Solver's working memory.
@@ -57,6 +57,6 @@ func (s *Solver) Plan(cat *catalogue.Catalogue, orders *catalogue.Orders) (*Plan
 func (s *Solver) Close() {
 	if s != nil && s.eng != nil {
 		s.eng.close()
-		s.eng, s.prof, s.sc = nil, profileCache{}, scratch{}
+		s.eng, s.prof, s.buf = nil, profileCache{}, scratch{}
 	}
 }

@@ -151,3 +151,21 @@ func assertClose(t *testing.T, want, got any, rel float64, where string) {
 	}
 	walk("", reflect.ValueOf(want), reflect.ValueOf(got))
 }
+
+// A Solver solves [process] specs on its own engine and profiles too, and
+// its answers equal a fresh Solve's, solve after solve.
+func TestSolverProcessSpecEqualsSolve(t *testing.T) {
+	cat := catalogue.DemoStocks()
+	spec := margarineSpec(t, cat)
+	want, err := Solve(cat, spec, Options{})
+	require.NoError(t, err)
+	s := NewSolver()
+	defer s.Close()
+	for range 3 {
+		got, err := s.Solve(cat, spec, Options{})
+		require.NoError(t, err)
+		require.Equal(t, want.Status, got.Status)
+		assert.InDelta(t, want.CostPerTonne, got.CostPerTonne, 1e-6*want.CostPerTonne)
+		require.Len(t, got.Blend, len(want.Blend))
+	}
+}

@@ -371,6 +371,11 @@ func (m *Model) tagPanel(w, h int) []string {
 		}
 	}
 	out = append(out, "", " "+st.head.Render("Main TAGs")+st.muted.Render(" (mirror images merged, sn-2 kept; mol %)"))
+	tagHead := " " + fit("TAG  mol %", 14)
+	for _, c := range cols {
+		tagHead += rfit(titles[string(c.Method)], colW)
+	}
+	out = append(out, st.muted.Render(tagHead))
 	for i := 0; i < topSpecies && len(out) < h-2; i++ {
 		line := " " + fit("", 14)
 		for _, c := range cols {

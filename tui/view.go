@@ -248,7 +248,7 @@ func (m *Model) blendPanel(w, h int) []string {
 	out := []string{" " + st.head.Render(fmt.Sprintf("%s  %.2f %s/t", title, r.CostPerTonne, cur)) +
 		st.muted.Render(fmt.Sprintf("   batch %s t costs %.0f %s", num(r.Batch), r.BatchCost, cur))}
 	nameW := max(8, w-48)
-	out = append(out, st.muted.Render(" "+fit("stock", 13)+fit("name", nameW)+rfit("%", 8)+rfit("t", 9)+rfit(cur+"/t", 12)))
+	out = append(out, st.muted.Render(" "+fit("stock", 13)+fit("name", nameW)+rfit("%", 8)+rfit("t", 9)+rfit("cost share", 12)))
 	lines := append([]optimise.Line(nil), r.Blend...)
 	sort.SliceStable(lines, func(i, j int) bool { return lines[i].Pct > lines[j].Pct })
 	for _, l := range lines {
@@ -291,19 +291,26 @@ func (m *Model) blendPanel(w, h int) []string {
 		}
 		out = append(out, wrapped(w, st.head.Render("SFC %")+"       ", keepTogether(items...))...)
 	}
-	var binding []optimise.LimitReport
+	var holding []optimise.LimitReport
+	var left []string
 	for _, l := range r.Limits {
-		if l.Binding {
-			binding = append(binding, l)
+		switch {
+		case l.Excluded:
+			left = append(left, strings.TrimSuffix(strings.TrimPrefix(l.Name, "use."), ".max"))
+		case l.Binding:
+			holding = append(holding, l)
 		}
 	}
-	sort.SliceStable(binding, func(i, j int) bool { return math.Abs(binding[i].ShadowPrice) > math.Abs(binding[j].ShadowPrice) })
-	out = append(out, "", " "+st.head.Render("What binds")+st.muted.Render("  (what moving each bound by one unit is worth)"))
-	if len(binding) == 0 {
-		out = append(out, st.muted.Render("   nothing binds: every stock is at its cheapest"))
+	sort.SliceStable(holding, func(i, j int) bool { return math.Abs(holding[i].ShadowPrice) > math.Abs(holding[j].ShadowPrice) })
+	out = append(out, "", " "+st.head.Render("What holds the blend")+st.muted.Render("  (dearest first: what moving each bound saves, and how far)"))
+	if len(holding) == 0 {
+		out = append(out, st.muted.Render("   nothing: the blend is simply the cheapest mix of the stocks allowed"))
 	}
-	for _, l := range binding {
-		out = append(out, wrapped(w, "   "+st.bad.Render(fit(l.Name, 18))+" ", l.Explain)...)
+	for _, l := range holding {
+		out = append(out, wrapped(w, "   "+st.bad.Render(fit(l.Label, 24))+" ", l.Explain)...)
+	}
+	if len(left) > 0 {
+		out = append(out, wrapped(w, "   "+st.muted.Render("left out by the spec: "), strings.Join(left, ", "))...)
 	}
 	return out
 }
@@ -393,7 +400,7 @@ func (m *Model) stocksPanel(w, h int) []string {
 	cat := m.sc.Catalogue
 	nameW := max(6, w-65)
 	out := []string{st.muted.Render("   " + fit("use", 4) + fit("stock", 13) + fit("name", nameW) +
-		rfit("price", 9) + rfit("on hand t", 10) + rfit("blend %", 8) + "  " + fit("optimal from–to", 15))}
+		rfit("price", 9) + rfit("on hand t", 10) + rfit("blend %", 8) + "  " + fit("range / comes in", 16))}
 	n := max(1, h-3)
 	off := m.window(panelStocks, len(cat.Stocks), n)
 	for i := off; i < min(len(cat.Stocks), off+n); i++ {
@@ -451,28 +458,29 @@ func (m *Model) stocksPanel(w, h int) []string {
 	return out
 }
 
-// rangeText is the price range over which the blend stays optimal: for a
-// stock in the blend its low and high, for one outside the price it would
-// have to fall below to come in.
+// rangeText is the price range over which the blend keeps its make-up:
+// for a stock in the blend its low and high ("no limit" where unbounded,
+// as the CLI writes it), for one outside the price at which it would come
+// in.
 func rangeText(r optimise.Range) string {
 	lo, hi := r.PriceLow, r.PriceHigh
 	f0 := func(v float64) string {
-		if math.IsInf(v, 1) {
-			return "∞"
+		if math.IsInf(v, 0) {
+			return "no limit"
 		}
 		return fmt.Sprintf("%.0f", v)
 	}
 	if r.InBlend {
-		l := "0"
+		l := "no limit"
 		if !math.IsInf(lo, -1) && lo > 0 {
 			l = f0(lo)
 		}
-		return l + "–" + f0(hi)
+		return l + " – " + f0(hi)
 	}
 	if math.IsInf(lo, -1) || lo <= 0 {
-		return "stays out"
+		return "not at any price"
 	}
-	return "in below " + f0(lo)
+	return "comes in at " + f0(lo)
 }
 
 func (m *Model) stockDetail(w int, s *catalogue.Stock) []string {

@@ -14,15 +14,14 @@ func (a *app) calibrate(args []string) error {
 			"curves of the catalogue's stocks (least squares, Nelder-Mead), report the error before and after and\n"+
 			"a leave-one-stock-out check (each stock predicted with shifts fitted on the others), and with --write\n"+
 			"save the calibration for --calibration FILE in mix, check, solve, explore and serve.")
-	stocksPath := fs.String("stocks", "", "stock catalogue TOML (default: embedded demo stocks)")
+	in := a.inputFlags(fs, noSpec, "", "text", "json")
 	solids := fs.String("solids", "pure", "solid-phase model: pure (pure-TAG solids) or isomorph (ideal solid solutions of one pattern and carbon number)")
 	poly := fs.String("polymorph", "beta", "pure-TAG melting properties: beta, beta' or alpha")
 	write := fs.String("write", "", "write the calibration to this TOML file")
-	format := fs.String("format", "text", "text or json")
 	if err := a.parse(fs, args); err != nil {
 		return err
 	}
-	if err := checkFormat(*format, "text", "json"); err != nil {
+	if err := in.check(); err != nil {
 		return err
 	}
 	rep, err := a.reportTo(output{"--write", *write})
@@ -37,7 +36,7 @@ func (a *app) calibrate(args []string) error {
 	if err != nil {
 		return catalogue.Badf("--polymorph: %w", err)
 	}
-	cat, err := a.stocks(*stocksPath)
+	cat, _, err := in.load(a)
 	if err != nil {
 		return err
 	}
@@ -63,15 +62,11 @@ func (a *app) calibrate(args []string) error {
 	}
 	file := cal.FileOf(catName)
 	if *write != "" {
-		in := []string{}
-		if *stocksPath != "" {
-			in = append(in, *stocksPath)
-		}
-		if err := a.write(output{"--write", *write}, catalogue.FormatCalibration(file), in...); err != nil {
+		if err := a.write(output{"--write", *write}, catalogue.FormatCalibration(file), in.files()...); err != nil {
 			return err
 		}
 	}
-	if *format == "json" {
+	if in.json() {
 		shift := map[string]float64{}
 		for k, v := range file.Shift {
 			shift[k] = round(v, 3)

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"flag"
 	"fmt"
 	"math"
 	"sort"
@@ -136,4 +137,82 @@ func dedupe(ts []float64) []float64 {
 		}
 	}
 	return out
+}
+
+// inputs are the flags every command that reads the catalogue shares:
+// --stocks, --format and, where the command takes one, --spec.
+type inputs struct {
+	stocks, spec, format *string
+	formats              []string
+	specMode             specMode
+}
+
+// specMode says whether a command takes --spec and what no --spec means.
+type specMode int
+
+const (
+	noSpec       specMode = iota // the command takes no spec
+	demoSpec                     // no --spec: the first embedded demo spec
+	optionalSpec                 // no --spec: none
+)
+
+// inputFlags declares --stocks, --format (the first of formats is the
+// default) and, unless sm is noSpec, --spec with help specHelp.
+func (a *app) inputFlags(fs *flag.FlagSet, sm specMode, specHelp string, formats ...string) *inputs {
+	in := &inputs{formats: formats, specMode: sm}
+	in.stocks = fs.String("stocks", "", "stock catalogue TOML (default: embedded demo stocks)")
+	if sm != noSpec {
+		in.spec = fs.String("spec", "", specHelp)
+	}
+	in.format = fs.String("format", formats[0], strings.Join(formats, ", ")+" (default "+formats[0]+")")
+	return in
+}
+
+// check refuses a --format the command does not write.
+func (in *inputs) check() error { return checkFormat(*in.format, in.formats...) }
+
+// json reports whether --format json was asked for.
+func (in *inputs) json() bool { return *in.format == "json" }
+
+// load checks --format, then loads the catalogue and the spec (nil when the
+// command takes none or an optional one is not given).
+func (in *inputs) load(a *app) (*catalogue.Catalogue, *catalogue.Spec, error) {
+	if err := in.check(); err != nil {
+		return nil, nil, err
+	}
+	cat, err := a.stocks(*in.stocks)
+	if err != nil {
+		return nil, nil, err
+	}
+	if in.specMode == noSpec || (in.specMode == optionalSpec && *in.spec == "") {
+		return cat, nil, nil
+	}
+	spec, err := a.spec(*in.spec, cat)
+	if err != nil {
+		return nil, nil, err
+	}
+	return cat, spec, nil
+}
+
+// files are the input files named on the command line, which no output of
+// the same run may overwrite.
+func (in *inputs) files() []string {
+	out := []string{*in.stocks}
+	if in.spec != nil {
+		out = append(out, *in.spec)
+	}
+	return out
+}
+
+// shareNote says when the --use shares do not add up to 100 %: they are
+// scaled to 100 (each stock keeps its proportion), and the report says so.
+func shareNote(parts []blend.Part) string {
+	var sum float64
+	for _, p := range parts {
+		sum += p.Pct
+	}
+	if math.Abs(sum-100) <= 1e-9 {
+		return ""
+	}
+	return fmt.Sprintf("the --use shares add up to %s %%; they are scaled to 100 %% (each stock keeps its proportion)", strconv.FormatFloat(sum, 'f', -1, 64))
 }

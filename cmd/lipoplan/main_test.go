@@ -152,7 +152,7 @@ func TestDemoReport(t *testing.T) {
 	require.Equal(t, 0, code, errs)
 	assert.Contains(t, out, "Demo stocks")
 	assert.Equal(t, len(catalogue.DemoSpecs()), strings.Count(out, "=== Demo spec"))
-	assert.Contains(t, out, "What the binding limits cost")
+	assert.Contains(t, out, "What holds the blend")
 	assert.Contains(t, out, "Caution")
 }
 

@@ -18,10 +18,9 @@ func (a *app) mix(args []string) error {
 		"Properties of a physical mix (% by mass): fatty-acid profile, calculated IV (AOCS Cd 1c-85),\n"+
 			"SV, SAFA/MUFA/PUFA, trans, omega-3, Cox value and SFC weighted from the stocks' measured curves.\n"+
 			"--predict adds the SFC predicted from the TAGs (solid-liquid equilibrium) after --process.")
-	stocksPath := fs.String("stocks", "", "stock catalogue TOML (default: embedded demo stocks)")
 	use := fs.String("use", "", `shares by stock id, % by mass, e.g. "pko-r=40,ps-h=60"`)
 	temps := fs.String("temps", "", `SFC temperatures in deg C (default 10,15,...,45)`)
-	format := fs.String("format", "text", "text or json")
+	in := a.inputFlags(fs, noSpec, "", "text", "json")
 	process := fs.String("process", "native", "for --predict: native, chemical or enzymatic interesterification of the whole mix")
 	predict := fs.Bool("predict", false, "add the SFC predicted from the TAG composition")
 	calPath := fs.String("calibration", "", calibrationFlagHelp)
@@ -32,7 +31,7 @@ func (a *app) mix(args []string) error {
 	if err != nil {
 		return err
 	}
-	if err := checkFormat(*format, "text", "json"); err != nil {
+	if err := in.check(); err != nil {
 		return err
 	}
 	method, perr := randomise.ParseMethod(*process)
@@ -42,7 +41,7 @@ func (a *app) mix(args []string) error {
 	if method != randomise.Native && !*predict {
 		return catalogue.Badf("--process %s changes only the predicted SFC; add --predict", method)
 	}
-	cat, err := a.stocks(*stocksPath)
+	cat, _, err := in.load(a)
 	if err != nil {
 		return err
 	}
@@ -67,15 +66,23 @@ func (a *app) mix(args []string) error {
 			return err
 		}
 	}
-	if *format == "json" {
+	note := shareNote(parts)
+	if in.json() {
 		out := propertiesJSON(p)
 		out["caution"] = cautionJSON
+		if note != "" {
+			out["notes"] = []string{note}
+		}
 		if pred != nil {
 			pred.addJSON(out)
 		}
 		return writeJSON(a.stdout, out)
 	}
-	fmt.Fprintf(a.stdout, "Mix of %s\n\n", describeParts(parts))
+	fmt.Fprintf(a.stdout, "Mix of %s\n", describeParts(parts))
+	if note != "" {
+		fmt.Fprintf(a.stdout, "Note: %s\n", note)
+	}
+	fmt.Fprintln(a.stdout)
 	writeProperties(a.stdout, p, ts)
 	if pred != nil {
 		pred.writeText(a.stdout, ts)

@@ -22,8 +22,7 @@ func (a *app) replace(args []string) error {
 			"whole blend. Reports the saving per tonne, the curves side by side, the largest deviation, the IV,\n"+
 			"SAFA and trans change and the TAG classes before and after; when no blend matches, the smallest\n"+
 			"tolerance that can be met and the blend at it (exit 3).")
-	stocksPath := fs.String("stocks", "", "stock catalogue TOML (default: embedded demo stocks)")
-	specPath := fs.String("spec", "", "optional spec TOML whose other limits and [use] bounds the new blend must meet too (its SFC limits are replaced by the match)")
+	in := a.inputFlags(fs, optionalSpec, "optional spec TOML whose other limits and [use] bounds the new blend must meet too (its SFC limits are replaced by the match)", "text", "json")
 	incumbent := fs.String("incumbent", "", "id of the stock to replace (it needs a measured SFC curve)")
 	tol := fs.String("tolerance", "3", `% solid either side of the incumbent's curve: one number, or per temperature "10=2,35=4" (others 3)`)
 	temps := fs.String("temps", "", `temperatures to match, deg C (default: every point of the incumbent's curve)`)
@@ -32,13 +31,12 @@ func (a *app) replace(args []string) error {
 	cost := fs.Float64("process-cost", 45, "processing cost per tonne processed (currency of the catalogue)")
 	transMax := fs.Float64("trans-max", 1, "trans fat at most, % of fat")
 	batch := fs.Float64("batch", 20, "batch size in tonnes (for tonnes in the report)")
-	format := fs.String("format", "text", "text or json")
 	svg := fs.String("svg", "", "also draw the new blend's SFC against the incumbent's band into this SVG `file` (- = standard output)")
 	calPath := fs.String("calibration", "", calibrationFlagHelp)
 	if err := a.parse(fs, args); err != nil {
 		return err
 	}
-	if err := checkFormat(*format, "text", "json"); err != nil {
+	if err := in.check(); err != nil {
 		return err
 	}
 	svgOut := output{"--svg", *svg}
@@ -53,16 +51,11 @@ func (a *app) replace(args []string) error {
 	if strings.TrimSpace(*incumbent) == "" {
 		return catalogue.Badf("--incumbent is required: give the id of the fat to replace")
 	}
-	cat, err := a.stocks(*stocksPath)
+	cat, base, err := in.load(a)
 	if err != nil {
 		return err
 	}
-	r := optimise.Replacement{Incumbent: strings.TrimSpace(*incumbent), TransMax: *transMax, Batch: *batch}
-	if *specPath != "" {
-		if r.Base, err = a.spec(*specPath, cat); err != nil {
-			return err
-		}
-	}
+	r := optimise.Replacement{Incumbent: strings.TrimSpace(*incumbent), TransMax: *transMax, Batch: *batch, Base: base}
 	if r.Tolerance, r.PerTemp, err = parseTolerance(*tol); err != nil {
 		return err
 	}
@@ -97,11 +90,11 @@ func (a *app) replace(args []string) error {
 		return err
 	}
 	if *svg != "" && res.Result != nil && res.Result.Status == optimise.Optimal {
-		if err := a.write(svgOut, sfcSVG(res.Result, res.Spec), *stocksPath, *specPath); err != nil {
+		if err := a.write(svgOut, sfcSVG(res.Result, res.Spec), in.files()...); err != nil {
 			return err
 		}
 	}
-	if *format == "json" {
+	if in.json() {
 		if err := writeJSON(w, replaceJSON(res, model)); err != nil {
 			return err
 		}

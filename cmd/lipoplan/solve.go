@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"sort"
 	"strconv"
 	"strings"
 	"time"
@@ -125,12 +126,17 @@ func solveJSON(r *optimise.Result) map[string]any {
 		}
 		for _, l := range r.Limits {
 			limits = append(limits, map[string]any{
-				"name": l.Name, "value": round(l.Value, 6), "bound": round(l.Bound, 6),
+				"name": l.Name, "label": l.Label, "value": round(l.Value, 6), "bound": round(l.Bound, 6), "room": round(l.Room(), 6),
 				"binding": l.Binding, "shadow_price": round(l.ShadowPrice, 6),
+				"holds_from": finiteOrNil(l.HoldsFrom, 6), "holds_to": finiteOrNil(l.HoldsTo, 6), "excluded": l.Excluded,
 			})
 		}
 		for _, g := range r.Ranging {
-			ranging = append(ranging, map[string]any{"stock": g.Stock, "price_low": finiteOrNil(g.PriceLow, 4), "price_high": finiteOrNil(g.PriceHigh, 4)})
+			low := finiteOrNil(g.PriceLow, 4)
+			if g.PriceLow < 0 {
+				low = nil // any price down to nothing keeps the blend: no lower limit
+			}
+			ranging = append(ranging, map[string]any{"stock": g.Stock, "price_low": low, "price_high": finiteOrNil(g.PriceHigh, 4)})
 		}
 	} else {
 		out["cost_per_tonne"] = nil
@@ -166,25 +172,35 @@ func writeSolveCSV(w io.Writer, r *optimise.Result) error {
 		return strconv.FormatFloat(v, 'f', -1, 64)
 	}
 	rows := [][]string{
-		{"section", "name", "value", "tonnes", "bound", "binding", "shadow_price", "price", "price_low", "price_high"},
-		{"status", string(r.Status), "", "", "", "", "", "", "", ""},
+		{"section", "name", "value", "tonnes", "bound", "room", "saving_per_unit", "holds_from", "holds_to", "price", "price_low", "price_high"},
+		{"status", string(r.Status), "", "", "", "", "", "", "", "", "", ""},
+	}
+	low := func(v float64) string {
+		if v < 0 {
+			return "" // no lower limit
+		}
+		return f(v)
 	}
 	if r.Status == optimise.Optimal {
 		rows = append(rows,
-			[]string{"cost", "cost_per_tonne", f(r.CostPerTonne), "", "", "", "", "", "", ""},
-			[]string{"cost", "batch_cost", f(r.BatchCost), "", "", "", "", "", "", ""})
+			[]string{"cost", "cost_per_tonne", f(r.CostPerTonne), "", "", "", "", "", "", "", "", ""},
+			[]string{"cost", "batch_cost", f(r.BatchCost), "", "", "", "", "", "", "", "", ""})
 		for _, l := range r.Blend {
-			rows = append(rows, []string{"blend", l.Stock, f(l.Pct), f(l.Tonnes), "", "", "", "", "", ""})
+			rows = append(rows, []string{"blend", l.Stock, f(l.Pct), f(l.Tonnes), "", "", "", "", "", "", "", ""})
 		}
 		for _, l := range r.Limits {
-			rows = append(rows, []string{"limit", l.Name, f(l.Value), "", f(l.Bound), strconv.FormatBool(l.Binding), f(l.ShadowPrice), "", "", ""})
+			section := "limit"
+			if l.Excluded {
+				section = "left_out"
+			}
+			rows = append(rows, []string{section, l.Name, f(l.Value), "", f(l.Bound), f(l.Room()), f(l.ShadowPrice), f(l.HoldsFrom), f(l.HoldsTo), "", "", ""})
 		}
 		for _, g := range r.Ranging {
-			rows = append(rows, []string{"ranging", g.Stock, "", "", "", "", "", f(g.Price), f(g.PriceLow), f(g.PriceHigh)})
+			rows = append(rows, []string{"stock", g.Stock, "", "", "", "", "", "", "", f(g.Price), low(g.PriceLow), f(g.PriceHigh)})
 		}
 	}
 	for _, x := range r.Relaxation {
-		rows = append(rows, []string{"relaxation", x.Name, f(x.By), "", "", "", "", "", "", ""})
+		rows = append(rows, []string{"relaxation", x.Name, f(x.By), "", "", "", "", "", "", "", "", ""})
 	}
 	if err := cw.WriteAll(rows); err != nil {
 		return fmt.Errorf("writing CSV: %w", err)
@@ -255,51 +271,116 @@ func writeSolveText(w io.Writer, r *optimise.Result, spec *catalogue.Spec, temps
 	writePropertiesAs(w, r.Properties, temps, heading)
 	fmt.Fprintln(w)
 
-	fmt.Fprintln(w, "Limits (shadow price: what raising the bound by one unit saves per tonne; + saves, - costs)")
-	fmt.Fprintf(w, "  %-22s %10s %10s  %-8s %12s\n", "limit", "blend", "bound", "", "shadow/t")
-	for _, l := range r.Limits {
-		state := "slack"
-		if l.Binding {
-			state = "BINDING"
-		}
-		fmt.Fprintf(w, "  %-22s %10.3f %10.3f  %-8s %12.4f\n", l.Name, l.Value, l.Bound, state, l.ShadowPrice)
-	}
-	fmt.Fprintln(w)
-	fmt.Fprintln(w, "What the binding limits cost")
-	any := false
-	for _, l := range r.Limits {
-		if l.Binding {
-			fmt.Fprintf(w, "  %-22s %s\n", l.Name, l.Explain)
-			any = true
-		}
-	}
-	if !any {
-		fmt.Fprintln(w, "  none: no limit holds the blend back; it is simply the cheapest mix")
-	}
-	fmt.Fprintln(w)
+	writeLimits(w, r)
+	writeStocks(w, r)
+	writeCautions(w, spec)
+}
 
-	fmt.Fprintln(w, "Price ranging (the blend stays the same while the stock's price stays within the range)")
-	fmt.Fprintf(w, "  %-14s %11s %11s %11s\n", "in the blend", "price", "from", "to")
-	for _, g := range r.Ranging {
-		if g.InBlend {
-			fmt.Fprintf(w, "  %-14s %11.2f %11s %11s\n", g.Stock, g.Price, rangeEnd(g.PriceLow), rangeEnd(g.PriceHigh))
+// writeLimits prints the limits in two groups: those that hold the blend,
+// dearest first, each with what moving it saves and over which values of
+// its bound that holds; then the others with the room they leave. Stocks
+// the spec leaves out (a [use] cap of 0) are named once.
+func writeLimits(w io.Writer, r *optimise.Result) {
+	var holding, others []optimise.LimitReport
+	var out []string
+	gone := map[string]bool{}
+	for _, l := range r.Limits {
+		if l.Excluded {
+			id := strings.TrimSuffix(l.Name[len("use."):], ".max")
+			out, gone[id] = append(out, id), true
 		}
 	}
-	fmt.Fprintln(w)
-	fmt.Fprintln(w, "Stocks left out (the price at which each would start to pay its way)")
-	for _, g := range r.Ranging {
-		if g.InBlend {
+	for _, l := range r.Limits {
+		if id, ok := strings.CutPrefix(l.Name, "avail."); ok && gone[id] {
+			continue // its amount on hand is moot
+		}
+		if strings.HasPrefix(l.Name, "use.") && gone[strings.TrimSuffix(strings.TrimSuffix(l.Name[len("use."):], ".max"), ".min")] {
 			continue
 		}
 		switch {
-		case math.IsInf(g.PriceLow, -1):
-			fmt.Fprintf(w, "  %-14s %11.2f  kept out by a limit or rule, not by its price\n", g.Stock, g.Price)
+		case l.Excluded:
+		case l.Binding:
+			holding = append(holding, l)
 		default:
-			fmt.Fprintf(w, "  %-14s %11.2f  would enter below %.2f (%.2f cheaper)\n", g.Stock, g.Price, g.PriceLow, g.Price-g.PriceLow)
+			others = append(others, l)
+		}
+	}
+	sort.SliceStable(holding, func(i, j int) bool { return math.Abs(holding[i].ShadowPrice) > math.Abs(holding[j].ShadowPrice) })
+	fmt.Fprintln(w, "What holds the blend (dearest first)")
+	if len(holding) == 0 {
+		fmt.Fprintln(w, "  nothing: the blend is simply the cheapest mix of the stocks allowed")
+	}
+	for _, l := range holding {
+		fmt.Fprintf(w, "  %-30s %s%s\n", l.Label, quantity(l.Bound, l.Unit), l.Unit)
+		fmt.Fprintf(w, "      %s\n", wrapText(l.Explain, 92, "      "))
+	}
+	fmt.Fprintln(w)
+	if len(others) > 0 {
+		fmt.Fprintln(w, "Limits with room left")
+		fmt.Fprintf(w, "  %-30s %12s %12s %12s\n", "", "bound", "blend", "room")
+		for _, l := range others {
+			fmt.Fprintf(w, "  %-30s %12s %12s %12s%s\n", clip(l.Label, 30), quantity(l.Bound, l.Unit), quantity(l.Value, l.Unit), quantity(l.Room(), l.Unit), l.Unit)
+		}
+		fmt.Fprintln(w)
+	}
+	if len(out) > 0 {
+		fmt.Fprintf(w, "Left out by the spec: %s\n\n", strings.Join(out, ", "))
+	}
+}
+
+// writeStocks prints every stock once: its share in the blend, its price
+// and the price range over which the blend keeps its make-up, or for a
+// stock not in the blend the price at which it would come in.
+func writeStocks(w io.Writer, r *optimise.Result) {
+	share := map[string]float64{}
+	for _, l := range r.Blend {
+		share[l.Stock] = l.Pct
+	}
+	excluded := map[string]bool{}
+	for _, l := range r.Limits {
+		if l.Excluded {
+			excluded[strings.TrimSuffix(l.Name[len("use."):], ".max")] = true
+		}
+	}
+	fmt.Fprintln(w, "Stocks and their prices (the blend keeps its make-up while a price stays in its range)")
+	fmt.Fprintf(w, "  %-14s %9s %11s   %s\n", "stock", "share %", "price/t", "keeps the blend / would come in")
+	for _, g := range r.Ranging {
+		if excluded[g.Stock] {
+			continue
+		}
+		if g.InBlend {
+			fmt.Fprintf(w, "  %-14s %9.2f %11.2f   %s to %s\n", g.Stock, share[g.Stock], g.Price, priceFrom(g.PriceLow), rangeEnd(g.PriceHigh))
+			continue
+		}
+		switch {
+		case math.IsInf(g.PriceLow, -1) || g.PriceLow < 0:
+			fmt.Fprintf(w, "  %-14s %9s %11.2f   not at any price: a limit or rule keeps it out\n", g.Stock, "-", g.Price)
+		default:
+			fmt.Fprintf(w, "  %-14s %9s %11.2f   would come in at %.2f or less (%.2f cheaper)\n", g.Stock, "-", g.Price, g.PriceLow, g.Price-g.PriceLow)
 		}
 	}
 	fmt.Fprintln(w)
-	writeCautions(w, spec)
+}
+
+// quantity prints a limit's value by the rounding rule of its unit: tonnes
+// to 3 decimals, shares and % solid to 2, IV, SV and Cox to 2.
+func quantity(v float64, unit string) string {
+	if math.IsNaN(v) {
+		return "n/a"
+	}
+	if unit == " t" {
+		return strconv.FormatFloat(v, 'f', 3, 64)
+	}
+	return strconv.FormatFloat(v, 'f', 2, 64)
+}
+
+// priceFrom is a price range's lower end: below zero or unbounded is "no
+// lower limit" (any price down to nothing keeps the blend).
+func priceFrom(v float64) string {
+	if math.IsInf(v, -1) || v < 0 {
+		return "no lower limit"
+	}
+	return strconv.FormatFloat(v, 'f', 2, 64)
 }
 
 // writeCautions closes a solve report: the general caution, and the plant
@@ -345,10 +426,20 @@ func writeDiagnosis(w io.Writer, r *optimise.Result, spec *catalogue.Spec) {
 			if strings.HasSuffix(x.Name, ".min") {
 				to = b - x.By
 			}
-			line += " (from " + strconv.FormatFloat(b, 'g', 6, 64) + " to " + strconv.FormatFloat(to, 'g', 6, 64) + ")"
+			u := relaxUnit(x.Name)
+			line += " (from " + quantity(b, u) + " to " + quantity(to, u) + ")"
 		}
 		fmt.Fprintf(w, "  %-22s %s\n", x.Name, line)
 	}
+}
+
+// relaxUnit is the unit of a relaxation's limit, for its rounding rule
+// (tonnes for availability, as the limits print them).
+func relaxUnit(name string) string {
+	if strings.HasPrefix(name, "avail.") {
+		return " t"
+	}
+	return ""
 }
 
 // boundOf finds the bound a relaxation name refers to in the spec.
@@ -392,7 +483,7 @@ func boundOf(spec *catalogue.Spec, name string) (float64, bool) {
 }
 
 func relaxWords(x optimise.Relax) string {
-	by := strconv.FormatFloat(x.By, 'g', 4, 64)
+	by := quantity(x.By, relaxUnit(x.Name))
 	switch {
 	case strings.HasPrefix(x.Name, "avail."):
 		return "have " + by + " t more of " + strings.TrimPrefix(x.Name, "avail.") + " on hand"
@@ -408,12 +499,11 @@ func relaxWords(x optimise.Relax) string {
 // goes through the reactor, what it costs and the reacted fat's SFC.
 func writeReactor(w io.Writer, r *optimise.Result, temps []float64) {
 	p := r.Process
-	fmt.Fprintf(w, "Reactor (%s interesterification, SFC of the reacted fat %s)\n", p.Method, p.SFCModel)
 	if len(p.Feed) == 0 {
-		fmt.Fprintln(w, "  not used: blending the stocks as they are is cheaper")
-		fmt.Fprintln(w)
+		fmt.Fprintf(w, "Reactor (%s interesterification): not used, nothing goes through it; blending the stocks as they are is cheaper.\n\n", p.Method)
 		return
 	}
+	fmt.Fprintf(w, "Reactor (%s interesterification, SFC of the reacted fat %s)\n", p.Method, p.SFCModel)
 	for _, l := range p.Feed {
 		fmt.Fprintf(w, "  %-14s %8.2f %% of batch %9.3f t\n", l.Stock, l.Pct, l.Tonnes)
 	}

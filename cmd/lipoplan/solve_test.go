@@ -47,7 +47,7 @@ func TestSolveDemoJSON(t *testing.T) {
 	}
 	assert.InDelta(t, 100, pct, 1e-4)
 	for _, l := range got["limits"].([]any) {
-		assert.Equal(t, []string{"binding", "bound", "name", "shadow_price", "value"}, keysOf(l.(map[string]any)))
+		assert.Equal(t, []string{"binding", "bound", "excluded", "holds_from", "holds_to", "label", "name", "room", "shadow_price", "value"}, keysOf(l.(map[string]any)))
 	}
 	for _, g := range got["ranging"].([]any) {
 		assert.Equal(t, []string{"price_high", "price_low", "stock"}, keysOf(g.(map[string]any)))
@@ -62,8 +62,8 @@ func TestSolveDemoJSON(t *testing.T) {
 func TestSolveDemoText(t *testing.T) {
 	code, out, errs := run(t, "solve")
 	require.Equal(t, 0, code, errs)
-	for _, want := range []string{"Cheapest blend found", "Properties of the blend", "What the binding limits cost",
-		"Price ranging", "Stocks left out", "saves", cautionLine} {
+	for _, want := range []string{"Cheapest blend found", "Properties of the blend", "What holds the blend",
+		"Limits with room left", "Stocks and their prices", "would come in at", "saves", "past that the blend changes", cautionLine} {
 		assert.Contains(t, out, want)
 	}
 }
@@ -313,4 +313,30 @@ func TestSolveProcessJSONStatesModelError(t *testing.T) {
 	notes, ok := got["notes"].([]any)
 	require.True(t, ok)
 	assert.NotEmpty(t, notes)
+}
+
+// The report in our own shape: no status column of BINDING/slack words
+// (text and CSV), a stock the spec leaves out named once as such and not
+// among the limits' costs or the stocks' prices, and no price range below
+// zero (a range that reaches below nothing reads "no lower limit").
+func TestSolveReportShape(t *testing.T) {
+	code, out, _ := run(t, "solve")
+	require.Equal(t, 0, code)
+	for _, word := range []string{"BINDING", "slack", "Stocks left out", "from -"} {
+		assert.NotContains(t, out, word)
+	}
+	assert.Equal(t, 1, strings.Count(out, "ph-soy"), "ph-soy (use max 0) is named once: %s", out)
+	assert.Contains(t, out, "Left out by the spec: ph-soy")
+	code, csvOut, _ := run(t, "solve", "--format", "csv")
+	require.Equal(t, 0, code)
+	rows, err := csv.NewReader(strings.NewReader(csvOut)).ReadAll()
+	require.NoError(t, err)
+	assert.NotContains(t, rows[0], "binding")
+	for _, r := range rows[1:] {
+		if r[0] == "stock" && r[10] != "" {
+			v, err := strconv.ParseFloat(r[10], 64)
+			require.NoError(t, err)
+			assert.GreaterOrEqual(t, v, 0.0, "price_low of %s", r[1])
+		}
+	}
 }

@@ -19,15 +19,13 @@ func (a *app) sweep(args []string) error {
 		"Solve the spec over a range of one stock's price: the cheapest blend and its cost at each step,\n"+
 			"and the prices at which the blend changes (breakpoints). Tells a buyer at what price a stock\n"+
 			"starts or stops paying its way.")
-	stocksPath := fs.String("stocks", "", "stock catalogue TOML (default: embedded demo stocks)")
-	specPath := fs.String("spec", "", "product spec TOML (default: the embedded demo laminating spec)")
+	in := a.inputFlags(fs, demoSpec, "product spec TOML (default: the embedded demo laminating spec)", "text", "json")
 	price := fs.String("price", "", `stock and price range, e.g. "palm=800:1400:13"`)
-	format := fs.String("format", "text", "text or json")
 	svg := fs.String("svg", "", "also draw cost per tonne against price into this SVG `file` (- = standard output, the report then goes to standard error)")
 	if err := a.parse(fs, args); err != nil {
 		return err
 	}
-	if err := checkFormat(*format, "text", "json"); err != nil {
+	if err := in.check(); err != nil {
 		return err
 	}
 	svgOut := output{"--svg", *svg}
@@ -39,11 +37,7 @@ func (a *app) sweep(args []string) error {
 	if err != nil {
 		return err
 	}
-	cat, err := a.stocks(*stocksPath)
-	if err != nil {
-		return err
-	}
-	spec, err := a.spec(*specPath, cat)
+	cat, spec, err := in.load(a)
 	if err != nil {
 		return err
 	}
@@ -52,11 +46,11 @@ func (a *app) sweep(args []string) error {
 		return err
 	}
 	if *svg != "" {
-		if err := a.write(svgOut, sweepSVG(r, spec), *stocksPath, *specPath); err != nil {
+		if err := a.write(svgOut, sweepSVG(r, spec), in.files()...); err != nil {
 			return err
 		}
 	}
-	if *format == "json" {
+	if in.json() {
 		return writeJSON(report, sweepJSON(r))
 	}
 	writeSweepText(report, r, spec)

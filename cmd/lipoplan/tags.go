@@ -27,18 +27,17 @@ func (a *app) tags(args []string) error {
 			"chemical: fully random over the blend; enzymatic: sn-1,3 lipase, each stock's sn-2 kept.\n"+
 			"--degree mixes start (0) and equilibrium (1). --harden fully hydrogenates the named stocks first.\n"+
 			"Classes and sums always cover the full distribution; --top only limits the species list.")
-	stocksPath := fs.String("stocks", "", "stock catalogue TOML (default: embedded demo stocks)")
 	use := fs.String("use", "", `shares by stock id, % by mass, e.g. "palm=60,pko=40"`)
 	process := fs.String("process", "native", "native, chemical or enzymatic")
 	degree := fs.Float64("degree", 1, "extent of reaction 0..1 for chemical or enzymatic (1 = equilibrium)")
 	harden := fs.String("harden", "", `stocks of --use to fully hydrogenate before blending, e.g. "soybean"`)
 	isomers := fs.String("isomers", "stereo", "species list: stereo (sn-1, sn-2, sn-3 apart), regio (POP vs PPO, mirror images merged) or combined")
 	top := fs.Int("top", 20, "species shown, most abundant first (0 = all)")
-	format := fs.String("format", "text", "text or json")
+	in := a.inputFlags(fs, noSpec, "", "text", "json")
 	if err := a.parse(fs, args); err != nil {
 		return err
 	}
-	if err := checkFormat(*format, "text", "json"); err != nil {
+	if err := in.check(); err != nil {
 		return err
 	}
 	method, err := randomise.ParseMethod(*process)
@@ -60,7 +59,7 @@ func (a *app) tags(args []string) error {
 	if *top < 0 {
 		return catalogue.Badf("--top %d is negative; give the number of species to show (0 = all)", *top)
 	}
-	cat, err := a.stocks(*stocksPath)
+	cat, _, err := in.load(a)
 	if err != nil {
 		return err
 	}
@@ -80,7 +79,7 @@ func (a *app) tags(args []string) error {
 		parts: parts, dist: d, summary: d.Summarise(), species: d.SpeciesBy(level),
 		level: level, top: *top, hardened: hardened,
 	}
-	if *format == "json" {
+	if in.json() {
 		return writeJSON(a.stdout, rep.json())
 	}
 	rep.text(a.stdout)

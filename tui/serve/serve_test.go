@@ -450,7 +450,7 @@ func TestUnknownWindowSizeKeepsTheScreen(t *testing.T) {
 	_, err = io.WriteString(s.in, "2")
 	require.NoError(t, err)
 	deadline := time.Now().Add(10 * time.Second)
-	for !strings.Contains(ansi.Strip(s.out.String()[mark:]), "optimal from") {
+	for !strings.Contains(ansi.Strip(s.out.String()[mark:]), "range / comes in") {
 		if time.Now().After(deadline) {
 			t.Fatalf("after a 0x0 window-change the Stocks panel was not drawn; got since:\n%q", s.out.String()[mark:])
 		}
