@@ -109,8 +109,8 @@ func TestSpecCheckSpeaksAsTheLoader(t *testing.T) {
 		"use minimums": func(s *Spec) {
 			s.Use = append(s.Use, Use{Stock: "palm", Bound: Bound{Min: 60, Max: math.Inf(1)}}, Use{Stock: "rapeseed", Bound: Bound{Min: 50, Max: math.Inf(1)}})
 		},
-		"min_if_used": func(s *Spec) { s.Rules.MinIfUsed = 150 },
-		"max_stocks":  func(s *Spec) { s.Rules.MaxStocks = 2_000_000 },
+		"smallest_share": func(s *Spec) { s.Rules.SmallestShare = 150 },
+		"max_stocks":     func(s *Spec) { s.Rules.MaxStocks = 2_000_000 },
 		"feed twice": func(s *Spec) {
 			s.Process = &Process{Interesterify: []string{"palm", "palm"}, Method: "chemical", Cost: 40, SFC: "predicted"}
 		},

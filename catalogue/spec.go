@@ -61,12 +61,12 @@ type Use struct {
 
 // Rules are the integer rules that need the MILP engine. Zero means unset.
 type Rules struct {
-	MaxStocks int     // at most this many stocks in the blend
-	MinIfUsed float64 // a stock used at all is used at no less than this % of batch
+	MaxStocks     int     // at most this many stocks in the blend
+	SmallestShare float64 // a stock used at all is used at no less than this % of batch
 }
 
 // Active reports whether any integer rule is set.
-func (r Rules) Active() bool { return r.MaxStocks > 0 || r.MinIfUsed > 0 }
+func (r Rules) Active() bool { return r.MaxStocks > 0 || r.SmallestShare > 0 }
 
 // Process is the optional interesterification before final blending.
 type Process struct {
@@ -119,8 +119,9 @@ type rawBound struct {
 }
 
 type rawRules struct {
-	MaxStocks val `toml:"max_stocks"`
-	MinIfUsed val `toml:"min_if_used"`
+	MaxStocks     val `toml:"max_stocks"`
+	SmallestShare val `toml:"smallest_share"`
+	OldName       val `toml:"min_if_used"` // smallest_share's old name, read this release with a warning
 }
 
 type rawProcess struct {
@@ -143,7 +144,7 @@ type rawSpec struct {
 var (
 	keysSpecTop = []string{"name", "batch", "limits", "use", "rules", "process"}
 	keysBound   = []string{"min", "max"}
-	keysRules   = []string{"max_stocks", "min_if_used"}
+	keysRules   = []string{"max_stocks", "smallest_share", "min_if_used"}
 	keysProcess = []string{"interesterify", "method", "cost", "sfc"}
 )
 
@@ -268,8 +269,8 @@ func (c *collector) specValues(s *Spec, cat *Catalogue, typed bool) {
 	if s.Rules.MaxStocks != 0 {
 		c.maxStocks(where, float64(s.Rules.MaxStocks))
 	}
-	if s.Rules.MinIfUsed != 0 {
-		c.minIfUsed(where, s.Rules.MinIfUsed)
+	if s.Rules.SmallestShare != 0 {
+		c.smallestShare(where, s.Rules.SmallestShare)
 	}
 	if p := s.Process; p != nil {
 		const where = "[process]"
@@ -404,14 +405,15 @@ func (c *collector) maxStocks(where string, v float64) bool {
 	return false
 }
 
-// minIfUsed reports a min_if_used rule that is 0 (written in a file: no rule
-// is left out) or outside the accepted magnitudes of a percentage.
-func (c *collector) minIfUsed(where string, v float64) bool {
+// smallestShare reports a smallest_share rule (the smallest share a stock
+// may have in the batch if it is used at all) that is 0 (written in a file:
+// no rule is left out) or outside the accepted magnitudes of a percentage.
+func (c *collector) smallestShare(where string, v float64) bool {
 	if v == 0 {
-		c.errf(where, "min_if_used = 0 must be above 0 and at most 100 (%% of batch); leave it out for no rule")
+		c.errf(where, "smallest_share = 0 must be above 0 and at most 100 (%% of batch); leave it out for no rule")
 		return false
 	}
-	return c.magnitude(where, QtyPercent, "min_if_used", v, "give the least share, % of batch, of a stock that is used")
+	return c.magnitude(where, QtyPercent, "smallest_share", v, "give the smallest share, % of batch, a stock may have if it is used at all")
 }
 
 // feedEmpty reports a [process] step without feed stocks.
@@ -594,8 +596,17 @@ func (c *collector) rules(r rawRules) Rules {
 	if v, ok := c.num(where, "max_stocks", r.MaxStocks); ok && c.maxStocks(where, v) {
 		out.MaxStocks = int(v)
 	}
-	if v, ok := c.num(where, "min_if_used", r.MinIfUsed); ok && c.minIfUsed(where, v) {
-		out.MinIfUsed = v
+	share := r.SmallestShare
+	if r.OldName.set {
+		if r.SmallestShare.set {
+			c.errf(where, "both smallest_share and min_if_used are given; min_if_used is the old name of smallest_share: keep only smallest_share")
+			return out
+		}
+		c.warnf(where, "min_if_used is the old name of smallest_share (the smallest share a stock may have if it is used at all); it is read in this release only: rename it to smallest_share")
+		share = r.OldName
+	}
+	if v, ok := c.num(where, "smallest_share", share); ok && c.smallestShare(where, v) {
+		out.SmallestShare = v
 	}
 	return out
 }

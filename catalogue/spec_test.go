@@ -26,8 +26,8 @@ trans = { max = 1.0 }
 "pko-r" = { max = 25 }
 "rapeseed" = { min = 5, max = 30 }
 [rules]
-max_stocks  = 4
-min_if_used = 5.0
+max_stocks     = 4
+smallest_share = 5.0
 [process]
 interesterify = ["rapeseed", "pko-r"]
 method = "enzymatic"
@@ -58,7 +58,7 @@ price = 1150.0
 	}, s.Limits)
 	assert.Equal(t, []SFCLimit{{20, Bound{38, 48}}, {35, Bound{8, 14}}, {37.5, Bound{math.Inf(-1), 6}}}, s.SFC)
 	assert.Equal(t, []Use{{"pko-r", Bound{math.Inf(-1), 25}}, {"rapeseed", Bound{5, 30}}}, s.Use)
-	assert.Equal(t, Rules{MaxStocks: 4, MinIfUsed: 5}, s.Rules)
+	assert.Equal(t, Rules{MaxStocks: 4, SmallestShare: 5}, s.Rules)
 	require.NotNil(t, s.Process)
 	assert.Equal(t, Process{Interesterify: []string{"rapeseed", "pko-r"}, Method: "enzymatic", Cost: 45, SFC: "predicted"}, *s.Process,
 		"sfc defaults to predicted: the measured curves no longer apply after the reactor")
@@ -69,6 +69,13 @@ price = 1150.0
 	// With one they are.
 	_, ps = ParseSpec("x.toml", []byte(strings.Replace(fullSpec, `"pko-r" = { max = 25 }`, `"ghost" = { max = 25 }`, 1)), cat)
 	assert.Contains(t, ps.Error(), `x.toml: error: use "ghost": no stock "ghost" in stocks.toml`)
+
+	// The old name min_if_used is still read, with a warning saying to rename it.
+	old, ps := ParseSpec("x.toml", []byte(strings.Replace(fullSpec, "smallest_share = 5.0", "min_if_used = 5.0", 1)), cat)
+	require.NotNil(t, old)
+	assert.Empty(t, ps.Errors())
+	assert.Equal(t, 5.0, old.Rules.SmallestShare)
+	assert.Contains(t, ps.Error(), "x.toml: warning: [rules]: min_if_used is the old name of smallest_share")
 }
 
 func TestLoadSpecDemoPath(t *testing.T) {

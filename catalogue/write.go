@@ -99,8 +99,8 @@ func WriteSpec(w io.Writer, s *Spec) error {
 		if s.Rules.MaxStocks > 0 {
 			tw.line("max_stocks = %d", s.Rules.MaxStocks)
 		}
-		if s.Rules.MinIfUsed > 0 {
-			tw.line("min_if_used = %s", tw.float("min_if_used", s.Rules.MinIfUsed))
+		if s.Rules.SmallestShare > 0 {
+			tw.line("smallest_share = %s", tw.float("smallest_share", s.Rules.SmallestShare))
 		}
 	}
 	if p := s.Process; p != nil {

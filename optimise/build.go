@@ -321,7 +321,7 @@ func spread(coef []float64, b catalogue.Bound) float64 {
 // withRules returns m extended by the integer rules of the spec (a copy;
 // m is kept as the base LP): a binary used_j per stock that may enter, rows
 // link_j: x_j - U_j·used_j <= 0 (U_j its upper bound, at most 100), with
-// min_if_used m: minuse_j: x_j - m·used_j >= 0, with max_stocks N:
+// smallest_share m: share_j: x_j - m·used_j >= 0, with max_stocks N:
 // count: Σ used_j <= N. linkCap replaces U_j (the elastic model uses 100).
 func (l *layout) withRules(m *model, linkCap func(j int) float64) *model {
 	r := l.rules
@@ -358,9 +358,9 @@ func (l *layout) withRules(m *model, linkCap func(j int) float64) *model {
 		clear(coef)
 		coef[j], coef[l.used[j]] = 1, -linkCap(j)
 		out.addRow("link."+m.colName[j], coef, math.Inf(-1), 0)
-		if r.MinIfUsed > 0 {
-			coef[l.used[j]] = -r.MinIfUsed
-			out.addRow("minuse."+m.colName[j], coef, 0, inf)
+		if r.SmallestShare > 0 {
+			coef[l.used[j]] = -r.SmallestShare
+			out.addRow("share."+m.colName[j], coef, 0, inf)
 		}
 	}
 	if r.MaxStocks > 0 {

@@ -435,7 +435,7 @@ func newProcModel(base *model, lay *layout) (*procModel, error) {
 		mode = "predicted"
 	}
 	if lay.rules.Active() {
-		return nil, catalogue.Badf("%s integer [rules] (max_stocks, min_if_used) together with a [process] step are not supported; remove one of the two", where)
+		return nil, catalogue.Badf("%s integer [rules] (max_stocks, smallest_share) together with a [process] step are not supported; remove one of the two", where)
 	}
 	n := lay.n()
 	pm := &procModel{base: base, lay: lay, mode: mode, cost: pr.Cost, isFeed: make([]int, n)}

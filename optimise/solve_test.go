@@ -285,7 +285,7 @@ func TestOddInputsNeverPanic(t *testing.T) {
 			s.Use = []catalogue.Use{{Stock: "hard", Bound: bound(150, 200)}}
 		},
 		"zero avail":  func(c *catalogue.Catalogue, _ *catalogue.Spec) { c.Stocks[0].Available, c.Stocks[1].Available = 0, 0 },
-		"rules range": func(_ *catalogue.Catalogue, s *catalogue.Spec) { s.Rules.MinIfUsed = 150 },
+		"rules range": func(_ *catalogue.Catalogue, s *catalogue.Spec) { s.Rules.SmallestShare = 150 },
 		"sfc no data": func(_ *catalogue.Catalogue, s *catalogue.Spec) {
 			s.SFC = []catalogue.SFCLimit{{Temp: 20, Bound: bound(5, inf())}}
 		},

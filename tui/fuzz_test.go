@@ -107,7 +107,7 @@ func requireAccepted(t *testing.T, sc *Scenario) {
 			}
 		}
 	}
-	check(catalogue.QtyPercent, "min if used", sc.Spec.Rules.MinIfUsed)
+	check(catalogue.QtyPercent, "smallest share if used", sc.Spec.Rules.SmallestShare)
 	require.GreaterOrEqual(t, sc.Spec.Rules.MaxStocks, 0)
 }
 

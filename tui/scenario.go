@@ -99,12 +99,12 @@ type RowKind int
 
 // Kinds of editable spec rows.
 const (
-	RowBatch     RowKind = iota // the batch size, tonnes
-	RowLimit                    // a property or fatty-acid limit
-	RowSFC                      // solid fat content at one temperature
-	RowUse                      // inclusion of one stock, % of batch
-	RowMaxStocks                // integer rule: at most this many stocks
-	RowMinIfUsed                // integer rule: a used stock is used at no less than this %
+	RowBatch         RowKind = iota // the batch size, tonnes
+	RowLimit                        // a property or fatty-acid limit
+	RowSFC                          // solid fat content at one temperature
+	RowUse                          // inclusion of one stock, % of batch
+	RowMaxStocks                    // integer rule: at most this many stocks
+	RowSmallestShare                // integer rule: a used stock is used at no less than this %
 )
 
 // Row is one editable line of the spec. Key is the stem of the optimiser's
@@ -122,7 +122,7 @@ type Row struct {
 
 // Single reports whether the row holds one value rather than a min/max pair.
 func (r Row) Single() bool {
-	return r.Kind == RowBatch || r.Kind == RowMaxStocks || r.Kind == RowMinIfUsed
+	return r.Kind == RowBatch || r.Kind == RowMaxStocks || r.Kind == RowSmallestShare
 }
 
 // Rows lists the spec as editable rows: batch, limits, SFC, stock use, rules.
@@ -141,7 +141,7 @@ func (s *Scenario) Rows() []Row {
 	}
 	rows = append(rows,
 		Row{Kind: RowMaxStocks, Key: "rules.max_stocks", Label: "max stocks", Unit: "stocks", Bound: catalogue.Bound{Min: math.Inf(-1), Max: float64(sp.Rules.MaxStocks)}},
-		Row{Kind: RowMinIfUsed, Key: "rules.min_if_used", Label: "min if used", Unit: "% batch", Bound: catalogue.Bound{Min: math.Inf(-1), Max: sp.Rules.MinIfUsed}},
+		Row{Kind: RowSmallestShare, Key: "rules.smallest_share", Label: "smallest share if used", Unit: "% batch", Bound: catalogue.Bound{Min: math.Inf(-1), Max: sp.Rules.SmallestShare}},
 	)
 	return rows
 }
@@ -219,11 +219,11 @@ func (s *Scenario) WithBound(r Row, side Side, v float64) (*Scenario, error) {
 			return nil, fmt.Errorf("max stocks must be a whole number from 0 (no rule) to %g", float64(maxStocksRule))
 		}
 		sp.Rules.MaxStocks = int(v)
-	case RowMinIfUsed:
+	case RowSmallestShare:
 		if clear {
 			v = 0
 		}
-		sp.Rules.MinIfUsed = v
+		sp.Rules.SmallestShare = v
 	case RowLimit:
 		if r.index >= len(sp.Limits) {
 			return nil, fmt.Errorf("limit %s is gone", r.Key)
@@ -259,8 +259,8 @@ func (s *Scenario) WithoutRow(r Row) (*Scenario, error) {
 		return nil, fmt.Errorf("the batch cannot be removed; edit it instead")
 	case RowMaxStocks:
 		sp.Rules.MaxStocks = 0
-	case RowMinIfUsed:
-		sp.Rules.MinIfUsed = 0
+	case RowSmallestShare:
+		sp.Rules.SmallestShare = 0
 	case RowLimit:
 		sp.Limits = append(sp.Limits[:r.index:r.index], sp.Limits[r.index+1:]...)
 	case RowSFC:

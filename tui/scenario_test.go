@@ -124,8 +124,8 @@ func TestEditsRefuseMagnitudes(t *testing.T) {
 		{"batch 1e308", func() (*Scenario, error) { return sc.WithBound(rowByKey(t, sc, "batch"), Max, 1e308) }, catalogue.QtyTonnes},
 		{"iv max 1e25", func() (*Scenario, error) { return sc.WithBound(rowByKey(t, sc, "iv"), Max, 1e25) }, catalogue.QtyIV},
 		{"sfc min -1", func() (*Scenario, error) { return sc.WithBound(rowByKey(t, sc, "sfc.20"), Min, -1) }, catalogue.QtyPercent},
-		{"min if used 1e25", func() (*Scenario, error) {
-			return sc.WithBound(rowByKey(t, sc, "rules.min_if_used"), Max, 1e25)
+		{"smallest share 1e25", func() (*Scenario, error) {
+			return sc.WithBound(rowByKey(t, sc, "rules.smallest_share"), Max, 1e25)
 		}, catalogue.QtyPercent},
 	} {
 		next, err := tc.edit()

@@ -524,7 +524,7 @@ func (m *Model) limitsPanel(w, h int) []string {
 			mark = st.key.Render("› ")
 		}
 		minS, maxS := "", f2(r.Bound.Max)
-		if r.Kind == RowMaxStocks && r.Bound.Max == 0 || r.Kind == RowMinIfUsed && r.Bound.Max == 0 {
+		if r.Kind == RowMaxStocks && r.Bound.Max == 0 || r.Kind == RowSmallestShare && r.Bound.Max == 0 {
 			maxS = "none"
 		}
 		if !r.Single() {
@@ -591,7 +591,7 @@ func (m *Model) rowValue(r Row) (val, binds, worth string) {
 			}
 		}
 		return fmt.Sprint(n), "", ""
-	case RowMinIfUsed:
+	case RowSmallestShare:
 		lo := math.Inf(1)
 		for _, l := range res.Blend {
 			if l.Pct > 1e-9 {

@@ -19,7 +19,7 @@ import (
 func (a *app) solve(args []string) error {
 	fs := a.newFlags("solve", `[--stocks F] [--spec F] [--format text|json|csv] [--mps FILE] [--svg FILE] [--temps "5,10,37"]`,
 		"Cheapest blend of the stocks that meets the spec: a linear programme (lipoplan's own simplex; integer\n"+
-			"rules max_stocks and min_if_used by branch and bound), with the cost of every binding limit, price ranging per stock\n"+
+			"rules max_stocks and smallest_share by branch and bound), with the cost of every binding limit, price ranging per stock\n"+
 			"and, when the spec cannot be met, the smallest relaxation that would make it feasible (exit 3).")
 	stocksPath := fs.String("stocks", "", "stock catalogue TOML (default: embedded demo stocks)")
 	specPath := fs.String("spec", "", "product spec TOML (default: the embedded demo laminating spec)")
