@@ -173,16 +173,84 @@ func (c *collector) decode(data []byte, v any) (toml.MetaData, bool) {
 	}
 	var pe toml.ParseError
 	if errors.As(err, &pe) {
-		where := fmt.Sprintf("line %d", pe.Position.Line)
+		line, unfinished := syntaxLine(data, pe.Position.Start, pe.Position.Line, strings.Contains(pe.Message, "terminator"))
 		msg := pe.Message
 		if pe.LastKey != "" {
 			msg = fmt.Sprintf("%s (after key %q)", msg, pe.LastKey)
 		}
-		c.errf(where, "TOML syntax error: %s; fix this line (strings need double quotes, keys with ':' or '.' must be quoted, e.g. \"C18:1\" = 20.0)", msg)
+		if unfinished {
+			msg += fmt.Sprintf("; the decoder stopped at the start of line %d, so this line is left unfinished", line+1)
+		}
+		c.errf(fmt.Sprintf("line %d", line), "TOML syntax error: %s; %s", msg, syntaxHint(pe.Message))
 		return md, false
 	}
 	c.structureError(err)
 	return md, false
+}
+
+// syntaxLine is the line a TOML syntax error belongs to. The decoder counts a
+// line when it has read the line's newline, so an error found at a newline
+// (a table name left open) is reported by it one line late; the line here
+// is counted from the error's byte offset instead, a newline belonging to
+// the line it ends. When open is true (the decoder wanted an array's or
+// inline table's closing bracket) and the error is found at the first thing
+// written on a line, the bracket was left open on the line before: the line
+// to fix is the previous one with text, and unfinished is true.
+func syntaxLine(data []byte, start, reported int, open bool) (line int, unfinished bool) {
+	if start < 0 || start > len(data) {
+		return reported, false
+	}
+	line = 1 + strings.Count(string(data[:start]), "\n")
+	lineStart := strings.LastIndexByte(string(data[:start]), '\n') + 1
+	if !open || start >= len(data) || data[start] == '\n' || strings.TrimSpace(string(data[lineStart:start])) != "" {
+		return line, false
+	}
+	// The error is at the first character of its line: find the line before
+	// with text that is not a comment.
+	lines := strings.Split(string(data[:lineStart]), "\n")
+	for i := len(lines) - 2; i >= 0; i-- {
+		t := strings.TrimSpace(lines[i])
+		if t != "" && !strings.HasPrefix(t, "#") {
+			return i + 1, true
+		}
+	}
+	return line, false
+}
+
+// syntaxHint is what to do about one of the decoder's syntax messages,
+// matched on the decoder's wording (BurntSushi/toml); a message not
+// matched gets a hint naming the TOML format only, so that no unrelated
+// advice is given.
+func syntaxHint(msg string) string {
+	switch {
+	case strings.Contains(msg, "got ':'") && strings.Contains(msg, "expected '.' or '='"):
+		return `a key with ':' in it must be quoted, e.g. "C18:1" = 20.0`
+	case strings.Contains(msg, "expected '.' or '='"):
+		return "write key = value; a key with spaces or other signs in it must be quoted"
+	case strings.Contains(msg, "key name appears blank"):
+		return "write the key before the ="
+	case strings.Contains(msg, "expected value but found '\\n'"):
+		return "the value after = is missing"
+	case strings.Contains(msg, "expected value but found"):
+		return `text needs double quotes, e.g. name = "Palm olein"; numbers, true and false are written without them`
+	case strings.Contains(msg, "strings cannot contain newlines"):
+		return `close the text with " on the same line`
+	case strings.Contains(msg, "unexpected EOF"):
+		return "the file ends inside a value; close the string, array or table that is still open"
+	case strings.Contains(msg, "table name"), strings.Contains(msg, "table array name"):
+		return "close the table name with ] (or ]] for [[stock]] and [[order]])"
+	case strings.Contains(msg, "array terminator"):
+		return "close the array with ] after its last item"
+	case strings.Contains(msg, "inline table"):
+		return "an inline table { ... } must be closed with } on the same line"
+	case strings.Contains(msg, "to end with a newline"):
+		return `write one key = value per line; a number has no letters after it, and text needs double quotes`
+	case strings.Contains(msg, "Invalid float"), strings.Contains(msg, "Invalid integer"):
+		return "write numbers like 20, 20.5 or 1e3"
+	case strings.Contains(msg, "already been defined"):
+		return "each key and table may be given once; remove one of the two (each stock is its own [[stock]])"
+	}
+	return "fix this line (the file is TOML, see toml.io)"
 }
 
 // structureError reports a value of the wrong shape that the decoder could
