@@ -745,7 +745,14 @@ func (m *Model) save(name string) tea.Cmd {
 		m.fail(err)
 		return nil
 	}
-	data, err := EncodeScenario(m.sc)
+	// the result goes with the scenario once it is in; a save while the
+	// edit is still being solved keeps the scenario alone
+	file := *m.sc
+	file.Saved = nil
+	if !m.Pending() && m.snap.Result != nil {
+		file.Saved = SolvedOf(m.snap.Result, m.snap.At)
+	}
+	data, err := EncodeScenario(&file)
 	if err != nil {
 		m.fail(err)
 		return nil
@@ -759,11 +766,15 @@ func (m *Model) save(name string) tea.Cmd {
 	}
 	m.lastPath = strings.TrimSpace(name)
 	m.dirty = false
-	if w.Backup != "" {
-		m.info("Old file kept as " + m.shownPath(w.Backup) + ". Saved the scenario to " + m.shownPath(path) + ".")
-	} else {
-		m.info("Saved the scenario to " + m.shownPath(path) + ".")
+	what := "the scenario and its result"
+	if file.Saved == nil {
+		what = "the scenario (still solving: without its result)"
 	}
+	msg := "Saved " + what + " to " + m.shownPath(path) + "."
+	if w.Backup != "" {
+		msg = "Old file kept as " + m.shownPath(w.Backup) + ". " + msg
+	}
+	m.info(msg)
 	return nil
 }
 
@@ -785,7 +796,11 @@ func (m *Model) open(name string) tea.Cmd {
 	}
 	sc.Model = m.sc.Model // the TAG model is the session's, not the file's
 	m.lastPath = strings.TrimSpace(name)
-	cmd := m.apply(sc, "Opened "+m.shownPath(path)+" (u goes back to what you had).")
+	note := "Opened " + m.shownPath(path) + " (u goes back to what you had)."
+	if sv := sc.Saved; sv != nil && sv.HasBlend() {
+		note = fmt.Sprintf("Opened %s, saved at %.2f %s/t on %s (u goes back).", m.shownPath(path), sv.CostPerTonne, currencyOf(sc), sv.At.Format("2006-01-02"))
+	}
+	cmd := m.apply(sc, note)
 	m.dirty = false
 	m.cursor = [numPanels]int{}
 	return cmd

@@ -122,8 +122,11 @@ func f1(v float64) string {
 	return fmt.Sprintf("%.1f", v)
 }
 
-func (m *Model) currency() string {
-	if c := m.sc.Catalogue.Currency; c != "" {
+func (m *Model) currency() string { return currencyOf(m.sc) }
+
+// currencyOf is the currency a scenario's prices are in, for display.
+func currencyOf(sc *Scenario) string {
+	if c := sc.Catalogue.Currency; c != "" {
 		return c
 	}
 	return "cur."
