@@ -44,18 +44,26 @@ type compareOut struct {
 	Caution  string    `json:"caution"`
 }
 
+// savedPair is a demo scenario with a note and its result saved on
+// 2025-11-03, and the same with palm at another price that still carries
+// that result: compare must flag it.
+func savedPair(t *testing.T, spec, note string, palm float64) (base, dear *tui.Scenario) {
+	t.Helper()
+	base = demoScenario(t, spec).WithNote(note)
+	base.Saved = tui.SolvedOf(solveScenario(t, base), time.Date(2025, 11, 3, 8, 30, 0, 0, time.UTC))
+	dear, err := base.WithStock("palm", tui.FieldPrice, palm)
+	require.NoError(t, err)
+	dear.Saved = base.Saved
+	return base, dear
+}
+
 // compare's JSON gives, for each file, what an independent solve of that
 // scenario gives; the cost is also the blend's shares times the stocks'
 // prices (the definition of a blend's cost per tonne); the saved result is
 // flagged where it no longer holds.
 func TestCompareJSONMatchesIndependentSolves(t *testing.T) {
 	dir := t.TempDir()
-	base := demoScenario(t, "laminating").WithNote("winter prices")
-	base.Saved = tui.SolvedOf(solveScenario(t, base), time.Date(2025, 11, 3, 8, 30, 0, 0, time.UTC))
-	dear, err := base.WithStock("palm", tui.FieldPrice, 1100)
-	require.NoError(t, err)
-	// the file keeps the result of the cheaper palm: compare must flag it
-	dear.Saved = base.Saved
+	base, dear := savedPair(t, "laminating", "winter prices", 1100)
 	out, err := dear.WithAllowed("palm-st-hard", false)
 	require.NoError(t, err)
 	files := []string{
@@ -125,11 +133,7 @@ func TestCompareJSONMatchesIndependentSolves(t *testing.T) {
 
 func TestCompareText(t *testing.T) {
 	dir := t.TempDir()
-	base := demoScenario(t, "shortening").WithNote("line 2, night shift")
-	base.Saved = tui.SolvedOf(solveScenario(t, base), time.Date(2025, 11, 3, 8, 30, 0, 0, time.UTC))
-	dear, err := base.WithStock("palm", tui.FieldPrice, 1200)
-	require.NoError(t, err)
-	dear.Saved = base.Saved
+	base, dear := savedPair(t, "shortening", "line 2, night shift", 1200)
 	a, b := saveScenario(t, dir, "a.toml", base), saveScenario(t, dir, "b.toml", dear)
 	code, out, errs := run(t, "compare", a, b)
 	require.Equal(t, 0, code, errs)
