@@ -17,7 +17,7 @@ import (
 )
 
 func (a *app) solve(args []string) error {
-	fs := a.newFlags("solve", `[--stocks F] [--spec F | --scenario F] [--format text|json|csv] [--mps FILE] [--svg FILE] [--temps "5,10,37"]`,
+	fs := a.newFlags("solve", `[--stocks F --spec F | --scenario F] [--format text|json|csv] [--mps FILE] [--svg FILE] [--temps "5,10,37"]`,
 		"Cheapest blend of the stocks that meets the spec: a linear programme (lipoplan's own simplex; integer\n"+
 			"rules max_stocks and smallest_share by branch and bound), with the cost of every binding limit, price ranging per stock\n"+
 			"and, when the spec cannot be met, the smallest relaxation that would make it feasible (exit 3).")

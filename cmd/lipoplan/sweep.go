@@ -15,7 +15,7 @@ import (
 )
 
 func (a *app) sweep(args []string) error {
-	fs := a.newFlags("sweep", `--price id=FROM:TO:STEPS [--stocks F] [--spec F | --scenario F] [--format text|json] [--svg FILE]`,
+	fs := a.newFlags("sweep", `--price id=FROM:TO:STEPS [--stocks F --spec F | --scenario F] [--format text|json] [--svg FILE]`,
 		"Solve the spec over a range of one stock's price: the cheapest blend and its cost at each step,\n"+
 			"and the prices at which the blend changes (breakpoints). Tells a buyer at what price a stock\n"+
 			"starts or stops paying its way.")
