@@ -86,14 +86,7 @@ func (m *Model) sfcPanel(w, h int) []string {
 	if m.snap.Feasible() {
 		pts, gaps = m.snap.Curve, m.snap.CurveGaps
 	}
-	top := 10.0
-	for _, l := range spec.SFC {
-		if l.HasMax() {
-			top = math.Max(top, l.Max)
-		} else if l.HasMin() {
-			top = math.Max(top, l.Min)
-		}
-	}
+	top := math.Max(10, bandTop(spec))
 	for _, p := range pts {
 		top = math.Max(top, p.Solid)
 	}
@@ -116,42 +109,10 @@ func (m *Model) sfcPanel(w, h int) []string {
 		}
 	}
 	top = math.Min(100, math.Ceil(top/10)*10)
-	c := &sfcChart{w: max(10, w-8), h: max(3, h-5), lo: lo, hi: hi, top: top}
-	c.cells = make([]cellKind, c.w*c.h)
-	// faint grid at every 10 % solid
-	for v := 10.0; v < top; v += 10 {
-		y := c.row(v)
-		for x := 0; x < c.w; x += 2 {
-			c.set(x, y, cellGrid)
-		}
-	}
-	// spec band: three columns wide at each spec temperature
-	for _, l := range spec.SFC {
-		lo, hi := 0.0, top
-		if l.HasMin() {
-			lo = l.Min
-		}
-		if l.HasMax() {
-			hi = math.Min(l.Max, top)
-		}
-		x := c.col(l.Temp)
-		for y := c.row(hi); y <= c.row(lo); y++ {
-			for dx := -1; dx <= 1; dx++ {
-				c.set(x+dx, y, cellBand)
-			}
-		}
-	}
+	c := newSFCChart(max(10, w-8), max(3, h-5), lo, hi, top, spec.SFC)
 	plot(c, pred, cellPred)
 	plot(c, pts, cellCurve) // the blend, drawn over the prediction
-	for _, l := range spec.SFC {
-		if v, ok := interp(pts, l.Temp); ok {
-			k := cellOut
-			if inBand(l, v) {
-				k = cellIn
-			}
-			c.set(c.col(l.Temp), c.row(v), k)
-		}
-	}
+	markSpec(c, spec.SFC, pts)
 
 	sub := " · blend (linear in measured curves) and spec band"
 	if m.snap.Feasible() && m.snap.Result.Process != nil && len(m.snap.Result.Process.Feed) > 0 &&
@@ -162,14 +123,7 @@ func (m *Model) sfcPanel(w, h int) []string {
 		sub = " · measured-linear • and TAG model ∘ " + overlayTitle(overlayMethods[m.overlay-1])
 	}
 	out := []string{" " + st.head.Render("SFC, % solid, against °C") + st.muted.Render(fit(sub, max(0, w-26)))}
-	labels := map[int]string{}
-	step := 10.0
-	if float64(c.h-1)/(top/10) < 2 {
-		step = 20
-	}
-	for v := 0.0; v <= top+1e-9; v += step {
-		labels[c.row(v)] = fmt.Sprintf("%4.0f ", v)
-	}
+	labels := axisLabels(c, top)
 	for y := 0; y < c.h; y++ {
 		label, ok := labels[y]
 		if !ok {
@@ -206,6 +160,75 @@ func (m *Model) sfcPanel(w, h int) []string {
 		out = append(out, m.sfcSummary(pts, gaps))
 	}
 	return out
+}
+
+// bandTop is the highest % solid a spec's SFC limits name.
+func bandTop(spec *catalogue.Spec) float64 {
+	top := 0.0
+	for _, l := range spec.SFC {
+		if l.HasMax() {
+			top = math.Max(top, l.Max)
+		} else if l.HasMin() {
+			top = math.Max(top, l.Min)
+		}
+	}
+	return top
+}
+
+// newSFCChart is an empty w×h canvas over lo..hi °C and 0..top % solid with
+// a faint grid every 10 % solid and the spec's bands shaded, three columns
+// wide at each limit's temperature.
+func newSFCChart(w, h int, lo, hi, top float64, bands []catalogue.SFCLimit) *sfcChart {
+	c := &sfcChart{w: w, h: h, lo: lo, hi: hi, top: top, cells: make([]cellKind, w*h)}
+	for v := 10.0; v < top; v += 10 {
+		y := c.row(v)
+		for x := 0; x < c.w; x += 2 {
+			c.set(x, y, cellGrid)
+		}
+	}
+	for _, l := range bands {
+		lo, hi := 0.0, top
+		if l.HasMin() {
+			lo = l.Min
+		}
+		if l.HasMax() {
+			hi = math.Min(l.Max, top)
+		}
+		x := c.col(l.Temp)
+		for y := c.row(hi); y <= c.row(lo); y++ {
+			for dx := -1; dx <= 1; dx++ {
+				c.set(x+dx, y, cellBand)
+			}
+		}
+	}
+	return c
+}
+
+// markSpec marks the curve at each limit's temperature: inside its band or not.
+func markSpec(c *sfcChart, bands []catalogue.SFCLimit, pts []catalogue.Point) {
+	for _, l := range bands {
+		if v, ok := interp(pts, l.Temp); ok {
+			k := cellOut
+			if inBand(l, v) {
+				k = cellIn
+			}
+			c.set(c.col(l.Temp), c.row(v), k)
+		}
+	}
+}
+
+// axisLabels are the % solid labels of the canvas rows: every 10, or every
+// 20 where the rows are too few.
+func axisLabels(c *sfcChart, top float64) map[int]string {
+	labels := map[int]string{}
+	step := 10.0
+	if float64(c.h-1)/(top/10) < 2 {
+		step = 20
+	}
+	for v := 0.0; v <= top+1e-9; v += step {
+		labels[c.row(v)] = fmt.Sprintf("%4.0f ", v)
+	}
+	return labels
 }
 
 // plot draws a curve on the canvas, joined with vertical strokes where it

@@ -13,6 +13,11 @@
 // never solve. A later stage (predicted SFC from TAGs, a reactor step) is one
 // more step in Evaluate and one more field of Snapshot.
 //
+// Beside it the Model keeps a bench for comparison: the base and up to three
+// variants, each an unchanging Scenario with its own Snapshot, evaluated in
+// the background like an edit. R's relaxation is evaluated the same way as a
+// preview before it becomes an edit.
+//
 // # Screen
 //
 // Header (spec, batch, cost per tonne or "spec cannot be met"), the panel
@@ -31,22 +36,28 @@
 //	              against the spec band
 //	5 TAG classes S3, S2U (SUS, SSU), SU2, U3 of the blend as mixed and after
 //	              full chemical or enzymatic (sn-1,3) interesterification
+//	6 Compare     the base, the variants and the scenario being edited side by
+//	              side: cost and its change, blend, IV, SAFA, trans, SFC at the
+//	              spec temperatures and notes; or their SFC curves
 //
 // # Keys
 //
-//	1-5 tab shift+tab   panels          ↑↓ k j pgup pgdn g G  move
+//	1-6 tab shift+tab   panels          ↑↓ k j pgup pgdn g G  move
 //	← → h l             column          enter e               edit (empty = none)
 //	[ ]                 nudge           space x               allow / leave out
 //	n +                 add a limit     d delete              drop a limit
-//	R                   apply relaxation
+//	R                   cost the relaxation, then enter applies it, esc keeps the spec
+//	v / b               keep as variant / make it the base    a  note
+//	6: ← → enter d c    pick, work on, drop a column; figures or curves
 //	u ctrl+z / U ctrl+y undo / redo     s / o                 save / open scenario
 //	W                   write stocks and spec back to their files
 //	?                   all keys        q ctrl+c              quit
 //
 // # Files
 //
-// A scenario is one TOML file (see EncodeScenario) with [scenario], [stocks]
-// and [spec] sections, written atomically. A local workspace takes any path;
+// A scenario is one TOML file (see EncodeScenario) with [scenario] (its
+// note), [result] (the solve when it was saved, see Solved), [stocks] and
+// [spec] sections, written atomically. A local workspace takes any path;
 // a served one (Files.Confined) takes plain names inside the server's
 // scenario folder and, unless the server was started writable
 // (Files.ReadOnly false), refuses to save or write back at all.

@@ -28,6 +28,7 @@ type Snapshot struct {
 
 	TAG TAGView // TAG classes as blended and after interesterification
 
+	At   time.Time     // when Evaluate started
 	Took time.Duration // wall time of Evaluate
 }
 
@@ -87,7 +88,7 @@ func (s *Snapshot) Range(id string) (optimise.Range, bool) {
 // drawing.
 func Evaluate(sc *Scenario, rev int) (snap *Snapshot) {
 	start := time.Now()
-	snap = &Snapshot{Rev: rev, Scenario: sc}
+	snap = &Snapshot{Rev: rev, Scenario: sc, At: start}
 	defer func() {
 		if r := recover(); r != nil {
 			snap.Result = nil

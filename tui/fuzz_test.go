@@ -12,13 +12,13 @@ import (
 )
 
 // fuzzKeys are the keys a fuzz step may press: panels, moves, every edit key
-// (enter, [ ], space, n, d, R, p, u, U, s, o, W, ?), prompt editing and
-// accept/cancel. Typed values come from the fuzzer's second input.
+// (enter, [ ], space, n, d, R, p, u, U, s, o, W, ?), prompt editing,
+// accept/cancel and the comparison's keys (6, v, b, a, c). Typed values come from the fuzzer's second input.
 func fuzzKeys() []string {
 	return []string{
 		"1", "2", "3", "4", "5", "<tab>", "<s-tab>", "<up>", "<down>", "<left>", "<right>", "g", "G",
 		"<enter>", "]", "[", "<space>", "n", "d", "R", "u", "U", "s", "o", "W", "?",
-		"<ctrl+u>", "<bs>", "<esc>",
+		"<ctrl+u>", "<bs>", "<esc>", "6", "v", "b", "a", "c",
 	}
 }
 
@@ -36,6 +36,7 @@ func FuzzWorkspaceEdits(f *testing.F) {
 	f.Add(fuzzOps("3", "g", "<enter>", "=", "<enter>", "<down>", "<enter>", "=", "<enter>", "u", "U"), "1e-320|0.0005|1e6|12,5")
 	f.Add(fuzzOps("n", "=", "<enter>", "<enter>", "=", "<enter>", "<left>", "<enter>", "=", "<enter>", "d", "R"), "sfc 30|1e300|-1e-9|inf")
 	f.Add(fuzzOps("3", "G", "<enter>", "=", "<enter>", "<up>", "<enter>", "=", "<enter>", "s", "o", "=", "<enter>", "W", "?"), "1e300|1e25|../../etc/passwd|x")
+	f.Add(fuzzOps("2", "]", "v", "=", "<enter>", "a", "=", "<enter>", "6", "<left>", "<enter>", "c", "d", "b", "R", "<enter>"), "A\x1b[2J|\u202e note|1e25|")
 	dir := f.TempDir()
 	keys := fuzzKeys()
 	f.Fuzz(func(t *testing.T, ops []byte, values string) {

@@ -17,6 +17,8 @@ type keyMap struct {
 	Match                 key.Binding
 	Undo, Redo            key.Binding
 	Save, Open, WriteBack key.Binding
+	Keep, Base, Note      key.Binding // variants to compare, the scenario's note
+	Choose, Drop, Curves  key.Binding // 6 Compare: work on a column, drop it, figures|curves
 	Quit, Keys            key.Binding
 	Accept, Cancel        key.Binding
 }
@@ -47,6 +49,12 @@ func newKeyMap() keyMap {
 		Save:      key.NewBinding(key.WithKeys("s", "ctrl+s"), key.WithHelp("s", "save")),
 		Open:      key.NewBinding(key.WithKeys("o"), key.WithHelp("o", "open")),
 		WriteBack: key.NewBinding(key.WithKeys("W"), key.WithHelp("W", "write")),
+		Keep:      key.NewBinding(key.WithKeys("v"), key.WithHelp("v", "keep")),
+		Base:      key.NewBinding(key.WithKeys("b"), key.WithHelp("b", "make base")),
+		Note:      key.NewBinding(key.WithKeys("a"), key.WithHelp("a", "note")),
+		Choose:    key.NewBinding(key.WithKeys("enter", "e"), key.WithHelp("enter", "work on")),
+		Drop:      key.NewBinding(key.WithKeys("d", "delete"), key.WithHelp("d", "drop")),
+		Curves:    key.NewBinding(key.WithKeys("c"), key.WithHelp("c", "curves")),
 		Quit:      key.NewBinding(key.WithKeys("q", "ctrl+c"), key.WithHelp("q", "quit")),
 		Keys:      key.NewBinding(key.WithKeys("?"), key.WithHelp("?", "keys")),
 		Accept:    key.NewBinding(key.WithKeys("enter"), key.WithHelp("enter", "apply")),
@@ -54,7 +62,7 @@ func newKeyMap() keyMap {
 	}
 	for i := range k.Panel {
 		d := string(rune('1' + i))
-		k.Panel[i] = key.NewBinding(key.WithKeys(d), key.WithHelp("1-5", "panel"))
+		k.Panel[i] = key.NewBinding(key.WithKeys(d), key.WithHelp("1-6", "panel"))
 	}
 	return k
 }
@@ -73,8 +81,10 @@ func (k keyMap) helpFor(p panel, infeasible bool) []key.Binding {
 		out = append(out, k.Left, k.Edit, k.Raise, k.NewLimit, k.DropLimit)
 	case panelSFC:
 		out = append(out, k.Predict, k.Match, k.Panel[0])
+	case panelCompare:
+		return append(out, k.Left, k.Choose, k.Drop, k.Curves, k.Keep, k.Undo, k.Save, k.Quit, k.Keys)
 	default:
-		out = append(out, k.Panel[0], k.Redo, k.Open, k.WriteBack)
+		return append(out, k.Panel[0], k.Keep, k.Open, k.Undo, k.Redo, k.Save, k.Quit, k.Keys)
 	}
 	return append(out, k.Undo, k.Save, k.Quit, k.Keys)
 }
@@ -82,7 +92,7 @@ func (k keyMap) helpFor(p panel, infeasible bool) []key.Binding {
 // keyGroups is the full key list shown by ?.
 func (k keyMap) keyGroups() [][2]string {
 	return [][2]string{
-		{"1…5  tab  shift+tab", "panels: Blend Stocks Limits SFC-curve TAG-classes"},
+		{"1…6  tab  shift+tab", "panels: Blend Stocks Limits SFC-curve TAG-classes Compare"},
 		{"↑↓ k j pgup pgdn g G", "move the cursor"},
 		{"← →  h l", "column: price|on hand (Stocks), min|max (Limits)"},
 		{"enter  e", "edit the value (empty = no bound, or unlimited)"},
@@ -94,7 +104,10 @@ func (k keyMap) keyGroups() [][2]string {
 		{"p", "SFC curve: overlay the TAG model's prediction, as blended / chemical IE / enzymatic IE / off"},
 		{"m", "match a fat: its measured curve ± a tolerance becomes the SFC bands, trans <= 1, the fat left out"},
 		{"u ctrl+z / U ctrl+y", "undo / redo an edit"},
-		{"s / o", "save the scenario as one TOML file / open one"},
+		{"v / b", "keep the scenario as a variant to compare (up to 3) / make it the base"},
+		{"6: ← → enter d c", "Compare: pick a column, work on it, drop it, figures or SFC curves"},
+		{"a", "write a note on the scenario (saved with it)"},
+		{"s / o", "save the scenario and its result as one TOML file / open one"},
 		{"W", "write stocks and spec back to the files they came from"},
 		{"q  ctrl+c", "quit (q asks again while edits are unsaved)"},
 	}

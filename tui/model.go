@@ -24,11 +24,12 @@ const (
 	panelLimits
 	panelSFC
 	panelTAG
+	panelCompare
 	numPanels
 )
 
 func (p panel) title() string {
-	return [...]string{"Blend", "Stocks", "Limits", "SFC curve", "TAG classes"}[p]
+	return [...]string{"Blend", "Stocks", "Limits", "SFC curve", "TAG classes", "Compare"}[p]
 }
 
 // Default size before the terminal reports its own.
@@ -49,6 +50,9 @@ const (
 	promptSave
 	promptOpen
 	promptMatch
+	promptVariant // the name of a variant to keep
+	promptNote    // the scenario's note
+	promptRelax   // the relaxation's preview: enter applies, esc cancels
 )
 
 type prompt struct {
@@ -94,6 +98,12 @@ type Model struct {
 	showKeys bool // the full key list is open
 	overlay  int  // SFC curve: 0 off, else 1 + index into overlayMethods
 
+	bench    []kept        // bench[0] is the base, then up to maxVariants variants
+	benchID  int           // the last id given to a kept scenario
+	benchCol int           // 6 Compare: the column under the cursor
+	curves   bool          // 6 Compare: SFC curves instead of figures
+	relax    *relaxPreview // R: the relaxed scenario waiting for enter or esc
+
 	keys   keyMap
 	help   help.Model
 	styles styles
@@ -120,6 +130,7 @@ func NewWithScenario(sc *Scenario, source string, files Files) *Model {
 		styles: newStyles(),
 	}
 	m.input = lineEdit{limit: 200, cursor: m.styles.cell, label: m.styles.key}
+	m.bench = []kept{m.newKept("base", sc, nil)}
 	m.help.Styles.ShortKey = m.styles.key
 	m.help.Styles.ShortDesc = m.styles.muted
 	m.help.Styles.Ellipsis = m.styles.muted
@@ -186,6 +197,8 @@ func (m *Model) noteOutcome(prev *Snapshot) {
 		d := m.snap.Result.CostPerTonne - prev.Result.CostPerTonne
 		m.message = strings.TrimSpace(fmt.Sprintf("%s Cost %.2f → %.2f %s/t (%+.2f).", m.message,
 			prev.Result.CostPerTonne, m.snap.Result.CostPerTonne, m.currency(), d))
+	default:
+		m.message = strings.TrimSpace(fmt.Sprintf("%s Cost now %.2f %s/t.", m.message, m.snap.Result.CostPerTonne, m.currency()))
 	}
 }
 
@@ -210,13 +223,20 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 			m.snap = msg.snap
 			m.noteOutcome(prev)
 		}
+		m.fillKept(msg.snap)
 		if m.queued || m.snap.Rev < m.rev {
 			m.queued = false
 			return m, m.evaluate()
 		}
 		return m, nil
+	case keptMsg:
+		m.keptArrived(msg)
+		return m, nil
+	case relaxMsg:
+		m.relaxArrived(msg)
+		return m, nil
 	case tea.PasteMsg:
-		if m.prompt.kind != promptNone {
+		if m.prompt.kind != promptNone && m.prompt.kind != promptRelax {
 			m.input.insert(msg.Content)
 		}
 		return m, nil
@@ -236,6 +256,11 @@ func (m *Model) key(k tea.KeyPressMsg) tea.Cmd {
 	if m.showKeys {
 		m.showKeys = false // any key closes the key list
 		return nil
+	}
+	if m.panel == panelCompare {
+		if cmd, ok := m.compareKey(k); ok {
+			return cmd
+		}
 	}
 	switch {
 	case key.Matches(k, ks.Keys):
@@ -310,6 +335,16 @@ func (m *Model) key(k tea.KeyPressMsg) tea.Cmd {
 		return m.ask(prompt{kind: promptMatch}, "match which fat (id and tolerance in % solid, e.g. ph-soy 3): ", m.matchGuess())
 	case key.Matches(k, ks.WriteBack):
 		return m.writeBack()
+	case key.Matches(k, ks.Keep):
+		if len(m.bench) > maxVariants {
+			m.failf("%d variants are kept already: drop one on 6 Compare (d) first", maxVariants)
+			return nil
+		}
+		return m.ask(prompt{kind: promptVariant}, "keep as variant, name: ", m.variantName())
+	case key.Matches(k, ks.Base):
+		return m.makeBase()
+	case key.Matches(k, ks.Note):
+		return m.ask(prompt{kind: promptNote}, "note (saved with the scenario): ", oneLine(m.sc.Note))
 	default:
 		for i, b := range ks.Panel {
 			if key.Matches(k, b) {
@@ -384,6 +419,9 @@ func (m *Model) closePrompt() {
 }
 
 func (m *Model) promptKey(k tea.KeyPressMsg) tea.Cmd {
+	if m.prompt.kind == promptRelax {
+		return m.relaxKey(k)
+	}
 	switch {
 	case key.Matches(k, m.keys.Cancel):
 		m.closePrompt()
@@ -507,6 +545,20 @@ func (m *Model) finishPrompt(p prompt, text string) tea.Cmd {
 		}
 		m.col = 1
 		return m.apply(next, fmt.Sprintf("Added limit %s with no bounds: press enter to set its maximum (← for minimum).", k))
+	case promptVariant:
+		return m.keep(text)
+	case promptNote:
+		next := m.sc.WithNote(text)
+		kept := m.keptIndex()
+		cmd := m.apply(next, "Note set (s saves it with the scenario).")
+		if kept >= 0 {
+			m.bench[kept].sc = next // the note is on the kept scenario too: its numbers are the same
+		}
+		if next.Note == "" {
+			m.info("Note cleared.")
+		}
+		m.editNote = false // a note changes no cost
+		return cmd
 	case promptSave:
 		return m.save(text)
 	case promptOpen:
@@ -685,6 +737,9 @@ func (m *Model) dropRow() tea.Cmd {
 	return cmd
 }
 
+// applyRelaxation costs the suggested relaxation before it is applied: the
+// relaxed scenario is evaluated in the background and shown as a preview;
+// enter then applies it, esc keeps the spec as it is (relaxKey).
 func (m *Model) applyRelaxation() tea.Cmd {
 	s := m.snap
 	if s == nil || s.Result == nil || len(s.Result.Relaxation) == 0 || m.Pending() {
@@ -696,11 +751,70 @@ func (m *Model) applyRelaxation() tea.Cmd {
 		m.fail(err)
 		return nil
 	}
-	note := "Applied the suggested relaxation (u undoes)."
-	if len(skipped) > 0 {
-		note = fmt.Sprintf("Applied the relaxation except %s (change those by hand).", strings.Join(skipped, ", "))
+	m.relax = &relaxPreview{sc: next, skipped: skipped}
+	m.prompt = prompt{kind: promptRelax}
+	m.info("Costing the relaxed limits…")
+	return func() tea.Msg { return relaxMsg{sc: next, snap: Evaluate(next, 0)} }
+}
+
+// relaxPreview is the relaxed scenario R offers, and its evaluation once in.
+type relaxPreview struct {
+	sc      *Scenario
+	skipped []string
+	snap    *Snapshot
+}
+
+// relaxMsg carries the evaluation of a relaxation's preview.
+type relaxMsg struct {
+	sc   *Scenario
+	snap *Snapshot
+}
+
+func (m *Model) relaxArrived(msg relaxMsg) {
+	if m.relax == nil || m.relax.sc != msg.sc {
+		return // cancelled, or an older preview
 	}
-	return m.apply(next, note)
+	m.relax.snap = msg.snap
+	m.info(m.relaxSummary())
+}
+
+// relaxSummary says what the relaxed limits give, for the status line.
+func (m *Model) relaxSummary() string {
+	p := m.relax
+	switch {
+	case p.snap == nil:
+		return "Costing the relaxed limits…"
+	case p.snap.Feasible():
+		s := fmt.Sprintf("At the relaxed limits the blend costs %.2f %s/t.", p.snap.Result.CostPerTonne, m.currency())
+		if len(p.skipped) > 0 {
+			s += " Not applied: " + strings.Join(p.skipped, ", ") + "."
+		}
+		return s + " enter applies, esc keeps the spec."
+	case p.snap.Err != nil:
+		return "The relaxed limits do not solve: " + p.snap.Err.Error()
+	}
+	return "Even relaxed the spec cannot be met; enter applies it anyway, esc keeps the spec."
+}
+
+// relaxKey answers the preview: enter applies the relaxation, esc cancels;
+// other keys are ignored while it is open.
+func (m *Model) relaxKey(k tea.KeyPressMsg) tea.Cmd {
+	p := m.relax
+	switch {
+	case key.Matches(k, m.keys.Cancel):
+		m.relax = nil
+		m.closePrompt()
+		m.info("Relaxation not applied; the spec is as it was.")
+	case key.Matches(k, m.keys.Accept):
+		m.relax = nil
+		m.closePrompt()
+		note := "Applied the suggested relaxation (u undoes)."
+		if len(p.skipped) > 0 {
+			note = fmt.Sprintf("Applied the relaxation except %s (change those by hand).", strings.Join(p.skipped, ", "))
+		}
+		return m.apply(p.sc, note)
+	}
+	return nil
 }
 
 func (m *Model) undoEdit() tea.Cmd {
@@ -745,7 +859,14 @@ func (m *Model) save(name string) tea.Cmd {
 		m.fail(err)
 		return nil
 	}
-	data, err := EncodeScenario(m.sc)
+	// the result goes with the scenario once it is in; a save while the
+	// edit is still being solved keeps the scenario alone
+	file := *m.sc
+	file.Saved = nil
+	if !m.Pending() && m.snap.Result != nil {
+		file.Saved = SolvedOf(m.snap.Result, m.snap.At)
+	}
+	data, err := EncodeScenario(&file)
 	if err != nil {
 		m.fail(err)
 		return nil
@@ -759,11 +880,15 @@ func (m *Model) save(name string) tea.Cmd {
 	}
 	m.lastPath = strings.TrimSpace(name)
 	m.dirty = false
-	if w.Backup != "" {
-		m.info("Old file kept as " + m.shownPath(w.Backup) + ". Saved the scenario to " + m.shownPath(path) + ".")
-	} else {
-		m.info("Saved the scenario to " + m.shownPath(path) + ".")
+	what := "the scenario and its result"
+	if file.Saved == nil {
+		what = "the scenario (still solving: without its result)"
 	}
+	msg := "Saved " + what + " to " + m.shownPath(path) + "."
+	if w.Backup != "" {
+		msg = "Old file kept as " + m.shownPath(w.Backup) + ". " + msg
+	}
+	m.info(msg)
 	return nil
 }
 
@@ -785,7 +910,11 @@ func (m *Model) open(name string) tea.Cmd {
 	}
 	sc.Model = m.sc.Model // the TAG model is the session's, not the file's
 	m.lastPath = strings.TrimSpace(name)
-	cmd := m.apply(sc, "Opened "+m.shownPath(path)+" (u goes back to what you had).")
+	note := "Opened " + m.shownPath(path) + " (u goes back to what you had)."
+	if sv := sc.Saved; sv != nil && sv.HasBlend() {
+		note = fmt.Sprintf("Opened %s, saved at %.2f %s/t on %s (u goes back).", m.shownPath(path), sv.CostPerTonne, currencyOf(sc), sv.At.Format("2006-01-02"))
+	}
+	cmd := m.apply(sc, note)
 	m.dirty = false
 	m.cursor = [numPanels]int{}
 	return cmd

@@ -192,7 +192,7 @@ func TestImpossibleSpecShowsRelaxation(t *testing.T) {
 		d.requireFrame(80, 24)
 		assert.NotEmpty(t, strings.TrimSpace(strings.Join(strings.Split(d.screen(), "\n")[2:20], "")), "panel %d is not blank", p+1)
 	}
-	d.keys("R")
+	d.keys("R<enter>")
 	require.True(t, d.m.Snapshot().Feasible(), "applying the relaxation makes the spec feasible: %s", d.m.Message())
 }
 

@@ -23,6 +23,12 @@ type Scenario struct {
 	// the zero value is the uncalibrated default. It is a session setting,
 	// not saved in scenario files.
 	Model sle.Options
+	// Note is the user's own words about this scenario, saved with it.
+	Note string
+	// Saved is the result the scenario file held when it was read (nil
+	// when it held none). Every edit but the note drops it: it no longer
+	// describes the scenario.
+	Saved *Solved
 }
 
 // NewScenario wraps deep copies of cat and spec, so edits never reach the
@@ -31,7 +37,7 @@ func NewScenario(cat *catalogue.Catalogue, spec *catalogue.Spec) *Scenario {
 	return &Scenario{Catalogue: cat.Clone(), Spec: spec.Clone(), Excluded: map[string]bool{}}
 }
 
-// Clone returns a deep copy.
+// Clone returns a deep copy for an edit: everything but the saved result.
 func (s *Scenario) Clone() *Scenario {
 	ex := make(map[string]bool, len(s.Excluded))
 	for k, v := range s.Excluded {
@@ -39,7 +45,16 @@ func (s *Scenario) Clone() *Scenario {
 			ex[k] = true
 		}
 	}
-	return &Scenario{Catalogue: s.Catalogue.Clone(), Spec: s.Spec.Clone(), Excluded: ex, Model: s.Model}
+	return &Scenario{Catalogue: s.Catalogue.Clone(), Spec: s.Spec.Clone(), Excluded: ex, Model: s.Model, Note: s.Note}
+}
+
+// WithNote returns a new scenario with the note set to text (surrounding
+// spaces trimmed); the saved result stays, as a note changes no number.
+func (s *Scenario) WithNote(text string) *Scenario {
+	out := s.Clone()
+	out.Note = strings.TrimSpace(text)
+	out.Saved = s.Saved
+	return out
 }
 
 // ExcludedIDs lists the left-out stocks in id order.

@@ -17,8 +17,20 @@ import (
 //
 //	# lipoplan scenario
 //	[scenario]
-//	format = 1
+//	format = 2
 //	excluded = ["shea-st"]         # stocks left out of the blend
+//	note = "palm up 10 %"          # optional: the user's own words
+//
+//	[result]                       # optional: what lipoplan found when it saved
+//	solved = 2025-06-02T09:14:00Z  # TOML date-time, UTC
+//	status = "optimal"             # optimal | infeasible | not_proven
+//	engine = "lipoplan-simplex"
+//	cost_per_tonne = 1043.2156     # absent when no blend was found
+//	currency = "EUR"
+//	[[result.blend]]
+//	stock = "palm"
+//	pct = 41.25                    # % of batch
+//	tonnes = 8.25
 //
 //	[stocks]                       # exactly a stocks.toml, one level down
 //	currency = "EUR"
@@ -37,8 +49,11 @@ import (
 // read back by catalogue.ParseStocks and catalogue.ParseSpec, so they obey
 // the same strict rules (unknown keys are errors). The file is written by the
 // rules of every output (catalogue.Output): atomically, keeping a backup.
+//
+// Format 1 files (before notes and results) are read as they are; they may
+// not hold a note or a [result].
 
-const scenarioFormat = 1
+const scenarioFormat = 2
 
 // headerLine matches a TOML table or array-of-tables header line.
 var headerLine = regexp.MustCompile(`^(\s*)(\[\[?)\s*([^\[\]]+?)\s*(\]\]?)(.*)$`)
@@ -59,7 +74,8 @@ func nest(section string, doc []byte) string {
 	return b.String()
 }
 
-// EncodeScenario writes sc in the scenario file format.
+// EncodeScenario writes sc in the scenario file format, with its note and,
+// when sc.Saved is set, that result.
 func EncodeScenario(sc *Scenario) ([]byte, error) {
 	var stocks, spec bytes.Buffer
 	if err := catalogue.WriteStocks(&stocks, sc.Catalogue); err != nil {
@@ -68,16 +84,19 @@ func EncodeScenario(sc *Scenario) ([]byte, error) {
 	if err := catalogue.WriteSpec(&spec, sc.Spec); err != nil {
 		return nil, fmt.Errorf("scenario: %w", err)
 	}
-	ex := make([]string, 0, len(sc.Excluded))
-	for _, id := range sc.ExcludedIDs() {
-		ex = append(ex, fmt.Sprintf("%q", id))
+	head := fileHead{Scenario: fileMeta{Format: scenarioFormat, Excluded: append([]string{}, sc.ExcludedIDs()...), Note: sc.Note}}
+	if sc.Saved != nil {
+		head.Result = sc.Saved.file()
 	}
 	var b bytes.Buffer
 	b.WriteString("# lipoplan scenario: the stocks, the spec and the stocks left out of one what-if session.\n")
 	b.WriteString("# Predictions from it are estimates to be confirmed by lab analysis (GC FAME, pulsed-NMR SFC).\n")
-	b.WriteString("[scenario]\n")
-	fmt.Fprintf(&b, "format = %d\n", scenarioFormat)
-	fmt.Fprintf(&b, "excluded = [%s]\n\n", strings.Join(ex, ", "))
+	enc := toml.NewEncoder(&b)
+	enc.Indent = ""
+	if err := enc.Encode(head); err != nil {
+		return nil, fmt.Errorf("scenario: %w", err)
+	}
+	b.WriteString("\n")
 	b.WriteString(nest("stocks", stocks.Bytes()))
 	b.WriteString("\n")
 	b.WriteString(nest("spec", spec.Bytes()))
@@ -97,11 +116,21 @@ func SaveScenario(path string, sc *Scenario) error {
 	return nil
 }
 
+// fileMeta is the [scenario] table.
+type fileMeta struct {
+	Format   int      `toml:"format"`
+	Excluded []string `toml:"excluded"`
+	Note     string   `toml:"note,omitempty"`
+}
+
+// fileHead is what the scenario file holds above [stocks] and [spec].
+type fileHead struct {
+	Scenario fileMeta    `toml:"scenario"`
+	Result   *fileResult `toml:"result,omitempty"`
+}
+
 type rawScenario struct {
-	Scenario struct {
-		Format   int      `toml:"format"`
-		Excluded []string `toml:"excluded"`
-	} `toml:"scenario"`
+	fileHead
 	Stocks map[string]any `toml:"stocks"`
 	Spec   map[string]any `toml:"spec"`
 }
@@ -126,11 +155,13 @@ func DecodeScenario(name string, data []byte) (*Scenario, error) {
 	}
 	if len(keys) > 0 {
 		sort.Strings(keys)
-		return nil, catalogue.Badf("%s: unknown key %s (a scenario has [scenario] format/excluded, [stocks] and [spec])", name, strings.Join(keys, ", "))
+		return nil, catalogue.Badf("%s: unknown key %s (a scenario has [scenario] format/excluded/note, [result], [stocks] and [spec])", name, strings.Join(keys, ", "))
 	}
 	switch {
-	case raw.Scenario.Format != scenarioFormat:
-		return nil, catalogue.Badf("%s: [scenario] format = %d is not one this lipoplan reads (want %d); is this a scenario file?", name, raw.Scenario.Format, scenarioFormat)
+	case raw.Scenario.Format != 1 && raw.Scenario.Format != scenarioFormat:
+		return nil, catalogue.Badf("%s: [scenario] format = %d is not one this lipoplan reads (1 or %d); is this a scenario file?", name, raw.Scenario.Format, scenarioFormat)
+	case raw.Scenario.Format == 1 && (raw.Scenario.Note != "" || raw.Result != nil):
+		return nil, catalogue.Badf("%s: a format 1 scenario holds no note or [result]; set [scenario] format = %d", name, scenarioFormat)
 	case raw.Stocks == nil:
 		return nil, catalogue.Badf("%s: no [stocks] section; a scenario holds the stocks and the spec", name)
 	case raw.Spec == nil:
@@ -158,6 +189,12 @@ func DecodeScenario(name string, data []byte) (*Scenario, error) {
 			return nil, catalogue.Badf("%s: [scenario] excluded names stock %q, which is not in [stocks]; remove it from the list", name, id)
 		}
 		sc.Excluded[id] = true
+	}
+	sc.Note = raw.Scenario.Note
+	if raw.Result != nil {
+		if sc.Saved, err = raw.Result.solved(name, cat); err != nil {
+			return nil, err
+		}
 	}
 	return sc, nil
 }

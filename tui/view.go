@@ -70,6 +70,8 @@ func (m *Model) panelBody(w, bodyH int) []string {
 		return m.limitsPanel(w, bodyH)
 	case panelSFC:
 		return m.sfcPanel(w, bodyH)
+	case panelCompare:
+		return m.comparePanel(w, bodyH)
 	}
 	return m.tagPanel(w, bodyH)
 }
@@ -122,8 +124,11 @@ func f1(v float64) string {
 	return fmt.Sprintf("%.1f", v)
 }
 
-func (m *Model) currency() string {
-	if c := m.sc.Catalogue.Currency; c != "" {
+func (m *Model) currency() string { return currencyOf(m.sc) }
+
+// currencyOf is the currency a scenario's prices are in, for display.
+func currencyOf(sc *Scenario) string {
+	if c := sc.Catalogue.Currency; c != "" {
 		return c
 	}
 	return "cur."
@@ -192,12 +197,15 @@ func (m *Model) statusLine(w int) string {
 	case s.Result.Status == optimise.NotProven && len(s.Result.Notes) > 0:
 		return m.styles.msgErr.Render(" ✗ " + ansi.Truncate(s.Result.Notes[0], max(w-4, 10), "…"))
 	case s.Result.Status != optimise.Optimal:
-		return m.styles.msgErr.Render(" ✗ The spec cannot be met: 1 Blend shows the smallest relaxation; R applies it.")
+		return m.styles.msgErr.Render(" ✗ The spec cannot be met: 1 Blend shows the smallest relaxation; R costs it first.")
 	}
 	return m.styles.muted.Render(fmt.Sprintf(" Solved in %.1f ms by %s. Edit on 2 Stocks or 3 Limits; the blend follows.", float64(s.Took.Microseconds())/1000, s.Result.Engine))
 }
 
 func (m *Model) bottomLine(w int) string {
+	if m.prompt.kind == promptRelax {
+		return " " + m.styles.key.Render("Apply the relaxation?") + m.styles.muted.Render("   enter apply · esc keep the spec as it is")
+	}
 	if m.prompt.kind != promptNone {
 		return " " + m.input.view() + m.styles.muted.Render("   enter apply · esc cancel")
 	}
@@ -367,8 +375,18 @@ func (m *Model) relaxationLines(w int, r *optimise.Result) []string {
 		}
 		out = append(out, line)
 	}
+	if p := m.relax; p != nil {
+		line := st.warn.Render(" Costing the relaxed limits…")
+		if p.snap.Feasible() {
+			line = " " + st.head.Render(fmt.Sprintf("At these limits: %.2f %s/t", p.snap.Result.CostPerTonne, m.currency())) +
+				st.muted.Render(" · enter applies, esc keeps the spec")
+		} else if p.snap != nil {
+			line = st.bad.Render(" Even relaxed, the spec cannot be met") + st.muted.Render(" · enter applies anyway, esc keeps the spec")
+		}
+		return append(out, "", line)
+	}
 	return append(out, "",
-		" Press "+st.key.Render("R")+" to apply these changes (u undoes them),",
+		" Press "+st.key.Render("R")+" to see what these changes cost, then enter to apply them (u undoes),",
 		" or edit limits on 3 Limits, allow stocks or buy more on 2 Stocks.")
 }
 

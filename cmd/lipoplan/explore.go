@@ -48,10 +48,7 @@ func (a *app) load(f scenarioFlags) (*tui.Scenario, string, error) {
 
 func (a *app) loadScenario(f scenarioFlags) (*tui.Scenario, string, error) {
 	if *f.scenario != "" {
-		if *f.stocks != "" || *f.spec != "" {
-			return nil, "", catalogue.Badf("give either --scenario or --stocks/--spec, not both")
-		}
-		sc, err := tui.LoadScenario(*f.scenario)
+		sc, err := loadScenario(*f.scenario, *f.stocks, *f.spec)
 		if err != nil {
 			return nil, "", err
 		}

@@ -10,6 +10,7 @@ import (
 
 	"lipoplan/blend"
 	"lipoplan/catalogue"
+	"lipoplan/tui"
 )
 
 // stocks loads the catalogue at path ("" = the embedded demo stocks). Warnings
@@ -140,9 +141,11 @@ func dedupe(ts []float64) []float64 {
 }
 
 // inputs are the flags every command that reads the catalogue shares:
-// --stocks, --format and, where the command takes one, --spec.
+// --stocks, --format and, where the command takes one, --spec and
+// --scenario.
 type inputs struct {
 	stocks, spec, format *string
+	scenario             *string // nil unless the command takes --scenario
 	formats              []string
 	specMode             specMode
 }
@@ -168,6 +171,23 @@ func (a *app) inputFlags(fs *flag.FlagSet, sm specMode, specHelp string, formats
 	return in
 }
 
+// takeScenario adds --scenario: the stocks, spec and left-out stocks of a
+// scenario file saved by the workspace, instead of --stocks and --spec, so
+// that a workspace session is replayed as it was saved.
+func (in *inputs) takeScenario(fs *flag.FlagSet) *inputs {
+	in.scenario = fs.String("scenario", "", "a scenario `file` saved by the workspace (s), instead of --stocks and --spec")
+	return in
+}
+
+// loadScenario reads the scenario file at path, refused beside --stocks or
+// --spec (given as stocks and spec): one run reads one set of inputs.
+func loadScenario(path, stocks, spec string) (*tui.Scenario, error) {
+	if stocks != "" || spec != "" {
+		return nil, catalogue.Badf("give either --scenario or --stocks/--spec, not both")
+	}
+	return tui.LoadScenario(path)
+}
+
 // check refuses a --format the command does not write.
 func (in *inputs) check() error { return checkFormat(*in.format, in.formats...) }
 
@@ -175,10 +195,24 @@ func (in *inputs) check() error { return checkFormat(*in.format, in.formats...) 
 func (in *inputs) json() bool { return *in.format == "json" }
 
 // load checks --format, then loads the catalogue and the spec (nil when the
-// command takes none or an optional one is not given).
+// command takes none or an optional one is not given). From --scenario they
+// are what the optimiser sees of it (tui.Scenario.Effective): a left-out
+// stock comes with a [use] cap of 0.
 func (in *inputs) load(a *app) (*catalogue.Catalogue, *catalogue.Spec, error) {
 	if err := in.check(); err != nil {
 		return nil, nil, err
+	}
+	if in.scenario != nil && *in.scenario != "" {
+		specPath := ""
+		if in.spec != nil {
+			specPath = *in.spec
+		}
+		sc, err := loadScenario(*in.scenario, *in.stocks, specPath)
+		if err != nil {
+			return nil, nil, err
+		}
+		cat, spec := sc.Effective()
+		return cat, spec, nil
 	}
 	cat, err := a.stocks(*in.stocks)
 	if err != nil {
@@ -200,6 +234,9 @@ func (in *inputs) files() []string {
 	out := []string{*in.stocks}
 	if in.spec != nil {
 		out = append(out, *in.spec)
+	}
+	if in.scenario != nil {
+		out = append(out, *in.scenario)
 	}
 	return out
 }

@@ -17,13 +17,11 @@ import (
 )
 
 func (a *app) solve(args []string) error {
-	fs := a.newFlags("solve", `[--stocks F] [--spec F] [--format text|json|csv] [--mps FILE] [--svg FILE] [--temps "5,10,37"]`,
+	fs := a.newFlags("solve", `[--stocks F --spec F | --scenario F] [--format text|json|csv] [--mps FILE] [--svg FILE] [--temps "5,10,37"]`,
 		"Cheapest blend of the stocks that meets the spec: a linear programme (lipoplan's own simplex; integer\n"+
 			"rules max_stocks and smallest_share by branch and bound), with the cost of every binding limit, price ranging per stock\n"+
 			"and, when the spec cannot be met, the smallest relaxation that would make it feasible (exit 3).")
-	stocksPath := fs.String("stocks", "", "stock catalogue TOML (default: embedded demo stocks)")
-	specPath := fs.String("spec", "", "product spec TOML (default: the embedded demo laminating spec)")
-	format := fs.String("format", "text", "text, json or csv")
+	in := a.inputFlags(fs, demoSpec, "product spec TOML (default: the embedded demo laminating spec)", "text", "json", "csv").takeScenario(fs)
 	mps := fs.String("mps", "", "also write the model to this `file` in free MPS format (- = standard output, the report then goes to standard error)")
 	svg := fs.String("svg", "", "also draw the blend's SFC against the spec's bands into this SVG `file` (- = standard output)")
 	temps := fs.String("temps", "", `SFC temperatures to report, deg C (default 10,15,...,45 plus the spec's)`)
@@ -37,7 +35,7 @@ func (a *app) solve(args []string) error {
 		fmt.Fprintf(a.stderr, "lipoplan solve: --max-nodes must be at least 1 and --max-time above 0; run 'lipoplan solve --help'\n")
 		return errUsage
 	}
-	if err := checkFormat(*format, "text", "json", "csv"); err != nil {
+	if err := in.check(); err != nil {
 		return err
 	}
 	model, err := a.sfcModel(*calPath)
@@ -49,11 +47,7 @@ func (a *app) solve(args []string) error {
 	if err != nil {
 		return err
 	}
-	cat, err := a.stocks(*stocksPath)
-	if err != nil {
-		return err
-	}
-	spec, err := a.spec(*specPath, cat)
+	cat, spec, err := in.load(a)
 	if err != nil {
 		return err
 	}
@@ -69,7 +63,7 @@ func (a *app) solve(args []string) error {
 		if err != nil {
 			return fmt.Errorf("--mps: %w", err)
 		}
-		if err := a.write(mpsOut, lp, *stocksPath, *specPath); err != nil {
+		if err := a.write(mpsOut, lp, in.files()...); err != nil {
 			return err
 		}
 	}
@@ -78,11 +72,11 @@ func (a *app) solve(args []string) error {
 		return err
 	}
 	if *svg != "" && res.Status == optimise.Optimal {
-		if err := a.write(svgOut, sfcSVG(res, spec), *stocksPath, *specPath); err != nil {
+		if err := a.write(svgOut, sfcSVG(res, spec), in.files()...); err != nil {
 			return err
 		}
 	}
-	switch *format {
+	switch *in.format {
 	case "json":
 		out := solveJSON(res)
 		if res.Process != nil && res.Process.SFCModel == "predicted" {

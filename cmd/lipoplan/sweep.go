@@ -15,11 +15,11 @@ import (
 )
 
 func (a *app) sweep(args []string) error {
-	fs := a.newFlags("sweep", `--price id=FROM:TO:STEPS [--stocks F] [--spec F] [--format text|json] [--svg FILE]`,
+	fs := a.newFlags("sweep", `--price id=FROM:TO:STEPS [--stocks F --spec F | --scenario F] [--format text|json] [--svg FILE]`,
 		"Solve the spec over a range of one stock's price: the cheapest blend and its cost at each step,\n"+
 			"and the prices at which the blend changes (breakpoints). Tells a buyer at what price a stock\n"+
 			"starts or stops paying its way.")
-	in := a.inputFlags(fs, demoSpec, "product spec TOML (default: the embedded demo laminating spec)", "text", "json")
+	in := a.inputFlags(fs, demoSpec, "product spec TOML (default: the embedded demo laminating spec)", "text", "json").takeScenario(fs)
 	price := fs.String("price", "", `stock and price range, e.g. "palm=800:1400:13"`)
 	svg := fs.String("svg", "", "also draw cost per tonne against price into this SVG `file` (- = standard output, the report then goes to standard error)")
 	if err := a.parse(fs, args); err != nil {
