@@ -73,7 +73,9 @@ func (a *app) solve(args []string) error {
 			return err
 		}
 	}
-	res, err := optimise.Solve(cat, spec, optimise.Options{Temps: ts, Model: model, MaxNodes: *maxNodes, MaxTime: *maxTime})
+	bar := a.progress("branch and bound")
+	res, err := optimise.Solve(cat, spec, optimise.Options{Temps: ts, Model: model, MaxNodes: *maxNodes, MaxTime: *maxTime, Progress: bar.callback()})
+	bar.finish()
 	if err != nil {
 		return err
 	}
