@@ -17,7 +17,7 @@ import (
 )
 
 func (a *app) solve(args []string) error {
-	fs := a.newFlags("solve", `[--stocks F] [--spec F] [--format text|json|csv] [--mps FILE] [--svg FILE] [--temps "5,10,37"]`,
+	fs := a.newFlags("solve", `[--stocks F] [--spec F] [--format text|json|csv] [--mps FILE] [--svg FILE] [--sheet FILE] [--temps "5,10,37"]`,
 		"Cheapest blend of the stocks that meets the spec: a linear programme (lipoplan's own simplex; integer\n"+
 			"rules max_stocks and min_if_used by branch and bound), with the cost of every binding limit, price ranging per stock\n"+
 			"and, when the spec cannot be met, the smallest relaxation that would make it feasible (exit 3).")
@@ -26,6 +26,7 @@ func (a *app) solve(args []string) error {
 	format := fs.String("format", "text", "text, json or csv")
 	mps := fs.String("mps", "", "also write the model to this `file` in free MPS format (- = standard output, the report then goes to standard error)")
 	svg := fs.String("svg", "", "also draw the blend's SFC against the spec's bands into this SVG `file` (- = standard output)")
+	sheet := fs.String("sheet", "", "also write a printable blend sheet (HTML, A4) of the solved blend into this `file` (- = standard output)")
 	temps := fs.String("temps", "", `SFC temperatures to report, deg C (default 10,15,...,45 plus the spec's)`)
 	maxNodes := fs.Int("max-nodes", 100000, "integer rules: branch and bound solves at most this many LPs")
 	maxTime := fs.Duration("max-time", 60*time.Second, "integer rules: branch and bound runs at most this `duration`")
@@ -44,8 +45,8 @@ func (a *app) solve(args []string) error {
 	if err != nil {
 		return err
 	}
-	mpsOut, svgOut := output{"--mps", *mps}, output{"--svg", *svg}
-	report, err := a.reportTo(mpsOut, svgOut)
+	mpsOut, svgOut, sheetOut := output{"--mps", *mps}, output{"--svg", *svg}, output{"--sheet", *sheet}
+	report, err := a.reportTo(mpsOut, svgOut, sheetOut)
 	if err != nil {
 		return err
 	}
@@ -81,6 +82,11 @@ func (a *app) solve(args []string) error {
 	}
 	if *svg != "" && res.Status == optimise.Optimal {
 		if err := a.write(svgOut, sfcSVG(res, spec), *stocksPath, *specPath); err != nil {
+			return err
+		}
+	}
+	if *sheet != "" && len(res.Blend) > 0 {
+		if err := a.writeSheet(sheetOut, res, spec, cat, ts, model, *stocksPath, *specPath, *calPath); err != nil {
 			return err
 		}
 	}
