@@ -211,7 +211,10 @@ func titleCase(s string) string {
 	return strings.ToUpper(s[:1]) + s[1:]
 }
 
-// propertyRows are the blend's properties, each with the method behind it.
+// propertyRows are the blend's properties, each with the method behind it:
+// the calculation lipoplan makes (README, Methods) and, for the fatty-acid
+// sums, the lab method that gives the profile it starts from (GC of the
+// methyl esters, AOCS Ce 1h-05 / ISO 12966; method numbers from memory).
 func propertyRows(p blend.Properties) []sheetRow {
 	fame := "from the fatty-acid profile (wt% as FAME, GC per AOCS Ce 1h-05 / ISO 12966)"
 	rows := []sheetRow{
