@@ -33,6 +33,17 @@ func solvedAt(t *testing.T, cat *catalogue.Catalogue, spec *catalogue.Spec, pric
 	return r
 }
 
+// relativePrices are the prices of stocks ids of cat moved by v % of each
+// one's price, set by hand for a re-solve.
+func relativePrices(cat *catalogue.Catalogue, ids []string, v float64) map[string]float64 {
+	out := map[string]float64{}
+	for _, id := range ids {
+		s, _ := cat.Find(id)
+		out[id] = s.Price * (1 + v/100)
+	}
+	return out
+}
+
 // On the paper case (sweepCase: cost min((pA + 900) / 2, 1100), one
 // breakpoint at pA = 1300) a relative sweep of a from -10 % to +60 % of its
 // price 1000 in 8 steps is the absolute sweep 900:1600:8 computed by hand
@@ -104,10 +115,8 @@ func TestSweepRelativeDemo(t *testing.T) {
 		base := solvedAt(t, cat, spec, nil)
 		assert.InDelta(t, base.CostPerTonne, multi.BaseCostPerTonne, 1e-7, spec.ID)
 		for _, p := range multi.Points {
-			prices := map[string]float64{}
+			prices := relativePrices(cat, ids, p.Value)
 			for k, id := range ids {
-				s, _ := cat.Find(id)
-				prices[id] = s.Price * (1 + p.Value/100)
 				assert.InDelta(t, prices[id], p.Prices[k], 1e-9)
 			}
 			want := solvedAt(t, cat, spec, prices)
@@ -116,15 +125,7 @@ func TestSweepRelativeDemo(t *testing.T) {
 			assert.InDelta(t, want.CostPerTonne-base.CostPerTonne, p.ChangePerTonne, 1e-6)
 		}
 		for i, bp := range multi.Breakpoints {
-			pricesAt := func(v float64) map[string]float64 {
-				out := map[string]float64{}
-				for _, id := range ids {
-					s, _ := cat.Find(id)
-					out[id] = s.Price * (1 + v/100)
-				}
-				return out
-			}
-			below, above := solvedAt(t, cat, spec, pricesAt(bp-1e-4)), solvedAt(t, cat, spec, pricesAt(bp+1e-4))
+			below, above := solvedAt(t, cat, spec, relativePrices(cat, ids, bp-1e-4)), solvedAt(t, cat, spec, relativePrices(cat, ids, bp+1e-4))
 			assert.False(t, sameBlend(below, above), "%s: no change of blend at %+g %%", spec.ID, bp)
 			assert.True(t, sameLines(below.Blend, multi.Changes[i].Before), "%s at %+g %%: blend before", spec.ID, bp)
 			assert.True(t, sameLines(above.Blend, multi.Changes[i].After), "%s at %+g %%: blend after", spec.ID, bp)
@@ -156,14 +157,7 @@ func TestSweepSeveralStocksAgainstSolves(t *testing.T) {
 		got, err := SweepPrices(cat, spec, ps, Options{})
 		require.NoError(t, err, "case %d", k)
 		name := fmt.Sprintf("case %d (rules %v)", k, spec.Rules.Active())
-		pricesAt := func(v float64) map[string]float64 {
-			out := map[string]float64{}
-			for _, id := range ids {
-				s, _ := cat.Find(id)
-				out[id] = s.Price * (1 + v/100)
-			}
-			return out
-		}
+		pricesAt := func(v float64) map[string]float64 { return relativePrices(cat, ids, v) }
 		for _, p := range got.Points {
 			want := solvedAt(t, cat, spec, pricesAt(p.Value))
 			require.Equal(t, want.Status, p.Status, "%s at %+g %%", name, p.Value)

@@ -8,7 +8,6 @@ import (
 	"html/template"
 	"image/color"
 	"math"
-	"sort"
 	"strings"
 	"time"
 
@@ -345,37 +344,11 @@ func sheetChart(sfc map[float64]float64, spec *catalogue.Spec) (string, error) {
 	p.X.Label.Text = "temperature, °C"
 	p.Y.Label.Text = "solid fat, %"
 	p.Add(plotter.NewGrid())
-	var temps []float64
-	for t := range sfc {
-		temps = append(temps, t)
-	}
-	sort.Float64s(temps)
-	top := 10.0
-	for _, t := range temps {
-		top = math.Max(top, sfc[t])
-	}
-	for _, l := range spec.SFC {
-		if l.HasMax() {
-			top = math.Max(top, l.Max)
-		} else if l.HasMin() {
-			top = math.Max(top, l.Min)
-		}
-	}
-	top = math.Min(100, math.Ceil(top/10)*10)
-	x0, x1 := 10.0, 45.0
-	if len(temps) > 0 {
-		x0, x1 = math.Min(x0, temps[0]), math.Max(x1, temps[len(temps)-1])
-	}
+	temps, x0, x1, top := sfcAxes(sfc, spec)
 	band := color.NRGBA{R: 0x5c, G: 0x7a, B: 0x8c, A: 0x60}
 	var bandShown bool
 	for _, l := range spec.SFC {
-		lo, hi := 0.0, top
-		if l.HasMin() {
-			lo = l.Min
-		}
-		if l.HasMax() {
-			hi = math.Min(l.Max, top)
-		}
+		lo, hi := bandEnds(l, top)
 		w := (x1 - x0) / 80
 		poly, err := plotter.NewPolygon(plotter.XYs{{X: l.Temp - w, Y: lo}, {X: l.Temp + w, Y: lo}, {X: l.Temp + w, Y: hi}, {X: l.Temp - w, Y: hi}})
 		if err != nil {
