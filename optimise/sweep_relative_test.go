@@ -45,22 +45,24 @@ func relativePrices(cat *catalogue.Catalogue, ids []string, v float64) map[strin
 }
 
 // On the paper case (sweepCase: cost min((pA + 900) / 2, 1100), one
-// breakpoint at pA = 1300) a relative sweep of a from -10 % to +60 % of its
-// price 1000 in 8 steps is the absolute sweep 900:1600:8 computed by hand
+// breakpoint at pA = 1300) a relative sweep of a from -5 % to +60 % of its
+// price 1000 in 14 steps is the absolute sweep 950:1600:14 computed by hand
 // (1000 × (1 + v/100)): the same costs, the same blends, the breakpoint at
-// +30 % (1300), and the change against the base case (1000: 950/t).
+// +30 % (1300), and the change against the base case (1000: 950/t). (At
+// -10 % a costs what c does and every blend of at least 50 % a is optimal,
+// a tie the range keeps clear of.)
 func TestSweepRelativeOnPaper(t *testing.T) {
 	cat, spec := sweepCase()
-	rel, err := SweepPrices(cat, spec, PriceSweep{Stocks: []string{"a"}, Relative: true, From: -10, To: 60, Steps: 8}, Options{})
+	rel, err := SweepPrices(cat, spec, PriceSweep{Stocks: []string{"a"}, Relative: true, From: -5, To: 60, Steps: 14}, Options{})
 	require.NoError(t, err)
-	abs, err := Sweep(cat, spec, "a", 900, 1600, 8, Options{})
+	abs, err := Sweep(cat, spec, "a", 950, 1600, 14, Options{})
 	require.NoError(t, err)
-	require.Len(t, rel.Points, 8)
+	require.Len(t, rel.Points, 14)
 	assert.Equal(t, Optimal, rel.BaseStatus)
 	assert.InDelta(t, 950, rel.BaseCostPerTonne, 1e-9, "(1000 + 900) / 2, on paper")
 	for i, p := range rel.Points {
 		price := 1000 * (1 + p.Value/100)
-		assert.InDelta(t, -10+10*float64(i), p.Value, 1e-12)
+		assert.InDelta(t, -5+5*float64(i), p.Value, 1e-12)
 		assert.InDelta(t, price, p.Prices[0], 1e-9)
 		assert.InDelta(t, abs.Points[i].Value, price, 1e-9)
 		assert.InDelta(t, abs.Points[i].CostPerTonne, p.CostPerTonne, 1e-9, "step %d", i)
@@ -229,21 +231,21 @@ func (p *progressLog) sane(t *testing.T, what string) {
 func TestSweepProgress(t *testing.T) {
 	cat, spec := sweepCase()
 	var plain progressLog
-	_, err := SweepPrices(cat, spec, PriceSweep{Stocks: []string{"a"}, Relative: true, From: -10, To: 60, Steps: 8}, Options{Progress: plain.record})
+	_, err := SweepPrices(cat, spec, PriceSweep{Stocks: []string{"a"}, Relative: true, From: -5, To: 60, Steps: 14}, Options{Progress: plain.record})
 	require.NoError(t, err)
 	plain.sane(t, "parametric sweep")
-	assert.Equal(t, 8, plain.total[len(plain.total)-1])
+	assert.Equal(t, 14, plain.total[len(plain.total)-1])
 	assert.Equal(t, 0, plain.done[0], "the first call says nothing is done yet")
 
 	ruled := *spec
 	ruled.Rules = catalogue.Rules{MaxStocks: 2}
 	var steps progressLog
-	r, err := SweepPrices(cat, &ruled, PriceSweep{Stocks: []string{"a"}, Relative: true, From: -10, To: 60, Steps: 8}, Options{Progress: steps.record})
+	r, err := SweepPrices(cat, &ruled, PriceSweep{Stocks: []string{"a"}, Relative: true, From: -5, To: 60, Steps: 14}, Options{Progress: steps.record})
 	require.NoError(t, err)
 	require.Len(t, r.Breakpoints, 1)
 	steps.sane(t, "sweep by solves")
-	// 8 steps, then one bisection from a 10 % wide interval down to the
-	// tolerance, 1e-6 × 60 (18 halvings: 10/2^18 = 3.8e-5 <= 6e-5 < 10/2^17
+	// 14 steps, then one bisection from a 5 % wide interval down to the
+	// tolerance, 1e-6 × 60 (17 halvings: 5/2^17 = 3.8e-5 <= 6e-5 < 5/2^16
 	// = 7.6e-5), and the solve at the breakpoint.
-	assert.Equal(t, 8+18+1, steps.total[len(steps.total)-1])
+	assert.Equal(t, 14+17+1, steps.total[len(steps.total)-1])
 }
