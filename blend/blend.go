@@ -6,7 +6,6 @@ package blend
 
 import (
 	"fmt"
-	"math"
 	"sort"
 
 	"lipoplan/catalogue"
@@ -137,11 +136,9 @@ func Profile(fa map[string]float64) Properties {
 	return p
 }
 
-// Part is one stock at a share of the mix.
-type Part struct {
-	Stock *catalogue.Stock
-	Pct   float64 // % by mass
-}
+// Part is one stock at a share of the mix (catalogue.Part: the recipe line
+// lives with the stocks, so that randomise needs no blend).
+type Part = catalogue.Part
 
 // Mix computes the properties of a physical mix. Shares are % by mass and need
 // not sum to 100: they are normalised. Every property but the SFC is linear in
@@ -167,15 +164,9 @@ func MixProfiles(parts []Part, profiles []*Properties, temps []float64) (Propert
 	if len(profiles) != len(parts) {
 		return Properties{}, fmt.Errorf("mix: %d profiles for %d stocks", len(profiles), len(parts))
 	}
-	var total float64
-	for _, pt := range parts {
-		if pt.Pct < 0 || math.IsNaN(pt.Pct) || math.IsInf(pt.Pct, 0) {
-			return Properties{}, fmt.Errorf("stock %q: share %v %% is not a finite non-negative number", pt.Stock.ID, pt.Pct)
-		}
-		total += pt.Pct
-	}
-	if total <= 0 {
-		return Properties{}, fmt.Errorf("mix has no stock with a share above zero")
+	total, err := catalogue.CheckParts(parts)
+	if err != nil {
+		return Properties{}, err
 	}
 	out := Properties{FattyAcids: map[string]float64{}}
 	for k, pt := range parts {
@@ -291,7 +282,7 @@ func Temps(extra ...float64) []float64 {
 }
 
 // SpecTemps are the SFC temperatures a report on spec lists: the defaults
-// plus every temperature the spec limits (DESIGN section 4).
+// plus every temperature the spec limits (README, "Commands").
 func SpecTemps(spec *catalogue.Spec) []float64 {
 	extra := make([]float64, len(spec.SFC))
 	for i, l := range spec.SFC {

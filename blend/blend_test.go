@@ -17,9 +17,9 @@ func fa(t *testing.T, key string) catalogue.FattyAcid {
 	return f
 }
 
-// The theoretical IV of the pure TAGs (DESIGN section 5 check values, which
-// follow from the AOCS Cd 1c-85 factors x 100): triolein 86.0, trilinolein
-// 173.2, trilinolenin 261.6, tripalmitolein 95.0.
+// The theoretical IV of the pure TAGs, which are the AOCS Cd 1c-85 factors
+// x 100 (the method's factors are each pure TAG's theoretical IV / 100):
+// triolein 86.0, trilinolein 173.2, trilinolenin 261.6, tripalmitolein 95.0.
 func TestTheoreticalIodineValues(t *testing.T) {
 	for key, want := range map[string]float64{"C18:1": 86.0, "C18:2": 173.2, "C18:3": 261.6, "C16:1": 95.0} {
 		assert.InDelta(t, want, TAGIodineValue(fa(t, key)), 0.1, key)
@@ -46,7 +46,8 @@ func TestDerivedFactorsEqualCd1c85(t *testing.T) {
 }
 
 // Saponification value of tripalmitin 208.5 mg KOH/g: 3 x 56106 / 807.3
-// (DESIGN section 5; AOCS Cd 3-25 defines SV as mg KOH to saponify 1 g).
+// (AOCS Cd 3-25 defines SV as mg KOH to saponify 1 g; tripalmitin's molar
+// mass from PubChem, from memory).
 func TestSaponificationValue(t *testing.T) {
 	assert.InDelta(t, 208.5, SVFactor(fa(t, "C16:0")), 0.05)
 	// Profile SV of pure palmitic FAME treated as its fat equals the TAG's SV.
@@ -95,7 +96,7 @@ func TestMixIsLinear(t *testing.T) {
 		curve(10, 50, 20, 26, 30, 9, 40, 2))
 	b := stock("b", map[string]float64{"C16:0": 4, "C18:0": 2, "C18:1": 62, "C18:2": 20, "C18:3": 10, "C20:1": 2},
 		curve(10, 0, 20, 0, 30, 0, 40, 0))
-	p, err := Mix([]Part{{a, 30}, {b, 70}}, []float64{10, 25, 40, 45})
+	p, err := Mix([]Part{{Stock: a, Pct: 30}, {Stock: b, Pct: 70}}, []float64{10, 25, 40, 45})
 	require.NoError(t, err)
 	pa, pb := Profile(a.FattyAcids), Profile(b.FattyAcids)
 	for _, name := range []string{"iv", "sv", "safa", "mufa", "pufa", "trans", "cox", "C18:1"} {
@@ -114,11 +115,11 @@ func TestMixIsLinear(t *testing.T) {
 
 func TestMixRejectsBadShares(t *testing.T) {
 	a := stock("a", map[string]float64{"C16:0": 100}, nil)
-	_, err := Mix([]Part{{a, -1}}, nil)
+	_, err := Mix([]Part{{Stock: a, Pct: -1}}, nil)
 	assert.ErrorContains(t, err, `stock "a"`)
-	_, err = Mix([]Part{{a, 0}}, nil)
+	_, err = Mix([]Part{{Stock: a, Pct: 0}}, nil)
 	assert.Error(t, err)
-	_, err = Mix([]Part{{a, math.NaN()}}, nil)
+	_, err = Mix([]Part{{Stock: a, Pct: math.NaN()}}, nil)
 	assert.Error(t, err)
 }
 

@@ -29,9 +29,9 @@ func readBadCorpus(t testing.TB) []badFile {
 		data, err := os.ReadFile(p)
 		require.NoError(t, err)
 		b := badFile{path: p, data: data}
-		sc := bufio.NewScanner(bytes.NewReader(data))
-		for i := 0; i < 2 && sc.Scan(); i++ {
-			line := sc.Text()
+		lines := bufio.NewScanner(bytes.NewReader(data))
+		for i := 0; i < 2 && lines.Scan(); i++ {
+			line := lines.Text()
 			if v, ok := strings.CutPrefix(line, "# expect: "); ok {
 				b.expect = v
 			}

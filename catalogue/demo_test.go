@@ -30,7 +30,8 @@ func TestDemoLoadsClean(t *testing.T) {
 }
 
 // Every demo stock's fatty acids sum to 100 +- 0.3 wt% (the warning band of
-// DESIGN section 3), and its sn-2 profile, when given, to 100 +- 1 mol%.
+// the file format, README "File formats"), and its sn-2 profile, when given,
+// to 100 +- 1 mol%.
 func TestDemoCompositionsSum(t *testing.T) {
 	for _, s := range DemoStocks().Stocks {
 		var sum float64

@@ -1,10 +1,8 @@
-// Package catalogue holds the fatty-acid reference table, the stock catalogue
-// and product specifications, their strict TOML loading and validation, and
-// the embedded demo data of an invented plant.
 package catalogue
 
 import (
 	"fmt"
+	"math"
 	"sort"
 	"strconv"
 	"strings"
@@ -249,4 +247,56 @@ func ParseTemp(s string) (float64, error) {
 // fractional as "37.5".
 func TempKey(t float64) string {
 	return strconv.FormatFloat(t, 'f', -1, 64)
+}
+
+// MolFractions converts a fatty-acid profile in wt% as FAME to mole
+// fractions through the methyl esters' molar masses: n_i = w_i / M(FAME_i),
+// x_i = n_i / sum n. GC of the methyl esters (ISO 12966-4:2015, capillary
+// GC) reports peak areas, which are taken as wt% FAME (common practice with
+// a flame-ionisation detector). Acids with a zero share are left out; the
+// acids come back in reference-table order, without maps or sorting. A key
+// outside the table or an amount that is not a finite number >= 0 is bad
+// input in the loader's words (Stock.CheckProfiles), and so is a profile
+// with nothing in it.
+func MolFractions(fa map[string]float64) (acids []FattyAcid, x []float64, err error) {
+	// one rank look-up per key, then a walk in table order
+	ranked := make([]float64, len(reference))
+	for k, w := range fa {
+		r := Rank(k)
+		if r < 0 || !(w >= 0) || math.IsInf(w, 1) {
+			return nil, nil, checked("", func(c *collector) { c.profileEntries("", "fatty_acids", fa) })
+		}
+		ranked[r] += w
+	}
+	var total float64
+	for r, f := range reference {
+		if ranked[r] <= 0 {
+			continue
+		}
+		n := ranked[r] / f.EsterMolarMass()
+		acids = append(acids, f)
+		x = append(x, n)
+		total += n
+	}
+	if total <= 0 {
+		return nil, nil, Badf("the fatty-acid profile is empty; give wt%% FAME for at least one acid")
+	}
+	for i := range x {
+		x[i] /= total
+	}
+	return acids, x, nil
+}
+
+// MolPercent is MolFractions by key, in mol%; nil for a profile that
+// MolFractions refuses.
+func MolPercent(fa map[string]float64) map[string]float64 {
+	acids, x, err := MolFractions(fa)
+	if err != nil {
+		return nil
+	}
+	out := make(map[string]float64, len(acids))
+	for i, f := range acids {
+		out[f.Key] = 100 * x[i]
+	}
+	return out
 }

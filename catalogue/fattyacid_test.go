@@ -67,7 +67,7 @@ func TestMethylEsterMolarMasses(t *testing.T) {
 	}
 }
 
-// A TAG is glycerol + 3 acids - 3 water. Check values of DESIGN section 5:
+// A TAG is glycerol + 3 acids - 3 water (condensation). Check values:
 // tripalmitin 807.3, triolein 885.4, tristearin 891.5 g/mol; formulae
 // C51H98O6, C57H104O6, C57H110O6 (PubChem, from memory).
 func TestTAGMolarMasses(t *testing.T) {
@@ -141,4 +141,27 @@ func TestMolPercent(t *testing.T) {
 	m := MolPercent(map[string]float64{"C16:0": 50, "C18:1": 50})
 	assert.InDelta(t, 100, m["C16:0"]+m["C18:1"], 1e-9)
 	assert.InDelta(t, 296.49/270.45, m["C16:0"]/m["C18:1"], 1e-3)
+}
+
+func TestMolFractionsThroughMethylEsterMasses(t *testing.T) {
+	// Methyl palmitate C17H34O2 270.45 g/mol and methyl oleate C19H36O2
+	// 296.49 g/mol (PubChem molecular weights, from memory).
+	acids, x, err := MolFractions(map[string]float64{"C18:1": 50, "C16:0": 50})
+	require.NoError(t, err)
+	require.Len(t, acids, 2)
+	assert.Equal(t, "C16:0", acids[0].Key, "acids in reference-table order")
+	assert.InDelta(t, 270.45, acids[0].EsterMolarMass(), 0.01)
+	assert.InDelta(t, 296.49, acids[1].EsterMolarMass(), 0.01)
+	nP, nO := 50/270.45, 50/296.49
+	assert.InDelta(t, nP/(nP+nO), x[0], 1e-4)
+	assert.InDelta(t, nO/(nP+nO), x[1], 1e-4)
+	assert.InDelta(t, 1, x[0]+x[1], 1e-15)
+
+	_, _, err = MolFractions(map[string]float64{"C18:9": 10})
+	assert.True(t, IsBadInput(err))
+	assert.ErrorContains(t, err, `fatty_acids: unknown fatty-acid key "C18:9"`, "the loader's words")
+	_, _, err = MolFractions(map[string]float64{"C16:0": 0})
+	assert.True(t, IsBadInput(err))
+	_, _, err = MolFractions(map[string]float64{"C16:0": -3})
+	assert.True(t, IsBadInput(err))
 }

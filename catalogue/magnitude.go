@@ -79,8 +79,10 @@ func (r Range) Contains(v float64) bool {
 }
 
 // Check returns nil when v is an accepted value of q, or a BadInput error
-// "<label> = <v> is ...; accepted: <range>". The loaders and the workspace
-// both use it, so a value is refused with the same words wherever it is typed.
+// "<label> = <v> is ...; accepted: <range>". The loaders and the checks of
+// values built in code (Stock.Check, Spec.Check, which the workspace's edits
+// call) use it, and so do the CLI's flags, so a value is refused with the
+// same words wherever it is typed.
 func (q Quantity) Check(label string, v float64) error {
 	r := q.Range()
 	switch {

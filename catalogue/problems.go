@@ -60,6 +60,15 @@ func (ps Problems) Warnings() Problems {
 	return out
 }
 
+// Err returns the errors among ps as an error (a Problems), or nil when
+// there are none: warnings alone are no error.
+func (ps Problems) Err() error {
+	if errs := ps.Errors(); len(errs) > 0 {
+		return errs
+	}
+	return nil
+}
+
 func (ps Problems) Error() string {
 	lines := make([]string, len(ps))
 	for i, p := range ps {

@@ -13,7 +13,7 @@ import (
 	"unicode/utf8"
 )
 
-// WriteStocks writes a catalogue as stocks.toml (DESIGN section 3) that
+// WriteStocks writes a catalogue as stocks.toml (README, "File formats") that
 // ParseStocks reads back to the same values. Unlimited availability (+Inf)
 // is written by leaving `available` out. Non-finite numbers are refused.
 func WriteStocks(w io.Writer, c *Catalogue) error {
@@ -63,7 +63,7 @@ func WriteStocks(w io.Writer, c *Catalogue) error {
 	return nil
 }
 
-// WriteSpec writes a product spec as spec.toml (DESIGN section 3) that
+// WriteSpec writes a product spec as spec.toml (README, "File formats") that
 // ParseSpec reads back to the same values (File and ID come from the file
 // name and are not written).
 func WriteSpec(w io.Writer, s *Spec) error {
@@ -99,8 +99,8 @@ func WriteSpec(w io.Writer, s *Spec) error {
 		if s.Rules.MaxStocks > 0 {
 			tw.line("max_stocks = %d", s.Rules.MaxStocks)
 		}
-		if s.Rules.MinIfUsed > 0 {
-			tw.line("min_if_used = %s", tw.float("min_if_used", s.Rules.MinIfUsed))
+		if s.Rules.SmallestShare > 0 {
+			tw.line("smallest_share = %s", tw.float("smallest_share", s.Rules.SmallestShare))
 		}
 	}
 	if p := s.Process; p != nil {
@@ -228,7 +228,8 @@ func tomlString(s string) string {
 
 // WriteFileAtomic writes data to path through a temporary file in the same
 // directory that is synced and then renamed over path, so a crash leaves
-// either the old file or the new one, never half a file (DESIGN section 8).
+// either the old file or the new one, never half a file (README, "Files
+// lipoplan writes").
 func WriteFileAtomic(path string, data []byte, perm os.FileMode) (err error) {
 	dir := filepath.Dir(path)
 	f, err := os.CreateTemp(dir, "."+filepath.Base(path)+".tmp-*")

@@ -98,8 +98,9 @@ func finiteNum(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 // batch, cost price/100 so the objective is currency per tonne of product),
 // the sum row, one row per [limits] entry and per [limits.sfc] temperature,
 // and [use] bounds and availability (pct <= 100·available/batch) as column
-// bounds. Integer rules are added by withRules. Input faults are
-// catalogue.BadInput.
+// bounds. Integer rules are added by withRules. Input faults are the
+// catalogue's findings (Catalogue.CheckModel and Spec.CheckModel, a
+// catalogue.Problems) or a catalogue.BadInput.
 func build(cat *catalogue.Catalogue, spec *catalogue.Spec) (*model, *layout, error) {
 	return buildIn(cat, spec, nil, nil, false)
 }
@@ -120,14 +121,15 @@ func buildWith(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache)
 // model and layout it returns live in buf until buf's next build. With
 // predicted set, SFC rows need no measured curves (buildPredicted).
 func buildIn(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache, buf *scratch, predicted bool) (*model, *layout, error) {
-	if cat == nil || len(cat.Stocks) == 0 {
-		return nil, nil, catalogue.Badf("the stock catalogue has no stocks; add [[stock]] entries")
-	}
 	if spec == nil {
 		return nil, nil, catalogue.Badf("no spec given")
 	}
-	if !finiteNum(spec.Batch) || spec.Batch <= 0 {
-		return nil, nil, catalogue.Badf("%s: batch = %v t; give the batch size in tonnes, above zero", specWhere(spec), spec.Batch)
+	// The catalogue's checks of a model's values, in the loaders' words.
+	if err := cat.CheckModel().Err(); err != nil {
+		return nil, nil, err
+	}
+	if err := spec.CheckModel(cat).Err(); err != nil {
+		return nil, nil, err
 	}
 	n := len(cat.Stocks)
 	lay := buf.newLayout()
@@ -135,15 +137,6 @@ func buildIn(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache, b
 	index := buf.stockIndex(n)
 	for j := range cat.Stocks {
 		s := &cat.Stocks[j]
-		if _, dup := index[s.ID]; dup {
-			return nil, nil, catalogue.Badf("stock %q appears twice in the catalogue; give each stock its own id", s.ID)
-		}
-		if !finiteNum(s.Price) || s.Price < 0 {
-			return nil, nil, catalogue.Badf("stock %q: price %v is not a number >= 0", s.ID, s.Price)
-		}
-		if math.IsNaN(s.Available) || s.Available < 0 {
-			return nil, nil, catalogue.Badf("stock %q: available %v t is not a number >= 0", s.ID, s.Available)
-		}
 		index[s.ID] = j
 		lay.cols[j] = colInfo{stock: s, use: catalogue.Free(), availPct: math.Inf(1)}
 		if s.Limited() {
@@ -151,14 +144,7 @@ func buildIn(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache, b
 		}
 	}
 	for _, u := range spec.Use {
-		j, ok := index[u.Stock]
-		if !ok {
-			return nil, nil, catalogue.Badf("%s: [use] names stock %q, which is not in the catalogue; check the id", specWhere(spec), u.Stock)
-		}
-		if u.Min > u.Max || math.IsNaN(u.Min) || math.IsNaN(u.Max) || u.Min < 0 && u.HasMin() {
-			return nil, nil, catalogue.Badf("%s: [use] %q = { min = %v, max = %v } is not a range within 0..100 %%", specWhere(spec), u.Stock, u.Min, u.Max)
-		}
-		lay.cols[j].use = u.Bound
+		lay.cols[index[u.Stock]].use = u.Bound
 	}
 
 	// One block of floats and one of names hold every array of the model.
@@ -206,13 +192,7 @@ func buildIn(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache, b
 		if !l.HasMin() && !l.HasMax() {
 			continue // an empty limit constrains nothing
 		}
-		if math.IsNaN(l.Min) || math.IsNaN(l.Max) || l.Min > l.Max {
-			return nil, nil, catalogue.Badf("%s: limit %q = { min = %v, max = %v }: min must not exceed max", specWhere(spec), l.Name, l.Min, l.Max)
-		}
 		_, fa := catalogue.Lookup(l.Name)
-		if !fa && !catalogue.IsProperty(l.Name) {
-			return nil, nil, catalogue.Badf("%s: limit %q is neither a property (%s) nor a fatty-acid key such as \"C18:2\"", specWhere(spec), l.Name, strings.Join(catalogue.Properties, ", "))
-		}
 		active = append(active, l)
 		if fa {
 			rank = append(rank, catalogue.Rank(l.Name))
@@ -255,7 +235,7 @@ func buildIn(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache, b
 				// As blend.Coefficient: every property is linear in mass share.
 				v, _ = p.Value(l.Name)
 			}
-			if !finiteNum(v) {
+			if !finiteNum(v) { // finite amounts can still overflow
 				return nil, nil, catalogue.Badf("stock %q: its %s is %v; give finite fatty-acid values", c.stock.ID, l.Name, v)
 			}
 			m.a[(first+i)*n+j] = v
@@ -272,9 +252,6 @@ func buildIn(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache, b
 		if !l.HasMin() && !l.HasMax() {
 			continue
 		}
-		if math.IsNaN(l.Min) || math.IsNaN(l.Max) || l.Min > l.Max {
-			return nil, nil, catalogue.Badf("%s: limit sfc %q = { min = %v, max = %v }: min must not exceed max", specWhere(spec), catalogue.TempKey(l.Temp), l.Min, l.Max)
-		}
 		var lacking []string
 		for j, c := range lay.cols {
 			v, ok := c.stock.SFC.At(l.Temp)
@@ -289,9 +266,6 @@ func buildIn(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache, b
 				lay.cols[j].frozen = true
 				v = 0
 			}
-			if !finiteNum(v) {
-				return nil, nil, catalogue.Badf("stock %q: SFC at %s °C is %v; give finite values under [stock.sfc]", c.stock.ID, catalogue.TempKey(l.Temp), v)
-			}
 			coef[j] = v
 		}
 		if len(lacking) > 0 {
@@ -304,9 +278,6 @@ func buildIn(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache, b
 		key := "sfc." + tk // as sfcKey
 		lay.rows = append(lay.rows, rowInfo{key: key, label: "SFC at " + tk + " °C", unit: " % solid", bound: l.Bound, scale: spread(coef, l.Bound)})
 		m.addRow(key, perPct(coef), l.Min, l.Max)
-	}
-	if r := spec.Rules; r.MaxStocks < 0 || math.IsNaN(r.MinIfUsed) || r.MinIfUsed < 0 || r.MinIfUsed > 100 {
-		return nil, nil, catalogue.Badf("%s: [rules] max_stocks = %d, min_if_used = %v: give max_stocks >= 1 and min_if_used within 0..100 %%", specWhere(spec), r.MaxStocks, r.MinIfUsed)
 	}
 	return m, lay, nil
 }
@@ -350,7 +321,7 @@ func spread(coef []float64, b catalogue.Bound) float64 {
 // withRules returns m extended by the integer rules of the spec (a copy;
 // m is kept as the base LP): a binary used_j per stock that may enter, rows
 // link_j: x_j - U_j·used_j <= 0 (U_j its upper bound, at most 100), with
-// min_if_used m: minuse_j: x_j - m·used_j >= 0, with max_stocks N:
+// smallest_share m: share_j: x_j - m·used_j >= 0, with max_stocks N:
 // count: Σ used_j <= N. linkCap replaces U_j (the elastic model uses 100).
 func (l *layout) withRules(m *model, linkCap func(j int) float64) *model {
 	r := l.rules
@@ -381,7 +352,7 @@ func (l *layout) withRules(m *model, linkCap func(j int) float64) *model {
 	// their link rows runs to hundreds of MB, and growing it row by row
 	// copied it over and over.
 	rows := m.nRows + len(cand) + 1
-	if r.MinIfUsed > 0 {
+	if r.SmallestShare > 0 {
 		rows += len(cand)
 	}
 	out.a = make([]float64, 0, rows*out.nCols)
@@ -395,9 +366,9 @@ func (l *layout) withRules(m *model, linkCap func(j int) float64) *model {
 		clear(coef)
 		coef[j], coef[l.used[j]] = 1, -linkCap(j)
 		out.addRow("link."+m.colName[j], coef, math.Inf(-1), 0)
-		if r.MinIfUsed > 0 {
-			coef[l.used[j]] = -r.MinIfUsed
-			out.addRow("minuse."+m.colName[j], coef, 0, inf)
+		if r.SmallestShare > 0 {
+			coef[l.used[j]] = -r.SmallestShare
+			out.addRow("share."+m.colName[j], coef, 0, inf)
 		}
 	}
 	if r.MaxStocks > 0 {

@@ -21,7 +21,7 @@ func TestConcurrentSolves(t *testing.T) {
 	lam, ok := catalogue.DemoSpec("laminating")
 	require.True(t, ok)
 	rules := lam.Clone()
-	rules.Rules = catalogue.Rules{MaxStocks: 3, MinIfUsed: 8}
+	rules.Rules = catalogue.Rules{MaxStocks: 3, SmallestShare: 8}
 	specs := []*catalogue.Spec{lam, rules}
 	want := make([]float64, len(specs))
 	for i, s := range specs {

@@ -20,7 +20,7 @@
 //	                   per tonne of stock on hand)
 //	max_stocks         integer rule Σ used_j <= N (MPS rows "count",
 //	                   "link.<id>", columns "used.<id>")
-//	min_if_used        integer rule x_j >= m·used_j (MPS rows "minuse.<id>")
+//	smallest_share        integer rule x_j >= m·used_j (MPS rows "share.<id>")
 //
 // A spec with a [process] step adds reactor columns and, with predicted
 // SFC, the TAG model of the whole blend through a successive LP (procModel);

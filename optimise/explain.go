@@ -141,7 +141,7 @@ func (w phrasing) avail(b []byte, lr LimitReport, id string, batch float64) []by
 	return b
 }
 
-func (w phrasing) minIfUsed(b []byte, lr LimitReport) []byte {
+func (w phrasing) smallestShare(b []byte, lr LimitReport) []byte {
 	if !lr.Binding {
 		return slack(b, lr, " % of the batch")
 	}

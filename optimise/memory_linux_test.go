@@ -65,7 +65,7 @@ func TestMILPSolvesDoNotGrow(t *testing.T) {
 	spec, ok := catalogue.DemoSpec("laminating")
 	require.True(t, ok)
 	spec = spec.Clone()
-	spec.Rules = catalogue.Rules{MaxStocks: 4, MinIfUsed: 5}
+	spec.Rules = catalogue.Rules{MaxStocks: 4, SmallestShare: 5}
 	growth := solveMany(t, 200, cat, spec)
 	t.Logf("200 MILP solves: resident set grew by %d kB", growth/1024)
 	require.Less(t, growth, int64(8<<20), "resident set grew by %d kB over 200 MILP solves", growth/1024)

@@ -16,7 +16,7 @@ import (
 // COIN-OR). Rows are named as in LimitReport without the ".min"/".max" side
 // ("sum", "iv", "C18:2", "sfc.20"), columns by stock id; a row bounded on
 // both sides is a G row with a RANGES entry. Integer rules add binary columns
-// "used.<id>" between MARKER lines and rows "link.<id>", "minuse.<id>",
+// "used.<id>" between MARKER lines and rows "link.<id>", "share.<id>",
 // "count". [use] and availability are column bounds.
 func MPS(cat *catalogue.Catalogue, spec *catalogue.Spec) ([]byte, error) {
 	m, lay, err := build(cat, spec)

@@ -80,8 +80,8 @@ func solveProcessIn(eng *engine, pc *profileCache, buf *scratch, cat *catalogue.
 			return pm.infeasible(eng, res, base, "")
 		}
 		rep.Converged = true
-		return pm.finish(res, m, sol, opt, nil, "[process] sfc = \"measured\": the reacted fat's SFC is taken as the mass-weighted sum of its feed stocks' measured curves, "+
-			"which do not see the reaction, so the reactor only adds cost; use sfc = \"predicted\" to let the TAG model judge what interesterification does.")
+		return pm.finish(res, m, sol, opt, nil, "[process] sfc = \"measured\": the interesterified fat is given the SFC of its feed as blended, because measured curves cannot show what the "+
+			"reaction does; so the reactor only adds cost here. Use sfc = \"predicted\" to let the TAG model judge what interesterification does to the melting.")
 	}
 
 	wb, err := newWholeBlend(pm, randomise.Method(pr.Method), opt.Model)
@@ -99,7 +99,7 @@ func solveProcessIn(eng *engine, pc *profileCache, buf *scratch, cat *catalogue.
 		if sol.status != solOptimal {
 			return pm.infeasible(eng, res, base, "")
 		}
-		return pm.finish(res, m, sol, opt, wb, "[process] sfc = \"predicted\" with no SFC limit: the blend is one LP, and its SFC is the TAG model's for the whole blend.")
+		return pm.finish(res, m, sol, opt, wb, "[process] sfc = \"predicted\" with no SFC limit: the cheapest blend is found directly, and its SFC shown is the TAG model's for the whole blend.")
 	}
 	var best *slpRun
 	var last *procPoint
@@ -131,14 +131,14 @@ func solveProcessIn(eng *engine, pc *profileCache, buf *scratch, cat *catalogue.
 	if best == nil {
 		why := ""
 		if linInfeasible {
-			why = "the linearised model (predicted SFC of the whole blend) has no feasible blend; "
+			why = "even the straight-line estimate of the predicted SFC admits no blend; "
 		}
-		res.Notes = append(res.Notes, fmt.Sprintf("the successive LP found no blend whose predicted SFC meets the limits within %.2g %% solid in %d LP solves", slpSFCTol, rep.Iterations))
+		res.Notes = append(res.Notes, fmt.Sprintf("no blend was found whose predicted SFC meets the limits (within %.2g %% solid) in %d trial blends", slpSFCTol, rep.Iterations))
 		return pm.infeasiblePredicted(eng, wb, res, base, last, why)
 	}
 	rep.Converged = best.converged
 	if !best.converged {
-		res.Notes = append(res.Notes, fmt.Sprintf("the successive LP stopped at its cap of %d LP solves before the blend settled; the blend meets the limits but may not be the cheapest", slpMaxIter))
+		res.Notes = append(res.Notes, fmt.Sprintf("the search stopped at its cap of %d trial blends before the blend settled: this blend meets the limits but a slightly cheaper one may exist", slpMaxIter))
 	}
 	curM, curSol := best.m, best.sol
 	// Duals of the linearisation at the answer without the trust-region
@@ -155,11 +155,11 @@ func solveProcessIn(eng *engine, pc *profileCache, buf *scratch, cat *catalogue.
 		}
 	}
 	if boxed(curM, pm) {
-		res.Notes = append(res.Notes, "the last LP of the successive LP keeps the blend within a trust-region box; shadow prices do not price that box")
+		res.Notes = append(res.Notes, "the search ended with the blend held close to its last step, so the savings per unit shown for the limits are for small moves only")
 	}
-	return pm.finish(res, curM, curSol, opt, wb, "[process] sfc = \"predicted\": the SFC of the final blend is the TAG model's for the whole blend "+
-		"(the native TAGs of the stocks blended as they are and the interesterified TAGs of the reactor's product in one solid-liquid equilibrium; "+
-		"no stock needs a measured curve). Shadow prices and cost ranging are those of the linearised model at the answer (the last LP of the successive LP).")
+	return pm.finish(res, curM, curSol, opt, wb, "[process] sfc = \"predicted\": the SFC of the final blend is predicted by the TAG model for the whole blend "+
+		"(the stocks blended as they are and the interesterified fat together, so no stock needs a measured curve). The blend was found by "+
+		"trying blends step by step; the cheapest found that meets the limits is shown, and the savings per unit and price ranges hold near it.")
 }
 
 // slpRun is one successive-LP search from a start point.
@@ -421,30 +421,21 @@ type procModel struct {
 	sfcTemps []float64 // their temperatures
 }
 
-// newProcModel checks the [process] table against the model and lays out
-// the reactor columns.
+// newProcModel checks the [process] step against the model (what build's
+// catalogue.Spec.CheckModel does not: integer rules, a feed stock that
+// [use] leaves out) and lays out the reactor columns.
 func newProcModel(base *model, lay *layout) (*procModel, error) {
 	spec := lay.spec
 	pr := spec.Process
 	where := specWhere(spec) + ": [process]"
-	if pr.Method != "chemical" && pr.Method != "enzymatic" {
-		return nil, catalogue.Badf("%s method %q is not known; use \"chemical\" (random) or \"enzymatic\" (sn-1,3 lipase)", where, pr.Method)
-	}
+	// build has checked the table (catalogue.Spec.CheckModel): method, sfc
+	// and cost are known, every feed stock is in the catalogue once.
 	mode := pr.SFC
 	if mode == "" {
 		mode = "predicted"
 	}
-	if mode != "measured" && mode != "predicted" {
-		return nil, catalogue.Badf("%s sfc %q is not known; use \"measured\" (linear in the stocks' curves) or \"predicted\" (TAG model)", where, pr.SFC)
-	}
-	if !finiteNum(pr.Cost) || pr.Cost < 0 {
-		return nil, catalogue.Badf("%s cost = %v is not a number >= 0; give the processing cost per tonne processed", where, pr.Cost)
-	}
-	if len(pr.Interesterify) == 0 {
-		return nil, catalogue.Badf("%s interesterify is empty; list the stocks that go through the reactor, or remove [process]", where)
-	}
 	if lay.rules.Active() {
-		return nil, catalogue.Badf("%s integer [rules] (max_stocks, min_if_used) together with a [process] step are not supported; remove one of the two", where)
+		return nil, catalogue.Badf("%s integer [rules] (max_stocks, smallest_share) together with a [process] step are not supported; remove one of the two", where)
 	}
 	n := lay.n()
 	pm := &procModel{base: base, lay: lay, mode: mode, cost: pr.Cost, isFeed: make([]int, n)}
@@ -460,11 +451,8 @@ func newProcModel(base *model, lay *layout) (*procModel, error) {
 	}
 	for _, id := range pr.Interesterify {
 		j := lay.index(id)
-		if j < 0 {
-			return nil, catalogue.Badf("%s interesterify names stock %q, which is not in the catalogue; check the id", where, id)
-		}
-		if pm.isFeed[j] >= 0 {
-			return nil, catalogue.Badf("%s interesterify lists %q twice; list each stock once", where, id)
+		if j < 0 || pm.isFeed[j] >= 0 {
+			return nil, fmt.Errorf("optimise: %s feed %q not checked (catalogue.Spec.CheckModel)", where, id)
 		}
 		c := lay.cols[j]
 		if c.use.HasMax() && c.use.Max <= 0 {
@@ -739,7 +727,7 @@ func (pm *procModel) infeasible(eng *engine, res *Result, base *model, why strin
 		return nil, err
 	}
 	res.Relaxation = r
-	res.Notes = append(res.Notes, why+"the relaxation shown is that of the plain blend model (no reactor, SFC linear in measured curves)")
+	res.Notes = append(res.Notes, why+"the change shown is for the blend without the reactor, with SFC from the measured curves")
 	return res, nil
 }
 
@@ -773,7 +761,7 @@ func (pm *procModel) infeasiblePredicted(eng *engine, wb *wholeBlend, res *Resul
 		return nil, err
 	}
 	res.Relaxation = rel
-	res.Notes = append(res.Notes, why+"the relaxation shown is that of the blend without the reactor, with the TAG model's SFC linearised at the last blend tried: an estimate; solve again with it to check")
+	res.Notes = append(res.Notes, why+"the change shown is for the blend without the reactor, with the TAG model's SFC estimated near the last blend tried: an estimate; apply it and solve again to check")
 	return res, nil
 }
 

@@ -22,7 +22,7 @@ func TestSolveProgress(t *testing.T) {
 	for k := 0; k < 20 && checked < 5; k++ {
 		cat := genStocks(r, 30)
 		spec := genSpec(r, cat, 6)
-		spec.Rules = catalogue.Rules{MaxStocks: 3, MinIfUsed: 5}
+		spec.Rules = catalogue.Rules{MaxStocks: 3, SmallestShare: 5}
 		plain, err := Solve(cat, spec, Options{})
 		require.NoError(t, err)
 		if plain.Status != Optimal {

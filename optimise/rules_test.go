@@ -17,7 +17,7 @@ import (
 
 // bruteForce solves the integer rules by enumeration: for every set S of
 // stocks allowed in (|S| <= max_stocks), stocks outside S are capped at 0
-// and stocks in S are held at >= min_if_used; the best of these LPs, solved
+// and stocks in S are held at >= smallest_share; the best of these LPs, solved
 // with gonum's simplex (independent of CBC), is the MILP optimum. It returns
 // +Inf when no set is feasible.
 func bruteForce(t *testing.T, cat *catalogue.Catalogue, spec *catalogue.Spec) float64 {
@@ -38,7 +38,7 @@ func bruteForce(t *testing.T, cat *catalogue.Catalogue, spec *catalogue.Spec) fl
 }
 
 // restrictTo is spec without rules, the stocks outside mask capped at 0 and
-// those inside at >= min_if_used; ok is false when mask breaks max_stocks or
+// those inside at >= smallest_share; ok is false when mask breaks max_stocks or
 // a stock in it cannot reach the minimum dose.
 func restrictTo(cat *catalogue.Catalogue, spec *catalogue.Spec, mask int) (*catalogue.Spec, bool) {
 	size := 0
@@ -64,7 +64,7 @@ func restrictTo(cat *catalogue.Catalogue, spec *catalogue.Spec, mask int) (*cata
 		}
 		if mask&(1<<j) == 0 {
 			b = bound(math.Inf(-1), 0)
-		} else if m := spec.Rules.MinIfUsed; m > 0 {
+		} else if m := spec.Rules.SmallestShare; m > 0 {
 			if !b.HasMin() || b.Min < m {
 				b.Min = m
 			}
@@ -79,7 +79,7 @@ func restrictTo(cat *catalogue.Catalogue, spec *catalogue.Spec, mask int) (*cata
 
 func execLookGlpsol() (string, error) { return exec.LookPath("glpsol") }
 
-// TestIntegerRulesAgainstEnumeration checks max_stocks and min_if_used on
+// TestIntegerRulesAgainstEnumeration checks max_stocks and smallest_share on
 // 40 small seeded random problems (4..7 stocks) against brute-force
 // enumeration of the allowed stock sets, and checks the MILP MPS file
 // against GLPK's branch and bound (glpsol) where available.
@@ -93,7 +93,7 @@ func TestIntegerRulesAgainstEnumeration(t *testing.T) {
 		spec := genSpec(r, cat, 3+r.IntN(6))
 		spec.Rules.MaxStocks = 1 + r.IntN(3)
 		if r.IntN(3) > 0 {
-			spec.Rules.MinIfUsed = 5 + 20*r.Float64()
+			spec.Rules.SmallestShare = 5 + 20*r.Float64()
 		}
 		if r.IntN(4) == 0 {
 			spec.Rules.MaxStocks = 0
@@ -119,7 +119,7 @@ func TestIntegerRulesAgainstEnumeration(t *testing.T) {
 			assert.LessOrEqual(t, len(res.Blend), spec.Rules.MaxStocks, "case %d", k)
 		}
 		for _, l := range res.Blend {
-			assert.GreaterOrEqual(t, l.Pct, spec.Rules.MinIfUsed-1e-6, "case %d %s", k, l.Stock)
+			assert.GreaterOrEqual(t, l.Pct, spec.Rules.SmallestShare-1e-6, "case %d %s", k, l.Stock)
 		}
 		if glpErr == nil {
 			path := filepath.Join(dir, fmt.Sprintf("milp%02d.mps", k))
@@ -167,7 +167,7 @@ func TestRulesNotProvenWithinNodes(t *testing.T) {
 	lam, ok := catalogue.DemoSpec("laminating")
 	require.True(t, ok)
 	spec := lam.Clone()
-	spec.Rules = catalogue.Rules{MaxStocks: 3, MinIfUsed: 8}
+	spec.Rules = catalogue.Rules{MaxStocks: 3, SmallestShare: 8}
 	// lipoplan's branch and bound in every build (CBC counts its nodes
 	// its own way).
 	full, err := solveWith(simplexEngine(), cat, spec, Options{})

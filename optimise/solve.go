@@ -26,7 +26,7 @@ func solve(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result
 // Without integer rules the base LP is solved once; its duals, reduced
 // costs and basis give shadow prices and cost ranging. With integer rules
 // the MILP (branch and bound) picks which stocks enter; the LP with those choices fixed
-// (excluded stocks at 0, included ones at >= min_if_used) is then solved for
+// (excluded stocks at 0, included ones at >= smallest_share) is then solved for
 // duals and ranging, the usual way to price a MILP answer. max_stocks is
 // priced by solving again with one stock more.
 func solveWith(eng *engine, cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result, error) {
@@ -145,14 +145,14 @@ func (l *layout) choices(x []float64) []bool {
 }
 
 // fixChoices is base with the integer choices fixed: a stock left out is
-// bounded to 0, a stock in use to at least min_if_used.
+// bounded to 0, a stock in use to at least smallest_share.
 func (l *layout) fixChoices(base *model, choice []bool) *model {
 	m := base.clone()
 	for j, in := range choice {
 		if !in {
 			m.colLo[j], m.colUp[j] = 0, 0
-		} else if l.rules.MinIfUsed > m.colLo[j] {
-			m.colLo[j] = math.Min(l.rules.MinIfUsed, m.colUp[j])
+		} else if l.rules.SmallestShare > m.colLo[j] {
+			m.colLo[j] = math.Min(l.rules.SmallestShare, m.colUp[j])
 		}
 	}
 	return m
@@ -280,7 +280,7 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 		}
 	}
 
-	var minDose float64 // Σ d_j of stocks held at min_if_used
+	var minDose float64 // Σ d_j of stocks held at smallest_share
 	minUsed := math.Inf(1)
 	for j := 0; j < n; j++ {
 		c := &l.cols[j]
@@ -288,8 +288,8 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 		id := c.stock.ID
 		atLo := sol.basis[j] == stLower || sol.basis[j] == stFixed && d > 0
 		atUp := sol.basis[j] == stUpper || sol.basis[j] == stFixed && d < 0
-		ruleLo := choice != nil && choice[j] && l.rules.MinIfUsed > 0 && m.colLo[j] == math.Min(l.rules.MinIfUsed, m.colUp[j]) &&
-			(!c.use.HasMin() || l.rules.MinIfUsed > c.use.Min)
+		ruleLo := choice != nil && choice[j] && l.rules.SmallestShare > 0 && m.colLo[j] == math.Min(l.rules.SmallestShare, m.colUp[j]) &&
+			(!c.use.HasMin() || l.rules.SmallestShare > c.use.Min)
 		if choice != nil && choice[j] {
 			minUsed = math.Min(minUsed, x)
 			if ruleLo && atLo {
@@ -337,14 +337,14 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 			add(lr)
 		}
 	}
-	if choice != nil && l.rules.MinIfUsed > 0 {
+	if choice != nil && l.rules.SmallestShare > 0 {
 		if math.IsInf(minUsed, 1) {
 			minUsed = 0
 		}
-		lr := LimitReport{Label: "smallest share of a stock in use", Unit: " %", Value: minUsed, Bound: l.rules.MinIfUsed, Binding: near(minUsed, l.rules.MinIfUsed), ShadowPrice: -minDose, HoldsFrom: nan, HoldsTo: nan}
-		tx.b = append(tx.b, "min_if_used"...)
+		lr := LimitReport{Label: "smallest share of a stock in use", Unit: " %", Value: minUsed, Bound: l.rules.SmallestShare, Binding: near(minUsed, l.rules.SmallestShare), ShadowPrice: -minDose, HoldsFrom: nan, HoldsTo: nan}
+		tx.b = append(tx.b, "smallest_share"...)
 		tx.endName()
-		tx.b = w.minIfUsed(tx.b, lr)
+		tx.b = w.smallestShare(tx.b, lr)
 		tx.endExplanation()
 		add(lr)
 	}

@@ -202,7 +202,7 @@ func TestBadInputs(t *testing.T) {
 	}{
 		"batch":     {&catalogue.Spec{Batch: 0}, "batch"},
 		"unknown":   {&catalogue.Spec{Batch: 1, Limits: []catalogue.Limit{{Name: "ivv", Bound: bound(1, 2)}}}, `"ivv"`},
-		"min>max":   {&catalogue.Spec{Batch: 1, Limits: []catalogue.Limit{{Name: "iv", Bound: bound(3, 2)}}}, "min must not exceed max"},
+		"min>max":   {&catalogue.Spec{Batch: 1, Limits: []catalogue.Limit{{Name: "iv", Bound: bound(3, 2)}}}, "is above max"},
 		"use stock": {&catalogue.Spec{Batch: 1, Use: []catalogue.Use{{Stock: "nope", Bound: bound(0, 2)}}}, `"nope"`},
 	}
 	for name, c := range cases {
@@ -285,7 +285,7 @@ func TestOddInputsNeverPanic(t *testing.T) {
 			s.Use = []catalogue.Use{{Stock: "hard", Bound: bound(150, 200)}}
 		},
 		"zero avail":  func(c *catalogue.Catalogue, _ *catalogue.Spec) { c.Stocks[0].Available, c.Stocks[1].Available = 0, 0 },
-		"rules range": func(_ *catalogue.Catalogue, s *catalogue.Spec) { s.Rules.MinIfUsed = 150 },
+		"rules range": func(_ *catalogue.Catalogue, s *catalogue.Spec) { s.Rules.SmallestShare = 150 },
 		"sfc no data": func(_ *catalogue.Catalogue, s *catalogue.Spec) {
 			s.SFC = []catalogue.SFCLimit{{Temp: 20, Bound: bound(5, inf())}}
 		},

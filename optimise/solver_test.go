@@ -46,7 +46,7 @@ func TestSolverMatchesFreshSolves(t *testing.T) {
 	lam, ok := catalogue.DemoSpec("laminating")
 	require.True(t, ok)
 	lam = lam.Clone()
-	lam.Rules = catalogue.Rules{MaxStocks: 3, MinIfUsed: 8}
+	lam.Rules = catalogue.Rules{MaxStocks: 3, SmallestShare: 8}
 	jobs = append(jobs, job{demo, lam})
 	want := make([]*Result, len(jobs))
 	infeasible := 0

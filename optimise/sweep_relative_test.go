@@ -148,7 +148,7 @@ func TestSweepSeveralStocksAgainstSolves(t *testing.T) {
 		cat := genStocks(r, 4+r.IntN(16))
 		spec := genSpec(r, cat, 3+r.IntN(10))
 		if k%3 == 2 {
-			spec.Rules = catalogue.Rules{MaxStocks: 3, MinIfUsed: 5}
+			spec.Rules = catalogue.Rules{MaxStocks: 3, SmallestShare: 5}
 		}
 		perm := r.Perm(len(cat.Stocks))[:2+r.IntN(2)]
 		var ids []string

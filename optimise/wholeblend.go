@@ -218,7 +218,7 @@ func (wb *wholeBlend) notes(used []blend.Part) []string {
 	}
 	model := "TAG model: " + sle.Describe(wb.opt)
 	if len(fits) > 0 {
-		model += "; its RMS error against the measured curves of the stocks used, % solid: " + strings.Join(fits, ", ")
+		model += "; its error against the measured curves of the stocks used, RMS % solid: " + strings.Join(fits, ", ")
 	}
 	out = append(out, model, "In general "+sle.MeasuredError)
 	return out

@@ -5,29 +5,28 @@ import (
 
 	"github.com/stretchr/testify/require"
 
-	"lipoplan/blend"
 	"lipoplan/catalogue"
 	"lipoplan/randomise"
 )
 
 // blend12 is a three-stock blend over 12 fatty acids (1,728 positional
 // species): palm oil and palm kernel oil with a lauric-free seed oil.
-func blend12(tb testing.TB) []blend.Part {
+func blend12(tb testing.TB) []catalogue.Part {
 	palm, pko := palmOil(), palmKernelOil()
 	delete(palm.FattyAcids, "C20:1")
 	delete(palm.FattyAcids, "C12:0")
 	seed := catalogue.Stock{ID: "seed", FattyAcids: map[string]float64{
 		"C16:0": 6, "C18:0": 3, "C18:1": 60, "C18:2": 20, "C18:3": 9, "C20:0": 1, "C22:0": 1}}
-	parts := []blend.Part{{Stock: &palm, Pct: 50}, {Stock: &pko, Pct: 30}, {Stock: &seed, Pct: 20}}
+	parts := []catalogue.Part{{Stock: &palm, Pct: 50}, {Stock: &pko, Pct: 30}, {Stock: &seed, Pct: 20}}
 	d, err := randomise.Distribute(parts, randomise.Native, 0)
 	require.NoError(tb, err)
 	require.Len(tb, d.Acids, 12)
 	return parts
 }
 
-// BenchmarkDistribution12 is the DESIGN section 7 target: 12 acids with
-// grouping under 100 us. A partial chemical reaction is the heaviest case
-// (start and equilibrium are both built).
+// BenchmarkDistribution12 is a performance target (DEVELOPERS.md, "Project
+// decisions"): 12 acids with grouping under 100 us. A partial chemical
+// reaction is the heaviest case (start and equilibrium are both built).
 func BenchmarkDistribution12(b *testing.B) {
 	parts := blend12(b)
 	b.ReportAllocs()

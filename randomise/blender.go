@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"math"
 
-	"lipoplan/blend"
 	"lipoplan/catalogue"
 )
 
@@ -31,13 +30,13 @@ type Blender struct {
 }
 
 // NewBlender prepares the stocks. A stock whose composition the TAG model
-// cannot use (no fatty-acid profile and no TAG profile, an unknown acid) is
-// bad input naming it.
+// cannot use (no fatty-acid profile and no TAG profile, or a profile
+// Stock.CheckProfiles refuses) is bad input naming it.
 func NewBlender(stocks []*catalogue.Stock) (*Blender, error) {
 	if len(stocks) == 0 {
 		return nil, catalogue.Badf("the blend names no stock; give at least one")
 	}
-	parts := make([]blend.Part, len(stocks))
+	parts := make([]catalogue.Part, len(stocks))
 	for i, st := range stocks {
 		if st == nil {
 			return nil, fmt.Errorf("randomise: blender stock %d is nil", i)
@@ -45,12 +44,12 @@ func NewBlender(stocks []*catalogue.Stock) (*Blender, error) {
 		if len(st.FattyAcids) == 0 && len(st.TAGs) == 0 {
 			return nil, catalogue.Badf("stock %q has neither a fatty-acid profile nor a TAG profile, so the TAG model cannot predict its solid fat; add [stock.fatty_acids]", st.ID)
 		}
-		parts[i] = blend.Part{Stock: st, Pct: 1}
+		if err := st.CheckProfiles().Err(); err != nil {
+			return nil, err
+		}
+		parts[i] = catalogue.Part{Stock: st, Pct: 1}
 	}
-	acids, err := acidSet(parts)
-	if err != nil {
-		return nil, err
-	}
+	acids := acidSet(parts)
 	n := len(acids)
 	b := &Blender{Acids: acids, stocks: stocks, src: make([]source, len(stocks)),
 		m1: make([]float64, n), m2: make([]float64, n), m3: make([]float64, n)}

@@ -7,7 +7,6 @@ import (
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
-	"lipoplan/blend"
 	"lipoplan/catalogue"
 	"lipoplan/randomise"
 )
@@ -55,17 +54,17 @@ func TestBlenderAgainstDistribute(t *testing.T) {
 	r := rand.New(rand.NewPCG(7, 8))
 	for trial := 0; trial < 60; trial++ {
 		direct, feed := make([]float64, len(stocks)), make([]float64, len(stocks))
-		var dParts, fParts []blend.Part
+		var dParts, fParts []catalogue.Part
 		var dMass, fMass float64
 		for j := range stocks {
 			if r.IntN(3) == 0 {
 				direct[j] = 100 * r.Float64()
-				dParts = append(dParts, blend.Part{Stock: stocks[j], Pct: direct[j]})
+				dParts = append(dParts, catalogue.Part{Stock: stocks[j], Pct: direct[j]})
 				dMass += direct[j]
 			}
 			if r.IntN(4) == 0 {
 				feed[j] = 100 * r.Float64()
-				fParts = append(fParts, blend.Part{Stock: stocks[j], Pct: feed[j]})
+				fParts = append(fParts, catalogue.Part{Stock: stocks[j], Pct: feed[j]})
 				fMass += feed[j]
 			}
 		}
@@ -79,7 +78,7 @@ func TestBlenderAgainstDistribute(t *testing.T) {
 		require.NoError(t, b.Mix(direct, feed, method, out))
 		want := make([]float64, len(out))
 		var moles float64
-		add := func(parts []blend.Part, m randomise.Method, mass float64) {
+		add := func(parts []catalogue.Part, m randomise.Method, mass float64) {
 			if len(parts) == 0 {
 				return
 			}

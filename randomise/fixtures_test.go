@@ -5,7 +5,6 @@ import (
 
 	"github.com/stretchr/testify/require"
 
-	"lipoplan/blend"
 	"lipoplan/catalogue"
 	"lipoplan/randomise"
 )
@@ -91,7 +90,7 @@ func fatWithMol(t *testing.T, x map[string]float64) map[string]float64 {
 	return out
 }
 
-func distribute(t testing.TB, parts []blend.Part, m randomise.Method, degree float64) *randomise.Distribution {
+func distribute(t testing.TB, parts []catalogue.Part, m randomise.Method, degree float64) *randomise.Distribution {
 	t.Helper()
 	d, err := randomise.Distribute(parts, m, degree)
 	require.NoError(t, err)

@@ -2,7 +2,6 @@ package randomise
 
 import (
 	"fmt"
-	"math"
 	"strings"
 
 	"lipoplan/catalogue"
@@ -36,6 +35,9 @@ func Saturated(f catalogue.FattyAcid) (catalogue.FattyAcid, error) {
 // availability are those of the feed (processing cost is the caller's).
 // Partially hydrogenated fats are not modelled: take them as catalogued.
 func Harden(s catalogue.Stock) (catalogue.Stock, error) {
+	if err := s.CheckProfiles().Err(); err != nil {
+		return catalogue.Stock{}, err
+	}
 	out := s
 	out.ID = s.ID + "-fh"
 	out.Name = s.Name + ", fully hardened"
@@ -43,13 +45,7 @@ func Harden(s catalogue.Stock) (catalogue.Stock, error) {
 	if len(s.FattyAcids) > 0 {
 		moles := map[string]float64{}
 		for k, w := range s.FattyAcids {
-			f, ok := catalogue.Lookup(k)
-			if !ok {
-				return catalogue.Stock{}, catalogue.Badf("stock %q: fatty acid %q is not in the reference table; use one of %s", s.ID, k, strings.Join(catalogue.Keys(), " "))
-			}
-			if w < 0 || math.IsNaN(w) || math.IsInf(w, 0) {
-				return catalogue.Stock{}, catalogue.Badf("stock %q: fatty acid %q: %v wt%% is not a finite number >= 0", s.ID, k, w)
-			}
+			f, _ := catalogue.Lookup(k) // CheckProfiles: every key is in the table
 			h, err := Saturated(f)
 			if err != nil {
 				return catalogue.Stock{}, fmt.Errorf("stock %q: %w", s.ID, err)
@@ -73,10 +69,7 @@ func Harden(s catalogue.Stock) (catalogue.Stock, error) {
 	if s.SN2 != nil {
 		sn2 := map[string]float64{}
 		for k, v := range s.SN2 {
-			f, ok := catalogue.Lookup(k)
-			if !ok {
-				return catalogue.Stock{}, catalogue.Badf("stock %q: sn-2 profile names fatty acid %q, which is not in the reference table", s.ID, k)
-			}
+			f, _ := catalogue.Lookup(k)
 			h, err := Saturated(f)
 			if err != nil {
 				return catalogue.Stock{}, fmt.Errorf("stock %q: %w", s.ID, err)
@@ -89,8 +82,8 @@ func Harden(s catalogue.Stock) (catalogue.Stock, error) {
 		tags := map[string]float64{}
 		for code, v := range s.TAGs {
 			fs, err := catalogue.ParseTAGCode(code)
-			if err != nil {
-				return catalogue.Stock{}, catalogue.Badf("stock %q: measured TAG profile: %w", s.ID, err)
+			if err != nil { // CheckProfiles refuses it first
+				return catalogue.Stock{}, fmt.Errorf("randomise: stock %q: %w", s.ID, err)
 			}
 			var name strings.Builder
 			for _, f := range fs {

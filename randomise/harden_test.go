@@ -40,7 +40,7 @@ func TestHardenSoybean(t *testing.T) {
 	// Moles are conserved acid by acid: the hardstock's C18:0 mole fraction
 	// is the sum of the oil's C18 mole fractions (first principles), while
 	// the wt% of C18:0 grows by the added hydrogen.
-	acids, x, err := randomise.MolFractions(soy.FattyAcids)
+	acids, x, err := catalogue.MolFractions(soy.FattyAcids)
 	require.NoError(t, err)
 	var c18 float64
 	var c18wt float64
@@ -50,7 +50,7 @@ func TestHardenSoybean(t *testing.T) {
 			c18wt += soy.FattyAcids[f.Key]
 		}
 	}
-	hAcids, hx, err := randomise.MolFractions(h.FattyAcids)
+	hAcids, hx, err := catalogue.MolFractions(h.FattyAcids)
 	require.NoError(t, err)
 	for i, f := range hAcids {
 		if f.Key == "C18:0" {
@@ -59,9 +59,9 @@ func TestHardenSoybean(t *testing.T) {
 	}
 	assert.Greater(t, h.FattyAcids["C18:0"], c18wt/sumValues(soy.FattyAcids)*100)
 
-	// Tristearin, the main TAG of the hardstock, is 891.5 g/mol (DESIGN
-	// section 5 check value).
-	d := distribute(t, []blend.Part{{Stock: &h, Pct: 100}}, randomise.Native, 0)
+	// Tristearin, the main TAG of the hardstock, is 891.5 g/mol (PubChem,
+	// from memory).
+	d := distribute(t, []catalogue.Part{{Stock: &h, Pct: 100}}, randomise.Native, 0)
 	sp := speciesByTag(d.Species())
 	assert.InDelta(t, 891.5, sp["SSS"].MolarMass, 0.1)
 	assert.InDelta(t, 100, d.Classes().Mol.S3, 1e-9)

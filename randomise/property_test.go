@@ -7,7 +7,6 @@ import (
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
-	"lipoplan/blend"
 	"lipoplan/catalogue"
 	"lipoplan/randomise"
 )
@@ -54,12 +53,12 @@ func randomStock(r *rand.Rand, id string) catalogue.Stock {
 	return s
 }
 
-func randomParts(r *rand.Rand) []blend.Part {
+func randomParts(r *rand.Rand) []catalogue.Part {
 	n := 1 + r.IntN(4)
-	parts := make([]blend.Part, n)
+	parts := make([]catalogue.Part, n)
 	for i := range parts {
 		s := randomStock(r, string(rune('a'+i)))
-		parts[i] = blend.Part{Stock: &s, Pct: 1 + 99*r.Float64()}
+		parts[i] = catalogue.Part{Stock: &s, Pct: 1 + 99*r.Float64()}
 	}
 	return parts
 }
@@ -126,7 +125,7 @@ type refDist map[[3]string]float64
 // with clamping, TAG moles per stock = mass / mean TAG molar mass, then
 // random (chemical) or sn-2-preserving (enzymatic) reshuffling and the
 // linear partial mix.
-func reference(t *testing.T, parts []blend.Part, method randomise.Method, deg float64) refDist {
+func reference(t *testing.T, parts []catalogue.Part, method randomise.Method, deg float64) refDist {
 	t.Helper()
 	tagMass := func(k [3]string) float64 {
 		var fs [3]catalogue.FattyAcid
@@ -321,7 +320,7 @@ func FuzzDistribute(f *testing.F) {
 			s.TAGs = map[string]float64{code: tv}
 		}
 		method := []randomise.Method{randomise.Native, randomise.Chemical, randomise.Enzymatic}[m%3]
-		d, err := randomise.Distribute([]blend.Part{{Stock: &s, Pct: pct}}, method, deg)
+		d, err := randomise.Distribute([]catalogue.Part{{Stock: &s, Pct: pct}}, method, deg)
 		if err != nil {
 			return
 		}

@@ -27,7 +27,6 @@ import (
 	"slices"
 	"strings"
 
-	"lipoplan/blend"
 	"lipoplan/catalogue"
 )
 
@@ -126,46 +125,6 @@ func (d *Distribution) FattyAcids() map[string]float64 {
 	return out
 }
 
-// MolFractions converts a fatty-acid profile in wt% as FAME (GC area% taken as
-// wt% FAME) to mole fractions through the methyl esters' molar masses:
-// n_i = w_i / M(FAME_i), x_i = n_i / sum n. Acids with zero share are left out;
-// the acids come back in reference-table order.
-func MolFractions(fa map[string]float64) (acids []catalogue.FattyAcid, x []float64, err error) {
-	// one rank look-up per key, then a walk in table order (no sorting)
-	ranked := make([]float64, len(catalogue.Keys()))
-	present := make([]bool, len(ranked))
-	for k, w := range fa {
-		r := catalogue.Rank(k)
-		if r < 0 {
-			return nil, nil, catalogue.Badf("fatty acid %q is not in the reference table; use one of %s", k, strings.Join(catalogue.Keys(), " "))
-		}
-		if w < 0 || math.IsNaN(w) || math.IsInf(w, 0) {
-			return nil, nil, catalogue.Badf("fatty acid %q: %v wt%% is not a finite number >= 0", k, w)
-		}
-		if w > 0 {
-			ranked[r] += w
-			present[r] = true
-		}
-	}
-	var total float64
-	for r, f := range catalogue.FattyAcids() {
-		if !present[r] {
-			continue
-		}
-		n := ranked[r] / f.EsterMolarMass()
-		acids = append(acids, f)
-		x = append(x, n)
-		total += n
-	}
-	if total <= 0 {
-		return nil, nil, catalogue.Badf("the fatty-acid profile is empty; give wt%% FAME for at least one acid")
-	}
-	for i := range x {
-		x[i] /= total
-	}
-	return acids, x, nil
-}
-
 // SN13 is the 1,3-random-2-random relation (Vander Wal; Coleman): with x the
 // overall mole fraction of an acid and x2 its mole fraction at sn-2, the
 // fraction at each of sn-1 and sn-3 is x13 = (3 x - x2) / 2, since the three
@@ -228,33 +187,25 @@ type entry struct {
 // enzymatic equilibrium is y13_i y2_j y13_k with y2 the blend's sn-2 profile
 // (every glycerol keeps its sn-2 acid; acyl migration is neglected) and y13 the
 // blend's sn-1,3 profile.
-func Distribute(parts []blend.Part, method Method, degree float64) (*Distribution, error) {
+func Distribute(parts []catalogue.Part, method Method, degree float64) (*Distribution, error) {
 	if _, err := ParseMethod(string(method)); err != nil {
 		return nil, err
 	}
 	if math.IsNaN(degree) || degree < 0 || degree > 1 {
 		return nil, catalogue.Badf("degree of reaction %v is outside 0..1; give a fraction such as 0.5 (1 = full equilibrium)", degree)
 	}
-	if len(parts) == 0 {
-		return nil, catalogue.Badf("the mix names no stock; give at least one stock with a share above 0")
-	}
-	var total float64
-	for _, p := range parts {
-		if p.Stock == nil {
-			return nil, fmt.Errorf("randomise: mix part without a stock")
-		}
-		if p.Pct < 0 || math.IsNaN(p.Pct) || math.IsInf(p.Pct, 0) {
-			return nil, catalogue.Badf("stock %q: share %v %% is not a finite number >= 0", p.Stock.ID, p.Pct)
-		}
-		total += p.Pct
-	}
-	if total <= 0 {
-		return nil, catalogue.Badf("the shares of the mix add up to 0; give at least one stock a share above 0")
-	}
-	acids, err := acidSet(parts)
+	total, err := catalogue.CheckParts(parts)
 	if err != nil {
 		return nil, err
 	}
+	for _, p := range parts {
+		if p.Pct > 0 {
+			if err := p.Stock.CheckProfiles().Err(); err != nil {
+				return nil, err
+			}
+		}
+	}
+	acids := acidSet(parts)
 	n := len(acids)
 	d := &Distribution{Acids: acids, Mol: make([]float64, n*n*n), Method: method}
 	if method != Native {
@@ -377,18 +328,14 @@ func (s *source) marginals(n int, m1, m2, m3 []float64) {
 }
 
 // acidSet collects every acid named by the stocks' FA, sn-2 and TAG profiles,
-// in reference-table order.
-func acidSet(parts []blend.Part) ([]catalogue.FattyAcid, error) {
+// in reference-table order. The profiles have passed Stock.CheckProfiles.
+func acidSet(parts []catalogue.Part) []catalogue.FattyAcid {
 	table := catalogue.FattyAcids()
 	used := make([]bool, len(table))
-	mark := func(st *catalogue.Stock, what, key string) error {
-		r := catalogue.Rank(key)
-		if r < 0 {
-			return catalogue.Badf("stock %q: %s names fatty acid %q, which is not in the reference table; use one of %s",
-				st.ID, what, key, strings.Join(catalogue.Keys(), " "))
+	mark := func(key string) {
+		if r := catalogue.Rank(key); r >= 0 {
+			used[r] = true
 		}
-		used[r] = true
-		return nil
 	}
 	for _, p := range parts {
 		if p.Pct == 0 {
@@ -397,31 +344,22 @@ func acidSet(parts []blend.Part) ([]catalogue.FattyAcid, error) {
 		st := p.Stock
 		if len(st.TAGs) > 0 {
 			for code, v := range st.TAGs {
-				if v == 0 {
-					continue
-				}
-				fs, err := catalogue.ParseTAGCode(code)
-				if err != nil {
-					return nil, catalogue.Badf("stock %q: measured TAG profile: %w", st.ID, err)
-				}
-				for _, f := range fs {
-					used[catalogue.Rank(f.Key)] = true
+				if fs, err := catalogue.ParseTAGCode(code); err == nil && v != 0 {
+					for _, f := range fs {
+						mark(f.Key)
+					}
 				}
 			}
 			continue
 		}
 		for k, v := range st.FattyAcids {
 			if v != 0 {
-				if err := mark(st, "the fatty-acid profile", k); err != nil {
-					return nil, err
-				}
+				mark(k)
 			}
 		}
 		for k, v := range st.SN2 {
 			if v != 0 {
-				if err := mark(st, "the sn-2 profile", k); err != nil {
-					return nil, err
-				}
+				mark(k)
 			}
 		}
 	}
@@ -431,7 +369,7 @@ func acidSet(parts []blend.Part) ([]catalogue.FattyAcid, error) {
 			out = append(out, table[i])
 		}
 	}
-	return out, nil
+	return out
 }
 
 func indexOf(acids []catalogue.FattyAcid, key string) int {
@@ -445,7 +383,7 @@ func stockSource(st *catalogue.Stock, acids []catalogue.FattyAcid, needSN2 bool)
 		return measuredSource(st, acids)
 	}
 	n := len(acids)
-	fa, fx, err := MolFractions(st.FattyAcids)
+	fa, fx, err := catalogue.MolFractions(st.FattyAcids)
 	if err != nil {
 		return source{}, nil, catalogue.Badf("stock %q: %w", st.ID, err)
 	}
@@ -464,9 +402,6 @@ func stockSource(st *catalogue.Stock, acids []catalogue.FattyAcid, needSN2 bool)
 		x2 = make([]float64, n)
 		var sum float64
 		for k, v := range st.SN2 {
-			if v < 0 || math.IsNaN(v) || math.IsInf(v, 0) {
-				return source{}, nil, catalogue.Badf("stock %q: sn-2 profile: %q = %v mol%% is not a finite number >= 0", st.ID, k, v)
-			}
 			if v > 0 {
 				x2[indexOf(acids, k)] = v
 				sum += v
@@ -507,15 +442,12 @@ func measuredSource(st *catalogue.Stock, acids []catalogue.FattyAcid) (source, [
 	acc := map[int]float64{}
 	var sum float64
 	for code, v := range st.TAGs {
-		if v < 0 || math.IsNaN(v) || math.IsInf(v, 0) {
-			return source{}, nil, catalogue.Badf("stock %q: measured TAG %q = %v mol%% is not a finite number >= 0", st.ID, code, v)
-		}
 		if v == 0 {
 			continue
 		}
 		fs, err := catalogue.ParseTAGCode(code)
-		if err != nil {
-			return source{}, nil, catalogue.Badf("stock %q: measured TAG profile: %w", st.ID, err)
+		if err != nil { // Stock.CheckProfiles refuses it first
+			return source{}, nil, fmt.Errorf("randomise: stock %q: %w", st.ID, err)
 		}
 		i, j, k := indexOf(acids, fs[0].Key), indexOf(acids, fs[1].Key), indexOf(acids, fs[2].Key)
 		acc[(i*n+j)*n+k] += v / 2
@@ -544,7 +476,7 @@ func measuredSource(st *catalogue.Stock, acids []catalogue.FattyAcid) (source, [
 		x[k] += e.frac / 3
 	}
 	if len(st.FattyAcids) > 0 {
-		if fa, fx, err := MolFractions(st.FattyAcids); err == nil {
+		if fa, fx, err := catalogue.MolFractions(st.FattyAcids); err == nil {
 			cat := make([]float64, n)
 			for i, f := range fa {
 				if r := indexOf(acids, f.Key); r >= 0 {

@@ -12,28 +12,6 @@ import (
 	"lipoplan/randomise"
 )
 
-func TestMolFractionsThroughMethylEsterMasses(t *testing.T) {
-	// Methyl palmitate C17H34O2 270.45 g/mol and methyl oleate C19H36O2
-	// 296.49 g/mol (PubChem molecular weights, from memory).
-	acids, x, err := randomise.MolFractions(map[string]float64{"C18:1": 50, "C16:0": 50})
-	require.NoError(t, err)
-	require.Len(t, acids, 2)
-	assert.Equal(t, "C16:0", acids[0].Key, "acids in reference-table order")
-	assert.InDelta(t, 270.45, acids[0].EsterMolarMass(), 0.01)
-	assert.InDelta(t, 296.49, acids[1].EsterMolarMass(), 0.01)
-	nP, nO := 50/270.45, 50/296.49
-	assert.InDelta(t, nP/(nP+nO), x[0], 1e-4)
-	assert.InDelta(t, nO/(nP+nO), x[1], 1e-4)
-	assert.InDelta(t, 1, x[0]+x[1], 1e-15)
-
-	_, _, err = randomise.MolFractions(map[string]float64{"C18:9": 10})
-	assert.True(t, catalogue.IsBadInput(err))
-	_, _, err = randomise.MolFractions(map[string]float64{"C16:0": 0})
-	assert.True(t, catalogue.IsBadInput(err))
-	_, _, err = randomise.MolFractions(map[string]float64{"C16:0": -3})
-	assert.True(t, catalogue.IsBadInput(err))
-}
-
 func TestSN13Relation(t *testing.T) {
 	// x13 = (3 x_total - x_sn2) / 2 (1,3-random-2-random; Vander Wal 1960,
 	// Coleman 1961): worked by hand, x = (0.5, 0.5), x2 = (0, 1) gives
@@ -51,8 +29,8 @@ func TestSN13Relation(t *testing.T) {
 
 func TestNativeFollowsSN2Profile(t *testing.T) {
 	palm := palmOil()
-	d := distribute(t, []blend.Part{{Stock: &palm, Pct: 100}}, randomise.Native, 0)
-	acids, x, err := randomise.MolFractions(palm.FattyAcids)
+	d := distribute(t, []catalogue.Part{{Stock: &palm, Pct: 100}}, randomise.Native, 0)
+	acids, x, err := catalogue.MolFractions(palm.FattyAcids)
 	require.NoError(t, err)
 	sn1, sn2, sn3 := d.Positions()
 	var sn2Sum float64
@@ -79,7 +57,7 @@ func TestNativeFollowsSN2Profile(t *testing.T) {
 
 func TestNoSN2MeansRandomAndIsNoted(t *testing.T) {
 	pko := palmKernelOil()
-	d := distribute(t, []blend.Part{{Stock: &pko, Pct: 100}}, randomise.Native, 0)
+	d := distribute(t, []catalogue.Part{{Stock: &pko, Pct: 100}}, randomise.Native, 0)
 	require.Len(t, d.Notes, 1)
 	assert.Contains(t, d.Notes[0], `"pko"`)
 	assert.Contains(t, d.Notes[0], "random")
@@ -88,14 +66,14 @@ func TestNoSN2MeansRandomAndIsNoted(t *testing.T) {
 	assert.InDeltaSlice(t, sn1, sn3, 1e-12)
 
 	// A chemical reaction run to the end does not depend on sn-2: no note.
-	d = distribute(t, []blend.Part{{Stock: &pko, Pct: 100}}, randomise.Chemical, 1)
+	d = distribute(t, []catalogue.Part{{Stock: &pko, Pct: 100}}, randomise.Chemical, 1)
 	assert.Empty(t, d.Notes)
 }
 
 func TestClampIsReported(t *testing.T) {
 	s := catalogue.Stock{ID: "odd", FattyAcids: map[string]float64{"C16:0": 20, "C18:1": 80},
 		SN2: map[string]float64{"C16:0": 90, "C18:1": 10}}
-	d := distribute(t, []blend.Part{{Stock: &s, Pct: 100}}, randomise.Native, 0)
+	d := distribute(t, []catalogue.Part{{Stock: &s, Pct: 100}}, randomise.Native, 0)
 	require.Len(t, d.Notes, 1)
 	assert.Contains(t, d.Notes[0], "C16:0")
 	assert.Contains(t, d.Notes[0], "set to 0")
@@ -113,7 +91,7 @@ func TestRandomTripalmitinTriolein(t *testing.T) {
 	// equal moles: mass shares in the ratio of the molar masses
 	mP := catalogue.TAGMolarMass(mustLookup(t, "C16:0"), mustLookup(t, "C16:0"), mustLookup(t, "C16:0"))
 	mO := catalogue.TAGMolarMass(mustLookup(t, "C18:1"), mustLookup(t, "C18:1"), mustLookup(t, "C18:1"))
-	parts := []blend.Part{{Stock: &ppp, Pct: mP}, {Stock: &ooo, Pct: mO}}
+	parts := []catalogue.Part{{Stock: &ppp, Pct: mP}, {Stock: &ooo, Pct: mO}}
 
 	native := distribute(t, parts, randomise.Native, 0)
 	c := native.Classes().Mol
@@ -142,8 +120,8 @@ func TestRandomTripalmitinTriolein(t *testing.T) {
 	// pair, every species has ECN 48 (common practice in RP-HPLC of TAGs).
 	assert.Equal(t, map[int]float64{48: 100}, roundMap(d.ByECN()))
 
-	// Molar masses: DESIGN section 5 check values, tripalmitin 807.3 and
-	// triolein 885.4 g/mol.
+	// Molar masses: tripalmitin 807.3 and triolein 885.4 g/mol (PubChem,
+	// from memory).
 	sp := speciesByTag(d.Species())
 	assert.InDelta(t, 807.3, sp["PPP"].MolarMass, 0.1)
 	assert.InDelta(t, 885.4, sp["OOO"].MolarMass, 0.1)
@@ -162,7 +140,7 @@ func TestEnzymaticKeepsSUSFat(t *testing.T) {
 	s := catalogue.Stock{ID: "sus",
 		FattyAcids: fatWithMol(t, map[string]float64{"C16:0": 1.0 / 3, "C18:0": 1.0 / 3, "C18:1": 1.0 / 3}),
 		SN2:        map[string]float64{"C18:1": 100}}
-	parts := []blend.Part{{Stock: &s, Pct: 100}}
+	parts := []catalogue.Part{{Stock: &s, Pct: 100}}
 	native := distribute(t, parts, randomise.Native, 0)
 	require.InDelta(t, 100, native.Classes().Mol.SUS, 1e-9)
 
@@ -180,7 +158,7 @@ func TestEnzymaticKeepsSUSFat(t *testing.T) {
 	// Measured TAGs POP 60 / SOS 40: the lipase shuffles sn-1,3 (POS and SOP
 	// appear) but every molecule keeps oleic acid at sn-2: still 100 % SUS.
 	m := catalogue.Stock{ID: "cbe", TAGs: map[string]float64{"POP": 60, "SOS": 40}}
-	parts = []blend.Part{{Stock: &m, Pct: 100}}
+	parts = []catalogue.Part{{Stock: &m, Pct: 100}}
 	native = distribute(t, parts, randomise.Native, 0)
 	enz = distribute(t, parts, randomise.Enzymatic, 1)
 	assert.InDelta(t, 100, enz.Classes().Mol.SUS, 1e-9)
@@ -193,7 +171,7 @@ func TestEnzymaticKeepsSUSFat(t *testing.T) {
 func TestInteresterificationConservesFattyAcids(t *testing.T) {
 	palm, soy, pko := palmOil(), soybeanOil(), palmKernelOil()
 	cbe := catalogue.Stock{ID: "cbe", TAGs: map[string]float64{"POP": 20, "POS": 40, "SOS": 30, "POO": 10}}
-	parts := []blend.Part{{Stock: &palm, Pct: 40}, {Stock: &soy, Pct: 25}, {Stock: &pko, Pct: 20}, {Stock: &cbe, Pct: 15}}
+	parts := []catalogue.Part{{Stock: &palm, Pct: 40}, {Stock: &soy, Pct: 25}, {Stock: &pko, Pct: 20}, {Stock: &cbe, Pct: 15}}
 	native := distribute(t, parts, randomise.Native, 0)
 	x0 := native.FattyAcidMol()
 	_, sn2Native, _ := native.Positions()
@@ -228,7 +206,7 @@ func TestInteresterificationConservesFattyAcids(t *testing.T) {
 	want := map[string]float64{}
 	var tot float64
 	for _, p := range mixParts {
-		acids, x, err := randomise.MolFractions(p.Stock.FattyAcids)
+		acids, x, err := catalogue.MolFractions(p.Stock.FattyAcids)
 		require.NoError(t, err)
 		var meanAcid float64
 		for i, f := range acids {
@@ -259,8 +237,8 @@ func TestInteresterificationConservesFattyAcids(t *testing.T) {
 // x_S^3 with x_S the mole fraction of saturated acids.
 func TestRandomPalmOilTrisaturates(t *testing.T) {
 	palm := palmOil()
-	parts := []blend.Part{{Stock: &palm, Pct: 100}}
-	acids, x, err := randomise.MolFractions(palm.FattyAcids)
+	parts := []catalogue.Part{{Stock: &palm, Pct: 100}}
+	acids, x, err := catalogue.MolFractions(palm.FattyAcids)
 	require.NoError(t, err)
 	var xs float64
 	for i, f := range acids {
@@ -283,7 +261,7 @@ func TestRandomPalmOilTrisaturates(t *testing.T) {
 
 func TestPartialDegree(t *testing.T) {
 	palm, pko := palmOil(), palmKernelOil()
-	parts := []blend.Part{{Stock: &palm, Pct: 60}, {Stock: &pko, Pct: 40}}
+	parts := []catalogue.Part{{Stock: &palm, Pct: 60}, {Stock: &pko, Pct: 40}}
 	native := distribute(t, parts, randomise.Native, 0)
 	for _, m := range []randomise.Method{randomise.Chemical, randomise.Enzymatic} {
 		zero := distribute(t, parts, m, 0)
@@ -309,38 +287,38 @@ func TestPartialDegree(t *testing.T) {
 
 func TestDistributeBadInput(t *testing.T) {
 	palm := palmOil()
-	ok := []blend.Part{{Stock: &palm, Pct: 100}}
+	ok := []catalogue.Part{{Stock: &palm, Pct: 100}}
 	for name, fn := range map[string]func() error{
 		"method":     func() error { _, err := randomise.Distribute(ok, "steam", 1); return err },
 		"degree>1":   func() error { _, err := randomise.Distribute(ok, randomise.Chemical, 1.5); return err },
 		"degree NaN": func() error { _, err := randomise.Distribute(ok, randomise.Chemical, math.NaN()); return err },
 		"no parts":   func() error { _, err := randomise.Distribute(nil, randomise.Native, 0); return err },
 		"zero": func() error {
-			_, err := randomise.Distribute([]blend.Part{{Stock: &palm}}, randomise.Native, 0)
+			_, err := randomise.Distribute([]catalogue.Part{{Stock: &palm}}, randomise.Native, 0)
 			return err
 		},
 		"negative": func() error {
-			_, err := randomise.Distribute([]blend.Part{{Stock: &palm, Pct: -1}}, randomise.Native, 0)
+			_, err := randomise.Distribute([]catalogue.Part{{Stock: &palm, Pct: -1}}, randomise.Native, 0)
 			return err
 		},
 		"fa key": func() error {
 			s := catalogue.Stock{ID: "x", FattyAcids: map[string]float64{"C18:7": 100}}
-			_, err := randomise.Distribute([]blend.Part{{Stock: &s, Pct: 1}}, randomise.Native, 0)
+			_, err := randomise.Distribute([]catalogue.Part{{Stock: &s, Pct: 1}}, randomise.Native, 0)
 			return err
 		},
 		"tag code": func() error {
 			s := catalogue.Stock{ID: "x", TAGs: map[string]float64{"PQP": 100}}
-			_, err := randomise.Distribute([]blend.Part{{Stock: &s, Pct: 1}}, randomise.Native, 0)
+			_, err := randomise.Distribute([]catalogue.Part{{Stock: &s, Pct: 1}}, randomise.Native, 0)
 			return err
 		},
 		"empty stock": func() error {
 			s := catalogue.Stock{ID: "x"}
-			_, err := randomise.Distribute([]blend.Part{{Stock: &s, Pct: 1}}, randomise.Native, 0)
+			_, err := randomise.Distribute([]catalogue.Part{{Stock: &s, Pct: 1}}, randomise.Native, 0)
 			return err
 		},
 		"sn2 zero": func() error {
 			s := catalogue.Stock{ID: "x", FattyAcids: map[string]float64{"C16:0": 100}, SN2: map[string]float64{"C16:0": 0}}
-			_, err := randomise.Distribute([]blend.Part{{Stock: &s, Pct: 1}}, randomise.Native, 0)
+			_, err := randomise.Distribute([]catalogue.Part{{Stock: &s, Pct: 1}}, randomise.Native, 0)
 			return err
 		},
 	} {
@@ -352,7 +330,7 @@ func TestDistributeBadInput(t *testing.T) {
 
 func TestMeasuredProfileSplitsMirrorImages(t *testing.T) {
 	s := catalogue.Stock{ID: "m", TAGs: map[string]float64{"PPO": 50, "POP": 30, "OOO": 18}}
-	d := distribute(t, []blend.Part{{Stock: &s, Pct: 100}}, randomise.Native, 0)
+	d := distribute(t, []catalogue.Part{{Stock: &s, Pct: 100}}, randomise.Native, 0)
 	require.Len(t, d.Notes, 1, "98 mol%% is rescaled and said so")
 	sp := speciesByTag(d.Species())
 	assert.InDelta(t, 25/0.98, sp["PPO"].MolPct, 1e-9)
@@ -374,13 +352,13 @@ func TestMeasuredProfileSplitsMirrorImages(t *testing.T) {
 
 	// A measured profile that contradicts the FA profile is flagged.
 	s.FattyAcids = map[string]float64{"C16:0": 10, "C18:1": 90}
-	d = distribute(t, []blend.Part{{Stock: &s, Pct: 100}}, randomise.Native, 0)
+	d = distribute(t, []catalogue.Part{{Stock: &s, Pct: 100}}, randomise.Native, 0)
 	assert.Len(t, d.Notes, 2)
 }
 
 func TestSpeciesSortedAndComplete(t *testing.T) {
 	palm, soy := palmOil(), soybeanOil()
-	d := distribute(t, []blend.Part{{Stock: &palm, Pct: 50}, {Stock: &soy, Pct: 50}}, randomise.Chemical, 0.7)
+	d := distribute(t, []catalogue.Part{{Stock: &palm, Pct: 50}, {Stock: &soy, Pct: 50}}, randomise.Chemical, 0.7)
 	for _, lvl := range []randomise.Isomers{randomise.Stereo, randomise.Regio, randomise.Combined} {
 		ss := d.SpeciesBy(lvl)
 		var mol, wt float64

@@ -7,8 +7,9 @@ import (
 	tea "charm.land/bubbletea/v2"
 )
 
-// frame is the budget of one redraw at 60 frames per second (DESIGN 7: a
-// what-if edit re-solves and redraws within one 16 ms frame).
+// frame is the budget of one redraw at 60 frames per second (DEVELOPERS.md,
+// "Project decisions": a what-if edit re-solves and redraws within one
+// 16 ms frame).
 const frame = 16 * time.Millisecond
 
 // BenchmarkEditSolveView is one what-if edit on the demo spec: a price nudge

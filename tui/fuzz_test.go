@@ -107,6 +107,14 @@ func requireAccepted(t *testing.T, sc *Scenario) {
 			}
 		}
 	}
-	check(catalogue.QtyPercent, "min if used", sc.Spec.Rules.MinIfUsed)
+	check(catalogue.QtyPercent, "smallest share if used", sc.Spec.Rules.SmallestShare)
 	require.GreaterOrEqual(t, sc.Spec.Rules.MaxStocks, 0)
+}
+
+// quantity is the kind of value a min/max row holds.
+func (r Row) quantity() catalogue.Quantity {
+	if r.Kind == RowLimit {
+		return catalogue.LimitQuantity(r.Key)
+	}
+	return catalogue.QtyPercent
 }

@@ -583,7 +583,7 @@ func nudgeStep(r Row) float64 {
 	switch r.Kind {
 	case RowBatch, RowMaxStocks, RowSFC, RowUse:
 		return 1
-	case RowMinIfUsed:
+	case RowSmallestShare:
 		return 0.5
 	}
 	switch r.Key {
@@ -637,7 +637,7 @@ func (m *Model) nudge(dir float64) tea.Cmd {
 			return nil
 		}
 		v := cur + dir*nudgeStep(r)
-		if r.Kind == RowUse || r.Kind == RowSFC || r.Kind == RowMinIfUsed || r.Kind == RowMaxStocks {
+		if r.Kind == RowUse || r.Kind == RowSFC || r.Kind == RowSmallestShare || r.Kind == RowMaxStocks {
 			v = math.Max(0, v)
 		}
 		next, err := m.sc.WithBound(r, side, v)

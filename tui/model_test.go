@@ -60,7 +60,7 @@ func TestWorkspaceShowsTheDemoBlend(t *testing.T) {
 	for _, l := range snap.Result.Blend {
 		assert.Contains(t, scr, l.Stock)
 	}
-	assert.Contains(t, scr, "GC FAME", "the caution line (DESIGN 10) is on screen")
+	assert.Contains(t, scr, "GC FAME", "the caution line (README, \"Cautions\") is on screen")
 	assert.Contains(t, scr, "local food law")
 	assert.Contains(t, scr, "u undo", "one-line key help")
 	d.requireFrame(80, 24)
@@ -381,7 +381,8 @@ func TestQuitAsksWhileUnsaved(t *testing.T) {
 // fraction of saturated acids and u = 1 - s, S3 = s³, S2U = 3s²u,
 // SU2 = 3su², U3 = u³ (random distribution theory; e.g. Gunstone, The
 // Chemistry of Oils and Fats, 2004 — from memory). Mole fractions come from
-// the FAME wt% through the methyl esters' molar masses (DESIGN section 5).
+// the FAME wt% through the methyl esters' molar masses (GC area % taken as
+// wt % FAME, ISO 12966-4:2015; catalogue.MolFractions).
 func TestTAGPanelRandomClasses(t *testing.T) {
 	d := newDriver(t, demoModel(t, "shortening", Files{}), 80, 24)
 	snap := d.m.Snapshot()

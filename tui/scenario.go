@@ -99,12 +99,12 @@ type RowKind int
 
 // Kinds of editable spec rows.
 const (
-	RowBatch     RowKind = iota // the batch size, tonnes
-	RowLimit                    // a property or fatty-acid limit
-	RowSFC                      // solid fat content at one temperature
-	RowUse                      // inclusion of one stock, % of batch
-	RowMaxStocks                // integer rule: at most this many stocks
-	RowMinIfUsed                // integer rule: a used stock is used at no less than this %
+	RowBatch         RowKind = iota // the batch size, tonnes
+	RowLimit                        // a property or fatty-acid limit
+	RowSFC                          // solid fat content at one temperature
+	RowUse                          // inclusion of one stock, % of batch
+	RowMaxStocks                    // integer rule: at most this many stocks
+	RowSmallestShare                // integer rule: a used stock is used at no less than this %
 )
 
 // Row is one editable line of the spec. Key is the stem of the optimiser's
@@ -122,7 +122,7 @@ type Row struct {
 
 // Single reports whether the row holds one value rather than a min/max pair.
 func (r Row) Single() bool {
-	return r.Kind == RowBatch || r.Kind == RowMaxStocks || r.Kind == RowMinIfUsed
+	return r.Kind == RowBatch || r.Kind == RowMaxStocks || r.Kind == RowSmallestShare
 }
 
 // Rows lists the spec as editable rows: batch, limits, SFC, stock use, rules.
@@ -141,7 +141,7 @@ func (s *Scenario) Rows() []Row {
 	}
 	rows = append(rows,
 		Row{Kind: RowMaxStocks, Key: "rules.max_stocks", Label: "max stocks", Unit: "stocks", Bound: catalogue.Bound{Min: math.Inf(-1), Max: float64(sp.Rules.MaxStocks)}},
-		Row{Kind: RowMinIfUsed, Key: "rules.min_if_used", Label: "min if used", Unit: "% batch", Bound: catalogue.Bound{Min: math.Inf(-1), Max: sp.Rules.MinIfUsed}},
+		Row{Kind: RowSmallestShare, Key: "rules.smallest_share", Label: "smallest share if used", Unit: "% batch", Bound: catalogue.Bound{Min: math.Inf(-1), Max: sp.Rules.SmallestShare}},
 	)
 	return rows
 }
@@ -185,45 +185,30 @@ func (sd Side) String() string {
 }
 
 // WithBound returns a new scenario with one side of row r set to v
-// (NaN or ±Inf clears that side). Single-value rows ignore side. A value
-// outside its quantity's accepted range is refused with the loader's words
-// (catalogue.Quantity.Check).
+// (NaN or ±Inf clears that side). Single-value rows ignore side. The edited
+// spec is checked as the loader checks a file (catalogue.Spec.Check), so a
+// value outside its quantity's accepted range or a minimum above its
+// maximum is refused in the loader's words.
 func (s *Scenario) WithBound(r Row, side Side, v float64) (*Scenario, error) {
 	out := s.Clone()
 	sp := out.Spec
 	clear := math.IsNaN(v) || math.IsInf(v, 0)
-	set := func(b *catalogue.Bound) error {
-		if !clear {
-			if err := r.quantity().Check(r.Label+" "+side.String(), v); err != nil {
-				return err
-			}
-		}
+	set := func(b *catalogue.Bound) {
 		switch {
 		case side == Min && clear:
 			b.Min = math.Inf(-1)
 		case side == Min:
-			if b.HasMax() && v > b.Max {
-				return fmt.Errorf("%s minimum %g is above its maximum %g", r.Label, v, b.Max)
-			}
 			b.Min = v
 		case clear:
 			b.Max = math.Inf(1)
 		default:
-			if b.HasMin() && v < b.Min {
-				return fmt.Errorf("%s maximum %g is below its minimum %g", r.Label, v, b.Min)
-			}
 			b.Max = v
 		}
-		return nil
 	}
-	var err error
 	switch r.Kind {
 	case RowBatch:
 		if clear {
 			return nil, fmt.Errorf("batch must be a number of tonnes above zero")
-		}
-		if err := catalogue.QtyTonnes.Check("batch", v); err != nil {
-			return nil, err
 		}
 		sp.Batch = v
 	case RowMaxStocks:
@@ -234,31 +219,28 @@ func (s *Scenario) WithBound(r Row, side Side, v float64) (*Scenario, error) {
 			return nil, fmt.Errorf("max stocks must be a whole number from 0 (no rule) to %g", float64(maxStocksRule))
 		}
 		sp.Rules.MaxStocks = int(v)
-	case RowMinIfUsed:
+	case RowSmallestShare:
 		if clear {
 			v = 0
 		}
-		if err := catalogue.QtyPercent.Check("min if used", v); err != nil {
-			return nil, err
-		}
-		sp.Rules.MinIfUsed = v
+		sp.Rules.SmallestShare = v
 	case RowLimit:
 		if r.index >= len(sp.Limits) {
 			return nil, fmt.Errorf("limit %s is gone", r.Key)
 		}
-		err = set(&sp.Limits[r.index].Bound)
+		set(&sp.Limits[r.index].Bound)
 	case RowSFC:
 		if r.index >= len(sp.SFC) {
 			return nil, fmt.Errorf("limit %s is gone", r.Key)
 		}
-		err = set(&sp.SFC[r.index].Bound)
+		set(&sp.SFC[r.index].Bound)
 	case RowUse:
 		if r.index >= len(sp.Use) {
 			return nil, fmt.Errorf("limit %s is gone", r.Key)
 		}
-		err = set(&sp.Use[r.index].Bound)
+		set(&sp.Use[r.index].Bound)
 	}
-	if err != nil {
+	if err := sp.Check(out.Catalogue).Err(); err != nil {
 		return nil, err
 	}
 	return out, nil
@@ -266,14 +248,6 @@ func (s *Scenario) WithBound(r Row, side Side, v float64) (*Scenario, error) {
 
 // maxStocksRule is the largest max_stocks the loader accepts.
 const maxStocksRule = 1_000_000
-
-// quantity is the kind of value a min/max row holds.
-func (r Row) quantity() catalogue.Quantity {
-	if r.Kind == RowLimit {
-		return catalogue.LimitQuantity(r.Key)
-	}
-	return catalogue.QtyPercent
-}
 
 // WithoutRow returns a new scenario without limit row r (batch and rules
 // rows are reset to no rule instead; the batch cannot be removed).
@@ -285,8 +259,8 @@ func (s *Scenario) WithoutRow(r Row) (*Scenario, error) {
 		return nil, fmt.Errorf("the batch cannot be removed; edit it instead")
 	case RowMaxStocks:
 		sp.Rules.MaxStocks = 0
-	case RowMinIfUsed:
-		sp.Rules.MinIfUsed = 0
+	case RowSmallestShare:
+		sp.Rules.SmallestShare = 0
 	case RowLimit:
 		sp.Limits = append(sp.Limits[:r.index:r.index], sp.Limits[r.index+1:]...)
 	case RowSFC:
@@ -334,11 +308,11 @@ func (s *Scenario) WithNewRow(text string) (*Scenario, string, error) {
 		if _, ok := useIndex(sp, f[1]); ok {
 			return nil, "", fmt.Errorf("stock %q already has a use limit", f[1])
 		}
-		if _, ok := out.Catalogue.Find(f[1]); !ok {
-			return nil, "", fmt.Errorf("no stock %q in the catalogue", f[1])
-		}
 		sp.Use = append(sp.Use, catalogue.Use{Stock: f[1], Bound: catalogue.Free()})
 		sp.SortLimits()
+		if err := sp.Check(out.Catalogue).Err(); err != nil { // the stock is in the catalogue
+			return nil, "", err
+		}
 		return out, "use." + f[1], nil
 	}
 	name := strings.Join(f, "")
@@ -378,7 +352,9 @@ const (
 )
 
 // WithStock returns a new scenario with the price or availability of stock id
-// set to v. For availability, +Inf or NaN means unlimited purchase.
+// set to v. For availability, +Inf or NaN means unlimited purchase. The
+// edited stock is checked as the loader checks a file (catalogue.Stock.Check),
+// so a value outside the accepted magnitudes is refused in its words.
 func (s *Scenario) WithStock(id string, f StockField, v float64) (*Scenario, error) {
 	out := s.Clone()
 	st, ok := out.Catalogue.Find(id)
@@ -387,17 +363,18 @@ func (s *Scenario) WithStock(id string, f StockField, v float64) (*Scenario, err
 	}
 	switch f {
 	case FieldPrice:
-		if err := catalogue.QtyPrice.Check("price of "+id, v); err != nil {
-			return nil, err
-		}
 		st.Price = v
 	case FieldAvailable:
 		if math.IsNaN(v) || math.IsInf(v, 1) {
 			v = math.Inf(1)
-		} else if err := catalogue.QtyOnHand.Check(id+" on hand", v); err != nil {
-			return nil, fmt.Errorf("%w (empty = unlimited)", err)
 		}
 		st.Available = v
+	}
+	if err := st.Check().Err(); err != nil {
+		if f == FieldAvailable {
+			return nil, fmt.Errorf("%w (empty = unlimited)", err)
+		}
+		return nil, err
 	}
 	return out, nil
 }

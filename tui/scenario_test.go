@@ -1,6 +1,7 @@
 package tui
 
 import (
+	"bytes"
 	"math"
 	"os"
 	"path/filepath"
@@ -86,7 +87,7 @@ func TestBoundChecks(t *testing.T) {
 	sc := demoScenario(t, "laminating")
 	r := rowByKey(t, sc, "sfc.20") // 30..45
 	_, err := sc.WithBound(r, Min, 50)
-	assert.ErrorContains(t, err, "above its maximum")
+	assert.ErrorContains(t, err, `limit "sfc.20": min = 50 is above max = 45`)
 	_, err = sc.WithBound(r, Max, 120)
 	assert.ErrorContains(t, err, "outside the accepted range 0 to 100 %")
 	_, err = sc.WithBound(rowByKey(t, sc, "batch"), Max, 0)
@@ -105,7 +106,7 @@ func TestBoundChecks(t *testing.T) {
 }
 
 // Every workspace edit refuses a magnitude no plant has with the loader's own
-// check and words (catalogue.Quantity.Check; README "Accepted magnitudes"),
+// check and words (catalogue.Stock.Check and Spec.Check; README "Accepted magnitudes"),
 // and leaves the scenario as it was.
 func TestEditsRefuseMagnitudes(t *testing.T) {
 	sc := demoScenario(t, "laminating")
@@ -123,8 +124,8 @@ func TestEditsRefuseMagnitudes(t *testing.T) {
 		{"batch 1e308", func() (*Scenario, error) { return sc.WithBound(rowByKey(t, sc, "batch"), Max, 1e308) }, catalogue.QtyTonnes},
 		{"iv max 1e25", func() (*Scenario, error) { return sc.WithBound(rowByKey(t, sc, "iv"), Max, 1e25) }, catalogue.QtyIV},
 		{"sfc min -1", func() (*Scenario, error) { return sc.WithBound(rowByKey(t, sc, "sfc.20"), Min, -1) }, catalogue.QtyPercent},
-		{"min if used 1e25", func() (*Scenario, error) {
-			return sc.WithBound(rowByKey(t, sc, "rules.min_if_used"), Max, 1e25)
+		{"smallest share 1e25", func() (*Scenario, error) {
+			return sc.WithBound(rowByKey(t, sc, "rules.smallest_share"), Max, 1e25)
 		}, catalogue.QtyPercent},
 	} {
 		next, err := tc.edit()
@@ -136,8 +137,18 @@ func TestEditsRefuseMagnitudes(t *testing.T) {
 	assert.ErrorContains(t, err, "whole number from 0")
 	// the same value is refused in the same words by the catalogue loader
 	_, err = sc.WithStock("palm", FieldPrice, 1e25)
-	assert.EqualError(t, err, catalogue.QtyPrice.Check("price of palm", 1e25).Error())
-	p, _ := sc.Catalogue.Find("palm")
+	var got catalogue.Problems
+	require.ErrorAs(t, err, &got)
+	edited := sc.Catalogue.Clone()
+	p, _ := edited.Find("palm")
+	p.Price = 1e25
+	var file bytes.Buffer
+	require.NoError(t, catalogue.WriteStocks(&file, edited))
+	_, loaded := catalogue.ParseStocks("stocks.toml", file.Bytes())
+	require.Len(t, got, 1)
+	require.Len(t, loaded, 1)
+	assert.Equal(t, loaded[0].Where+": "+loaded[0].Msg, got[0].Where+": "+got[0].Msg)
+	p, _ = sc.Catalogue.Find("palm")
 	assert.Less(t, p.Price, 1e9, "the scenario is unchanged")
 }
 

@@ -4,20 +4,20 @@ import (
 	"math"
 	"testing"
 
-	"lipoplan/blend"
 	"lipoplan/catalogue"
 	"lipoplan/randomise"
 )
 
 // bench550 is randomly interesterified demo palm oil: 10 acids, so every one
-// of the 10^2 x 11 / 2 = 550 TAG identities occurs (DESIGN section 7 case:
-// ~500 TAGs, 8 temperatures).
+// of the 10^2 x 11 / 2 = 550 TAG identities occurs (the case of the
+// performance target in DEVELOPERS.md, "Project decisions": about 500 TAGs,
+// 8 temperatures).
 func bench550(b *testing.B) (*randomise.Distribution, []float64) {
 	st, ok := catalogue.DemoStocks().Find("palm")
 	if !ok {
 		b.Fatal("demo palm oil missing")
 	}
-	d, err := randomise.Distribute([]blend.Part{{Stock: st, Pct: 100}}, randomise.Chemical, 1)
+	d, err := randomise.Distribute([]catalogue.Part{{Stock: st, Pct: 100}}, randomise.Chemical, 1)
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -101,10 +101,11 @@ func BenchmarkCurveBisectionReference(b *testing.B) {
 }
 
 // BenchmarkDistributeReference is the TAG distribution of the same blend
-// (randomise, DESIGN target < 100 us), for scale.
+// (randomise; its target is under 100 us, DEVELOPERS.md "Project
+// decisions"), for scale.
 func BenchmarkDistributeReference(b *testing.B) {
 	st, _ := catalogue.DemoStocks().Find("palm")
-	parts := []blend.Part{{Stock: st, Pct: 100}}
+	parts := []catalogue.Part{{Stock: st, Pct: 100}}
 	b.ReportAllocs()
 	for b.Loop() {
 		if _, err := randomise.Distribute(parts, randomise.Chemical, 1); err != nil {
@@ -116,7 +117,7 @@ func BenchmarkDistributeReference(b *testing.B) {
 func TestBisectionReferenceAgrees(t *testing.T) {
 	// The benchmark's reference computes the same curve (within 1e-9 % solid).
 	st, _ := catalogue.DemoStocks().Find("palm")
-	d, err := randomise.Distribute([]blend.Part{{Stock: st, Pct: 100}}, randomise.Chemical, 1)
+	d, err := randomise.Distribute([]catalogue.Part{{Stock: st, Pct: 100}}, randomise.Chemical, 1)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -6,7 +6,6 @@ import (
 
 	"gonum.org/v1/gonum/optimize"
 
-	"lipoplan/blend"
 	"lipoplan/catalogue"
 	"lipoplan/randomise"
 )
@@ -56,7 +55,7 @@ func Calibrate(stocks []*catalogue.Stock, base Options, heldOut bool) (*Calibrat
 		if len(st.SFC) == 0 {
 			continue
 		}
-		d, err := randomise.Distribute([]blend.Part{{Stock: st, Pct: 100}}, randomise.Native, 0)
+		d, err := randomise.Distribute([]catalogue.Part{{Stock: st, Pct: 100}}, randomise.Native, 0)
 		if err != nil {
 			return nil, fmt.Errorf("calibration: stock %q: %w", st.ID, err)
 		}

@@ -1,5 +1,6 @@
 // Package sle predicts the solid fat content (SFC) of a fat from its TAG
-// composition by solid-liquid equilibrium (DESIGN section 5):
+// composition by solid-liquid equilibrium (README, "Methods"; each method's
+// source below):
 //
 //   - pure-TAG melting points and enthalpies of fusion for one polymorph
 //     (alpha, beta' or beta) from the correlations of Wesdorp (1990), as
@@ -32,6 +33,8 @@
 // about 50 % solid too much there). Use predicted SFC for directions (what
 // interesterification does) and measured curves for specifications.
 //
-// This package sits beside blend rather than inside it because it builds on
-// randomise, which imports blend.
+// This package sits beside blend rather than inside it: blend is the linear
+// properties of a physical mix, while this model builds on randomise's TAG
+// distributions (randomise depends on catalogue alone), and blend never
+// imports it.
 package sle

@@ -9,8 +9,10 @@ import (
 	"github.com/stretchr/testify/require"
 )
 
-// Tristearin beta as published (DESIGN section 5 check values: Tm near
-// 73 C, dH 221.6 J/g, J. Chem. Eng. Data 50 (2005) 1624; M = 891.5 g/mol).
+// Tristearin beta as published: dH 221.6 J/g by adiabatic calorimetry
+// ("Thermal properties of tristearin by adiabatic and differential scanning
+// calorimetry", J. Chem. Eng. Data 50 (2005) 1624-1630); Tm near 73 C and
+// M = 891.5 g/mol (PubChem), both from memory.
 const (
 	sssTm = 73 + 273.15
 	sssDH = 221.6 * 891.5 // J/mol

@@ -3,7 +3,6 @@ package sle
 import (
 	"math"
 
-	"lipoplan/blend"
 	"lipoplan/catalogue"
 	"lipoplan/randomise"
 )
@@ -36,7 +35,7 @@ func FitStock(s *catalogue.Stock, opt Options) (Fit, error) {
 	for i, p := range s.SFC {
 		temps[i] = p.Temp
 	}
-	pred, _, err := PredictParts([]blend.Part{{Stock: s, Pct: 100}}, randomise.Native, 0, temps, opt)
+	pred, _, err := PredictParts([]catalogue.Part{{Stock: s, Pct: 100}}, randomise.Native, 0, temps, opt)
 	if err != nil {
 		return Fit{}, err
 	}

@@ -118,7 +118,7 @@ func TestFitStockArithmetic(t *testing.T) {
 	assert.Len(t, f.Points, 3)
 }
 
-func curveOf(t *testing.T, parts []blend.Part, m randomise.Method) map[float64]float64 {
+func curveOf(t *testing.T, parts []catalogue.Part, m randomise.Method) map[float64]float64 {
 	t.Helper()
 	var temps []float64
 	for c := 0.0; c <= 70; c++ {
@@ -136,7 +136,7 @@ func curveOf(t *testing.T, parts []blend.Part, m randomise.Method) map[float64]f
 func TestRandomInteresterificationOfPalmOil(t *testing.T) {
 	po, ok := typicalCurves(t).Find("palm-oil")
 	require.True(t, ok)
-	parts := []blend.Part{{Stock: po, Pct: 100}}
+	parts := []catalogue.Part{{Stock: po, Pct: 100}}
 	native, ie := curveOf(t, parts, randomise.Native), curveOf(t, parts, randomise.Chemical)
 	for _, c := range []float64{35, 40} {
 		t.Logf("palm oil at %v C: native %.1f, after random IE %.1f %% solid", c, native[c], ie[c])
@@ -157,7 +157,7 @@ func TestInteresterifiedHardstockBlendIsSofterAt35(t *testing.T) {
 	soy := &catalogue.Stock{ID: "soybean", FattyAcids: map[string]float64{
 		"C16:0": 10.5, "C18:0": 4, "C18:1": 23.5, "C18:2": 53.5, "C18:3": 7.5, "C20:0": 0.5, "C22:0": 0.5}}
 	for _, hard := range []float64{20, 30, 50} {
-		parts := []blend.Part{{Stock: fh, Pct: hard}, {Stock: soy, Pct: 100 - hard}}
+		parts := []catalogue.Part{{Stock: fh, Pct: hard}, {Stock: soy, Pct: 100 - hard}}
 		phys, ie := curveOf(t, parts, randomise.Native), curveOf(t, parts, randomise.Chemical)
 		t.Logf("%v %% hardstock at 35 C: physical %.1f, interesterified %.1f %% solid", hard, phys[35], ie[35])
 		assert.Less(t, ie[35], phys[35]-5, "%v %% hardstock", hard)

@@ -7,7 +7,6 @@ import (
 	"slices"
 	"strings"
 
-	"lipoplan/blend"
 	"lipoplan/catalogue"
 	"lipoplan/randomise"
 )
@@ -503,7 +502,7 @@ func Predict(d *randomise.Distribution, temps []float64, opt Options) (map[float
 // after the process (native, chemical or enzymatic interesterification at
 // the given degree, see randomise.Distribute). The notes are the TAG model's
 // assumptions (e.g. missing sn-2 data).
-func PredictParts(parts []blend.Part, method randomise.Method, degree float64, temps []float64, opt Options) (map[float64]float64, []string, error) {
+func PredictParts(parts []catalogue.Part, method randomise.Method, degree float64, temps []float64, opt Options) (map[float64]float64, []string, error) {
 	d, err := randomise.Distribute(parts, method, degree)
 	if err != nil {
 		return nil, nil, fmt.Errorf("predicted SFC: %w", err)

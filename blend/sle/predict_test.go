@@ -7,7 +7,6 @@ import (
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
-	"lipoplan/blend"
 	"lipoplan/blend/sle"
 	"lipoplan/catalogue"
 	"lipoplan/randomise"
@@ -64,7 +63,7 @@ func TestBinaryPPPOOOAgainstHildebrandByHand(t *testing.T) {
 	// liquid: the liquid is saturated in PPP (Hildebrand), L = 0.5/(1 - xs),
 	// solid PPP = 0.5 - L xs mol per mol, SFC = 100 solid M(PPP) / mean M,
 	// with M from catalogue.TAGMolarMass (tripalmitin 807.3, triolein 885.4
-	// g/mol, DESIGN section 5), so the set's own masses are checked too.
+	// g/mol, PubChem, from memory), so the set's own masses are checked too.
 	p, o := acid(t, "C16:0"), acid(t, "C18:1")
 	d := &randomise.Distribution{Acids: []catalogue.FattyAcid{p, o}, Mol: make([]float64, 8)}
 	d.Mol[0] = 0.5 // PPP (0,0,0)
@@ -100,7 +99,7 @@ func TestSFCNonIncreasingWithTemperature(t *testing.T) {
 	temps := []float64{-10, 0, 5, 10, 15, 20, 25, 30, 35, 40, 45, 50, 55, 60, 70, 80}
 	for i := range cat.Stocks {
 		for _, p := range []sle.Polymorph{sle.Alpha, sle.BetaPrime, sle.Beta} {
-			sfc, _, err := sle.PredictParts([]blend.Part{{Stock: &cat.Stocks[i], Pct: 100}}, randomise.Native, 0, temps, sle.Options{Polymorph: p})
+			sfc, _, err := sle.PredictParts([]catalogue.Part{{Stock: &cat.Stocks[i], Pct: 100}}, randomise.Native, 0, temps, sle.Options{Polymorph: p})
 			require.NoError(t, err, cat.Stocks[i].ID)
 			for k := 1; k < len(temps); k++ {
 				assert.LessOrEqual(t, sfc[temps[k]], sfc[temps[k-1]]+1e-9, "%s %s %v C", cat.Stocks[i].ID, p, temps[k])
@@ -118,7 +117,7 @@ func TestLiquidOilsAreLiquidAtRoomTemperature(t *testing.T) {
 	for _, id := range []string{"sunflower", "hosun", "soybean", "rapeseed"} {
 		st, ok := cat.Find(id)
 		require.True(t, ok)
-		sfc, _, err := sle.PredictParts([]blend.Part{{Stock: st, Pct: 100}}, randomise.Native, 0, []float64{20}, sle.DefaultOptions())
+		sfc, _, err := sle.PredictParts([]catalogue.Part{{Stock: st, Pct: 100}}, randomise.Native, 0, []float64{20}, sle.DefaultOptions())
 		require.NoError(t, err)
 		assert.Less(t, sfc[20], 1.0, id)
 	}
@@ -126,7 +125,7 @@ func TestLiquidOilsAreLiquidAtRoomTemperature(t *testing.T) {
 
 // hardstockBlend is a classic interesterification feed: 30 % fully hardened
 // soybean oil (made by randomise.Harden) with 70 % liquid soybean oil.
-func hardstockBlend(t testing.TB) []blend.Part {
+func hardstockBlend(t testing.TB) []catalogue.Part {
 	cat := catalogue.DemoStocks()
 	soy, ok := cat.Find("soybean")
 	if !ok {
@@ -136,7 +135,7 @@ func hardstockBlend(t testing.TB) []blend.Part {
 	if err != nil {
 		t.Fatal(err)
 	}
-	return []blend.Part{{Stock: &hard, Pct: 30}, {Stock: soy, Pct: 70}}
+	return []catalogue.Part{{Stock: &hard, Pct: 30}, {Stock: soy, Pct: 70}}
 }
 
 func TestInteresterificationLowersHighTemperatureSFC(t *testing.T) {
@@ -193,7 +192,7 @@ func TestPreparedCurveEqualsCurve(t *testing.T) {
 	temps := []float64{10, 20, 30, 35, 40}
 	for _, sm := range []sle.SolidModel{sle.PureSolids, sle.IsomorphSolutions} {
 		for i := range cat.Stocks {
-			d, err := randomise.Distribute([]blend.Part{{Stock: &cat.Stocks[i], Pct: 100}}, randomise.Chemical, 1)
+			d, err := randomise.Distribute([]catalogue.Part{{Stock: &cat.Stocks[i], Pct: 100}}, randomise.Chemical, 1)
 			require.NoError(t, err)
 			set := sle.NewSet(d.Acids, sle.Options{Solids: sm})
 			a, b := make([]float64, len(temps)), make([]float64, len(temps))
@@ -225,11 +224,11 @@ func TestBlendModelMatchesPredictParts(t *testing.T) {
 		require.NoError(t, err)
 		pick := map[string]float64{"palm-st-hard": 40, "rapeseed": 45, "coconut": 15}
 		shares := make([]float64, len(sts))
-		var parts []blend.Part
+		var parts []catalogue.Part
 		for j, s := range sts {
 			if v, ok := pick[s.ID]; ok {
 				shares[j] = v
-				parts = append(parts, blend.Part{Stock: s, Pct: v})
+				parts = append(parts, catalogue.Part{Stock: s, Pct: v})
 			}
 		}
 		got := make([]float64, len(temps))

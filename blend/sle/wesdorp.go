@@ -21,7 +21,8 @@ const (
 
 // DefaultPolymorph is used when Options leave the polymorph unset. Beta is
 // the stable form, the one a solid-liquid *equilibrium* model describes, and
-// the form of the DESIGN's check values (tristearin beta near 73 C). Many
+// the form of the published check values (tristearin beta: 221.6 J/g, J.
+// Chem. Eng. Data 50 (2005) 1624; melting near 73 C, from memory). Many
 // blends measured after the short tempering of a direct pulsed-NMR run
 // (AOCS Cd 16b-93) are still beta' (common practice); Options can choose
 // beta' or alpha, and FitStock shows how each does against measured curves.

@@ -203,3 +203,16 @@ func (in *inputs) files() []string {
 	}
 	return out
 }
+
+// shareNote says when the --use shares do not add up to 100 %: they are
+// scaled to 100 (each stock keeps its proportion), and the report says so.
+func shareNote(parts []blend.Part) string {
+	var sum float64
+	for _, p := range parts {
+		sum += p.Pct
+	}
+	if math.Abs(sum-100) <= 1e-9 {
+		return ""
+	}
+	return fmt.Sprintf("the --use shares add up to %s %%; they are scaled to 100 %% (each stock keeps its proportion)", strconv.FormatFloat(sum, 'f', -1, 64))
+}

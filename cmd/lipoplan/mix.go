@@ -66,15 +66,23 @@ func (a *app) mix(args []string) error {
 			return err
 		}
 	}
+	note := shareNote(parts)
 	if in.json() {
 		out := propertiesJSON(p)
 		out["caution"] = cautionJSON
+		if note != "" {
+			out["notes"] = []string{note}
+		}
 		if pred != nil {
 			pred.addJSON(out)
 		}
 		return writeJSON(a.stdout, out)
 	}
-	fmt.Fprintf(a.stdout, "Mix of %s\n\n", describeParts(parts))
+	fmt.Fprintf(a.stdout, "Mix of %s\n", describeParts(parts))
+	if note != "" {
+		fmt.Fprintf(a.stdout, "Note: %s\n", note)
+	}
+	fmt.Fprintln(a.stdout)
 	writeProperties(a.stdout, p, ts)
 	if pred != nil {
 		pred.writeText(a.stdout, ts)

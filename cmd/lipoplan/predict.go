@@ -80,7 +80,8 @@ func (p *predicted) addJSON(out map[string]any) {
 		out["slip_point_predicted"] = round(mp.Slip, 1)
 	}
 	if len(p.notes) > 0 {
-		out["notes"] = p.notes
+		prev, _ := out["notes"].([]string)
+		out["notes"] = append(prev, p.notes...)
 	}
 }
 

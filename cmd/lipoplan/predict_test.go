@@ -106,3 +106,19 @@ func TestMixSlipPoint(t *testing.T) {
 	assert.Contains(t, out, "Slip melting point about")
 	assert.Contains(t, out, "common practice")
 }
+
+// mix says when the --use shares do not add up to 100 and it scales them.
+func TestMixSaysWhenItScales(t *testing.T) {
+	code, out, _ := run(t, "mix", "--use", "palm=30,pko=20")
+	require.Equal(t, 0, code)
+	assert.Contains(t, out, "add up to 50 %")
+	code, out, _ = run(t, "mix", "--use", "palm=30,pko=20", "--format", "json", "--predict")
+	require.Equal(t, 0, code)
+	var got map[string]any
+	require.NoError(t, json.Unmarshal([]byte(out), &got))
+	notes := fmt.Sprint(got["notes"])
+	assert.Contains(t, notes, "scaled to 100 %")
+	code, out, _ = run(t, "mix", "--use", "palm=60,pko=40")
+	require.Equal(t, 0, code)
+	assert.NotContains(t, out, "scaled to 100")
+}

@@ -82,7 +82,7 @@ func TestProgressBar(t *testing.T) {
 func TestProgressEndToEnd(t *testing.T) {
 	dir := t.TempDir()
 	spec := filepath.Join(dir, "rules.toml")
-	require.NoError(t, os.WriteFile(spec, append(catalogue.DemoFiles()["laminating.toml"], "\n[rules]\nmax_stocks = 3\nmin_if_used = 5.0\n"...), 0o644))
+	require.NoError(t, os.WriteFile(spec, append(catalogue.DemoFiles()["laminating.toml"], "\n[rules]\nmax_stocks = 3\nsmallest_share = 5.0\n"...), 0o644))
 	for _, args := range [][]string{
 		{"sweep", "--spec", spec, "--price", "palm,palm-olein=-10%:+20%:7"},
 		{"solve", "--spec", spec},

@@ -162,8 +162,8 @@ func blendSheet(r *optimise.Result, spec *catalogue.Spec, cat *catalogue.Catalog
 		if spec.Rules.MaxStocks > 0 {
 			rs = append(rs, fmt.Sprintf("at most %d stocks", spec.Rules.MaxStocks))
 		}
-		if spec.Rules.MinIfUsed > 0 {
-			rs = append(rs, fmt.Sprintf("each stock used at %g %% of batch or more", spec.Rules.MinIfUsed))
+		if spec.Rules.SmallestShare > 0 {
+			rs = append(rs, fmt.Sprintf("smallest share of a stock used %g %% of batch", spec.Rules.SmallestShare))
 		}
 		d.Rules = strings.Join(rs, "; ")
 	}

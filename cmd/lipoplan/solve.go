@@ -19,7 +19,7 @@ import (
 func (a *app) solve(args []string) error {
 	fs := a.newFlags("solve", `[--stocks F] [--spec F] [--format text|json|csv] [--mps FILE] [--svg FILE] [--sheet FILE] [--temps "5,10,37"]`,
 		"Cheapest blend of the stocks that meets the spec: a linear programme (lipoplan's own simplex; integer\n"+
-			"rules max_stocks and min_if_used by branch and bound), with the cost of every binding limit, price ranging per stock\n"+
+			"rules max_stocks and smallest_share by branch and bound), with the cost of every binding limit, price ranging per stock\n"+
 			"and, when the spec cannot be met, the smallest relaxation that would make it feasible (exit 3).")
 	stocksPath := fs.String("stocks", "", "stock catalogue TOML (default: embedded demo stocks)")
 	specPath := fs.String("spec", "", "product spec TOML (default: the embedded demo laminating spec)")
@@ -507,12 +507,11 @@ func relaxWords(x optimise.Relax) string {
 // goes through the reactor, what it costs and the reacted fat's SFC.
 func writeReactor(w io.Writer, r *optimise.Result, temps []float64) {
 	p := r.Process
-	fmt.Fprintf(w, "Reactor (%s interesterification, SFC of the reacted fat %s)\n", p.Method, p.SFCModel)
 	if len(p.Feed) == 0 {
-		fmt.Fprintln(w, "  not used: blending the stocks as they are is cheaper")
-		fmt.Fprintln(w)
+		fmt.Fprintf(w, "Reactor (%s interesterification): not used, nothing goes through it; blending the stocks as they are is cheaper.\n\n", p.Method)
 		return
 	}
+	fmt.Fprintf(w, "Reactor (%s interesterification, SFC of the reacted fat %s)\n", p.Method, p.SFCModel)
 	for _, l := range p.Feed {
 		fmt.Fprintf(w, "  %-14s %8.2f %% of batch %9.3f t\n", l.Stock, l.Pct, l.Tonnes)
 	}

@@ -267,7 +267,7 @@ func TestSolveNotProvenWithinLimits(t *testing.T) {
 	}
 	dir := t.TempDir()
 	path := filepath.Join(dir, "rules.toml")
-	spec := string(catalogue.DemoFiles()["laminating.toml"]) + "\n[rules]\nmax_stocks = 3\nmin_if_used = 8.0\n"
+	spec := string(catalogue.DemoFiles()["laminating.toml"]) + "\n[rules]\nmax_stocks = 3\nsmallest_share = 8.0\n"
 	require.NoError(t, os.WriteFile(path, []byte(spec), 0o644))
 
 	code, out, errs := run(t, "solve", "--spec", path, "--format", "json")
