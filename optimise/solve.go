@@ -7,6 +7,7 @@ import (
 
 	"lipoplan/blend"
 	"lipoplan/catalogue"
+	"lipoplan/optimise/lp"
 )
 
 // solve runs one Solve on an engine of its own, freed before it returns
@@ -39,7 +40,13 @@ func solveIn(eng *engine, pc *profileCache, buf *scratch, cat *catalogue.Catalog
 	if err != nil {
 		return nil, err
 	}
-	eng.withLimits(opt.MaxNodes, opt.MaxTime)
+	// Progress: the MILP, and with max_stocks its second MILP that prices
+	// the rule (or an elastic MILP when the rules cannot be met), each half.
+	parts := 1
+	if lay.rules.MaxStocks > 0 {
+		parts = 2
+	}
+	eng.withLimits(opt.MaxNodes, opt.MaxTime, stage(opt.Progress, 0, parts))
 	res := &Result{Engine: eng.name(), Currency: cat.Currency, Spec: spec.Name, Batch: spec.Batch}
 	if spec.Process != nil {
 		res.Notes = append(res.Notes, "the spec's [process] step (interesterification) is not modelled by solve: "+
@@ -53,6 +60,10 @@ func solveIn(eng *engine, pc *profileCache, buf *scratch, cat *catalogue.Catalog
 		s, err := solveRules(eng, base, lay, lay.rules)
 		if err != nil {
 			return nil, err
+		}
+		eng.limits.Progress = nil
+		if parts == 2 {
+			eng.limits.Progress = stage(opt.Progress, 1, parts)
 		}
 		switch s.status {
 		case solOptimal:
@@ -90,6 +101,10 @@ func solveIn(eng *engine, pc *profileCache, buf *scratch, cat *catalogue.Catalog
 		if err := lay.priceMaxStocks(eng, base, res); err != nil {
 			return nil, err
 		}
+	}
+	if opt.Progress != nil && lay.rules.Active() && res.Status == Optimal {
+		// complete, also when max_stocks needed no pricing MILP
+		opt.Progress(parts*lp.ProgressTotal, parts*lp.ProgressTotal)
 	}
 	return res, nil
 }

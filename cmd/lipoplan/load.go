@@ -230,6 +230,15 @@ func (in *inputs) load(a *app) (*catalogue.Catalogue, *catalogue.Spec, error) {
 
 // files are the input files named on the command line, which no output of
 // the same run may overwrite.
+// scenarioPath is the --scenario file, "" when none was given or the
+// command takes none.
+func (in *inputs) scenarioPath() string {
+	if in.scenario == nil {
+		return ""
+	}
+	return *in.scenario
+}
+
 func (in *inputs) files() []string {
 	out := []string{*in.stocks}
 	if in.spec != nil {

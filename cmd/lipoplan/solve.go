@@ -17,13 +17,14 @@ import (
 )
 
 func (a *app) solve(args []string) error {
-	fs := a.newFlags("solve", `[--stocks F --spec F | --scenario F] [--format text|json|csv] [--mps FILE] [--svg FILE] [--temps "5,10,37"]`,
+	fs := a.newFlags("solve", `[--stocks F --spec F | --scenario F] [--format text|json|csv] [--mps FILE] [--svg FILE] [--sheet FILE] [--temps "5,10,37"]`,
 		"Cheapest blend of the stocks that meets the spec: a linear programme (lipoplan's own simplex; integer\n"+
 			"rules max_stocks and smallest_share by branch and bound), with the cost of every binding limit, price ranging per stock\n"+
 			"and, when the spec cannot be met, the smallest relaxation that would make it feasible (exit 3).")
 	in := a.inputFlags(fs, demoSpec, "product spec TOML (default: the embedded demo laminating spec)", "text", "json", "csv").takeScenario(fs)
 	mps := fs.String("mps", "", "also write the model to this `file` in free MPS format (- = standard output, the report then goes to standard error)")
 	svg := fs.String("svg", "", "also draw the blend's SFC against the spec's bands into this SVG `file` (- = standard output)")
+	sheet := fs.String("sheet", "", "also write a printable blend sheet (HTML, A4) of the solved blend into this `file` (- = standard output)")
 	temps := fs.String("temps", "", `SFC temperatures to report, deg C (default 10,15,...,45 plus the spec's)`)
 	maxNodes := fs.Int("max-nodes", 100000, "integer rules: branch and bound solves at most this many LPs")
 	maxTime := fs.Duration("max-time", 60*time.Second, "integer rules: branch and bound runs at most this `duration`")
@@ -42,8 +43,8 @@ func (a *app) solve(args []string) error {
 	if err != nil {
 		return err
 	}
-	mpsOut, svgOut := output{"--mps", *mps}, output{"--svg", *svg}
-	report, err := a.reportTo(mpsOut, svgOut)
+	mpsOut, svgOut, sheetOut := output{"--mps", *mps}, output{"--svg", *svg}, output{"--sheet", *sheet}
+	report, err := a.reportTo(mpsOut, svgOut, sheetOut)
 	if err != nil {
 		return err
 	}
@@ -67,12 +68,19 @@ func (a *app) solve(args []string) error {
 			return err
 		}
 	}
-	res, err := optimise.Solve(cat, spec, optimise.Options{Temps: ts, Model: model, MaxNodes: *maxNodes, MaxTime: *maxTime})
+	bar := a.progress("branch and bound")
+	res, err := optimise.Solve(cat, spec, optimise.Options{Temps: ts, Model: model, MaxNodes: *maxNodes, MaxTime: *maxTime, Progress: bar.callback()})
+	bar.finish()
 	if err != nil {
 		return err
 	}
 	if *svg != "" && res.Status == optimise.Optimal {
 		if err := a.write(svgOut, sfcSVG(res, spec), in.files()...); err != nil {
+			return err
+		}
+	}
+	if *sheet != "" && len(res.Blend) > 0 {
+		if err := a.writeSheet(sheetOut, res, spec, cat, ts, model, in, *calPath); err != nil {
 			return err
 		}
 	}
