@@ -421,10 +421,9 @@ func (s *Scenario) WithMatch(id string, tol float64) (*Scenario, error) {
 	out := s.Clone()
 	spec.Name = s.Spec.Name
 	spec.Batch = s.Spec.Batch
-	spec.Process = s.Spec.Process
-	if spec.Process != nil {
-		p := *s.Spec.Process
-		spec.Process = &p
+	spec.Process = nil
+	if s.Spec.Process != nil {
+		spec.Process = s.Spec.Process.Clone()
 	}
 	out.Spec = spec
 	return out, nil

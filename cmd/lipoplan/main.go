@@ -60,13 +60,14 @@ func commands() []command {
 		{"calibrate", "fit the TAG model's SFC to the catalogue's measured curves", (*app).calibrate},
 		{"replace", "cheapest trans-free blend that melts like a fat you use now", (*app).replace},
 		{"compare", "solve saved scenarios and set them side by side", (*app).compare},
+		{"routes", "physical blend, chemical and enzymatic interesterification side by side", (*app).routes},
 		// further commands add their line here
 	}
 	sort.SliceStable(cs, func(i, j int) bool { return order(cs[i].name) < order(cs[j].name) })
 	return cs
 }
 
-var commandOrder = []string{"demo", "check", "mix", "tags", "solve", "replace", "plan", "sweep", "compare", "calibrate", "explore", "serve"}
+var commandOrder = []string{"demo", "check", "mix", "tags", "solve", "replace", "plan", "sweep", "compare", "routes", "calibrate", "explore", "serve"}
 
 func order(name string) int {
 	for i, n := range commandOrder {

@@ -283,17 +283,36 @@ func sfcRows(p blend.Properties, spec *catalogue.Spec, temps []float64) []sheetR
 	return rows
 }
 
-// tagRows are the TAG saturation classes of the blend (mol %): the stocks'
-// native TAGs (1,3-random-2-random from each stock's sn-2 profile, or its
-// measured TAG profile), with the reactor's product in place of its feed
-// when a [process] step is used (randomise.Blender).
+// tagRows are the TAG saturation classes of the blend (mol %), as
+// blendClasses gives them, as rows of the sheet.
 func tagRows(r *optimise.Result, cat *catalogue.Catalogue) ([]sheetRow, string, []string) {
+	c, method, notes, err := blendClasses(r, cat)
+	if err != nil {
+		return nil, "", []string{"TAG classes not computed: " + err.Error()}
+	}
+	rows := []sheetRow{
+		{Cells: []string{"S3 (trisaturated)", f2(c.S3)}},
+		{Cells: []string{"S2U (disaturated)", f2(c.S2U)}},
+		{Cells: []string{"   of which SUS (symmetric)", f2(c.SUS)}},
+		{Cells: []string{"   of which SSU (asymmetric)", f2(c.SSU)}},
+		{Cells: []string{"SU2 (monosaturated)", f2(c.SU2)}},
+		{Cells: []string{"U3 (triunsaturated)", f2(c.U3)}},
+	}
+	return rows, method, notes
+}
+
+// blendClasses are the TAG saturation classes of a solved blend (mol %):
+// the stocks' native TAGs (1,3-random-2-random from each stock's sn-2
+// profile, or its measured TAG profile), with the reactor's product in
+// place of its feed when a [process] step is used (randomise.Blender);
+// method says which, notes are the Blender's.
+func blendClasses(r *optimise.Result, cat *catalogue.Catalogue) (randomise.Shares, string, []string, error) {
 	var stocks []*catalogue.Stock
 	direct := []float64{}
 	for _, l := range r.Blend {
 		st, ok := cat.Find(l.Stock)
 		if !ok {
-			return nil, "", []string{"TAG classes not computed: stock " + l.Stock + " is not in the catalogue"}
+			return randomise.Shares{}, "", nil, fmt.Errorf("stock %s is not in the catalogue", l.Stock)
 		}
 		stocks = append(stocks, st)
 		direct = append(direct, l.Pct)
@@ -316,22 +335,13 @@ func tagRows(r *optimise.Result, cat *catalogue.Catalogue) ([]sheetRow, string, 
 	}
 	b, err := randomise.NewBlender(stocks)
 	if err != nil {
-		return nil, "", []string{"TAG classes not computed: " + err.Error()}
+		return randomise.Shares{}, "", nil, err
 	}
 	mol := make([]float64, b.Len())
 	if err := b.Mix(direct, feed, reactor, mol); err != nil {
-		return nil, "", []string{"TAG classes not computed: " + err.Error()}
+		return randomise.Shares{}, "", nil, err
 	}
-	c := (&randomise.Distribution{Acids: b.Acids, Mol: mol, Method: reactor}).Classes().Mol
-	rows := []sheetRow{
-		{Cells: []string{"S3 (trisaturated)", f2(c.S3)}},
-		{Cells: []string{"S2U (disaturated)", f2(c.S2U)}},
-		{Cells: []string{"   of which SUS (symmetric)", f2(c.SUS)}},
-		{Cells: []string{"   of which SSU (asymmetric)", f2(c.SSU)}},
-		{Cells: []string{"SU2 (monosaturated)", f2(c.SU2)}},
-		{Cells: []string{"U3 (triunsaturated)", f2(c.U3)}},
-	}
-	return rows, method, b.Notes
+	return (&randomise.Distribution{Acids: b.Acids, Mol: mol, Method: reactor}).Classes().Mol, method, b.Notes, nil
 }
 
 // sheetChart draws the blend's SFC against temperature with the spec's
