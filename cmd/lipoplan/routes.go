@@ -7,12 +7,10 @@ import (
 	"math"
 	"strings"
 
-	"lipoplan/blend"
 	"lipoplan/blend/sle"
 	"lipoplan/catalogue"
 	"lipoplan/optimise"
 	"lipoplan/randomise"
-	"lipoplan/tui"
 )
 
 func (a *app) routes(args []string) error {
@@ -40,16 +38,9 @@ func (a *app) routes(args []string) error {
 	if err != nil {
 		return err
 	}
-	cat, spec, err := in.load(a)
+	cat, spec, ts, err := in.loadWithTemps(a, *temps)
 	if err != nil {
 		return err
-	}
-	ts, err := parseTemps(*temps)
-	if err != nil {
-		return err
-	}
-	if ts == nil {
-		ts = blend.SpecTemps(spec)
 	}
 	switch {
 	case spec.Process != nil && (*feed != "" || costSet):
@@ -133,17 +124,19 @@ func routeTitle(name string) string {
 	return name + " IE"
 }
 
+// Widths of the routes table: the label column and each route's column.
+const routeLabelWidth, routeColWidth = 26, 17
+
 // writeRoutesText prints the routes side by side: cost and its change
 // against the physical blend, the share through the reactor, the blend,
 // IV, SAFA, trans, the SFC at every report temperature with the spec's
 // band, and the TAG classes; then the routes that cannot meet the spec
 // with their notes, and the cautions.
 func writeRoutesText(w io.Writer, cols []routeColumn, spec *catalogue.Spec, temps []float64) {
-	const lw, cw = 26, 17
 	row := func(label string, cell func(c routeColumn) string) {
-		line := fmt.Sprintf("  %-*s", lw, clip(label, lw))
+		line := fmt.Sprintf("  %-*s", routeLabelWidth, clip(label, routeLabelWidth))
 		for _, c := range cols {
-			line += fmt.Sprintf("%*s", cw, clip(cell(c), cw-1))
+			line += fmt.Sprintf("%*s", routeColWidth, clip(cell(c), routeColWidth-1))
 		}
 		fmt.Fprintln(w, strings.TrimRight(line, " "))
 	}
@@ -217,24 +210,17 @@ func writeRouteTable(w io.Writer, cols []routeColumn, spec *catalogue.Spec, temp
 		}
 		return fmt.Sprintf("%.2f", c.through)
 	}))
-	fmt.Fprintln(w, "  blend, % of batch")
-	var blends [][]optimise.Line
-	for _, c := range cols {
-		blends = append(blends, c.res.Blend)
+	res := make([]*optimise.Result, len(cols))
+	for i, c := range cols {
+		res[i] = c.res
 	}
-	for _, id := range tui.StocksByShare(blends...) {
-		row("    "+id, found(func(c routeColumn) string {
-			for _, l := range c.res.Blend {
-				if l.Stock == id && l.Pct > 1e-9 {
-					return fmt.Sprintf("%.2f", l.Pct)
-				}
-			}
-			return "."
-		}))
-	}
-	row("IV", found(func(c routeColumn) string { return fmt.Sprintf("%.1f", c.res.Properties.IV) }))
-	row("SAFA, %", found(func(c routeColumn) string { return fmt.Sprintf("%.1f", c.res.Properties.SAFA) }))
-	row("trans, %", found(func(c routeColumn) string { return fmt.Sprintf("%.2f", c.res.Properties.Trans) }))
+	blendRows(w, func(label string, cell func(i int) string) {
+		line := fmt.Sprintf("  %-*s", routeLabelWidth, clip(label, routeLabelWidth))
+		for i := range cols {
+			line += fmt.Sprintf("%*s", routeColWidth, clip(cell(i), routeColWidth-1))
+		}
+		fmt.Fprintln(w, strings.TrimRight(line, " "))
+	}, res)
 	fmt.Fprintln(w, "  SFC, % solid (spec band)")
 	for _, t := range temps {
 		label := "    " + catalogue.TempKey(t) + " C"

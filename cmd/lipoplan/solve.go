@@ -10,7 +10,6 @@ import (
 	"strings"
 	"time"
 
-	"lipoplan/blend"
 	"lipoplan/blend/sle"
 	"lipoplan/catalogue"
 	"lipoplan/optimise"
@@ -48,16 +47,9 @@ func (a *app) solve(args []string) error {
 	if err != nil {
 		return err
 	}
-	cat, spec, err := in.load(a)
+	cat, spec, ts, err := in.loadWithTemps(a, *temps)
 	if err != nil {
 		return err
-	}
-	ts, err := parseTemps(*temps)
-	if err != nil {
-		return err
-	}
-	if ts == nil {
-		ts = blend.SpecTemps(spec)
 	}
 	if *mps != "" {
 		lp, err := optimise.MPS(cat, spec)
