@@ -238,7 +238,9 @@ func writeCompareText(w io.Writer, cols []compared) {
 	for i, c := range cols {
 		res[i] = c.res
 	}
-	blendRows(w, func(label string, cell func(i int) string) { row(label, func(i int, _ compared) string { return cell(i) }) }, res)
+	blendRows(w, func(label string, cell func(i int) string) {
+		row(label, func(i int, _ compared) string { return cell(i) })
+	}, res)
 	for _, t := range limitTemps(cols) {
 		row("SFC "+catalogue.TempKey(t)+" C, % solid", found(func(c compared) string {
 			if v, ok := c.res.Properties.SFC[t]; ok {
