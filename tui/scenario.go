@@ -305,8 +305,8 @@ func (s *Scenario) WithNewRow(text string) (*Scenario, string, error) {
 		if err != nil {
 			return nil, "", err
 		}
-		if t < -20 || t > 80 {
-			return nil, "", fmt.Errorf("SFC temperature %g °C is outside -20..80 °C", t)
+		if t < catalogue.MinTemp || t > catalogue.MaxTemp {
+			return nil, "", fmt.Errorf("SFC temperature %g °C is outside %g..%g °C, the range the spec files take", t, catalogue.MinTemp, catalogue.MaxTemp)
 		}
 		for _, l := range sp.SFC {
 			if l.Temp == t {
