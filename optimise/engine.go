@@ -183,13 +183,17 @@ func rangingOf(m *model, s *solution) (*lp.Ranging, error) {
 	return lp.NewRanging(p, &lp.Solution{Status: s.status, X: s.x, RowAct: s.act, Y: s.y, D: s.d, Basis: s.basis})
 }
 
-// simplexEngine is lipoplan's own simplex and branch and bound.
+// simplexEngine is lipoplan's own simplex and branch and bound. The
+// engines that solve for the commands see every model scaled (lp.Scaled,
+// lp.ScaledMIP).
 func simplexEngine() *engine {
 	return &engine{lpName: "lipoplan-simplex", mipName: "lipoplan-bb",
-		newLP: func() lp.Engine { return lp.New() }, mip: lp.NewBranchAndBound()}
+		newLP: lp.NewScaled, mip: lp.ScaledMIP(lp.NewBranchAndBound())}
 }
 
-// gonumEngine is gonum's simplex, a test reference (no integer rules).
+// gonumEngine is gonum's simplex, a test reference (no integer rules). It
+// sees the models as built, unscaled, so that it checks lp.Scaled's
+// unscaling too.
 func gonumEngine() *engine {
 	return &engine{lpName: "gonum", mipName: "gonum", newLP: func() lp.Engine { return lp.NewGonum() }}
 }
