@@ -205,9 +205,9 @@ func (m *planModel) clone() *planModel {
 	return &planModel{prob: *m.prob.Clone(), colName: slices.Clone(m.colName), rowName: slices.Clone(m.rowName)}
 }
 
-// mps renders the model in free MPS (lp.MPS).
-func (m *planModel) mps(name string) []byte {
-	return lp.MPS(&m.prob, name, m.colName, m.rowName, nil)
+// mps renders the model in MPS layout f (mpsOf).
+func (m *planModel) mps(name string, f MPSFormat) []byte {
+	return mpsOf(&m.prob, name, m.colName, m.rowName, nil, f)
 }
 
 // planLabels are the blocks' names in the model: the spec label, with
@@ -449,6 +449,11 @@ func planDiagnosis(eng *engine, pc *profileCache, cat *catalogue.Catalogue, orde
 // share a block (Plan); a spec label that names two blocks is
 // "<spec>#2", "<spec>#3" ... on the second and later.
 func PlanMPS(cat *catalogue.Catalogue, orders *catalogue.Orders) ([]byte, error) {
+	return PlanMPSIn(FreeMPS, cat, orders)
+}
+
+// PlanMPSIn is PlanMPS in layout f.
+func PlanMPSIn(f MPSFormat, cat *catalogue.Catalogue, orders *catalogue.Orders) ([]byte, error) {
 	if orders == nil || len(orders.Orders) == 0 {
 		return nil, catalogue.Badf("the orders file has no [[order]]; add one with spec and tonnes")
 	}
@@ -456,7 +461,7 @@ func PlanMPS(cat *catalogue.Catalogue, orders *catalogue.Orders) ([]byte, error)
 	if err != nil {
 		return nil, err
 	}
-	return m.mps("lipoplan-plan"), nil
+	return m.mps("lipoplan-plan", f), nil
 }
 
 // WritePlanMPS writes PlanMPS to path atomically.

@@ -15,15 +15,31 @@ import (
 	"lipoplan/optimise"
 )
 
+// mpsFormatHelp is the help of --mps-format (solve and plan).
+const mpsFormatHelp = "layout of the --mps file: free (exact numbers, names as in lipoplan; glpsol --freemps, COIN-OR) or\n" +
+	"fixed (fixed columns, names fitted to 8 characters with the mapping as comment lines at the top; glpsol --mps, strict readers)"
+
+// mpsFormat reads --mps-format.
+func mpsFormat(s string) (optimise.MPSFormat, error) {
+	switch s {
+	case "free":
+		return optimise.FreeMPS, nil
+	case "fixed":
+		return optimise.FixedMPS, nil
+	}
+	return optimise.FreeMPS, catalogue.Badf("--mps-format %q is not known; use free or fixed", s)
+}
+
 func (a *app) solve(args []string) error {
-	fs := a.newFlags("solve", `[--stocks F] [--spec F] [--format text|json|csv] [--mps FILE] [--svg FILE] [--temps "5,10,37"]`,
+	fs := a.newFlags("solve", `[--stocks F] [--spec F] [--format text|json|csv] [--mps FILE] [--mps-format free|fixed] [--svg FILE] [--temps "5,10,37"]`,
 		"Cheapest blend of the stocks that meets the spec: a linear programme (lipoplan's own simplex; integer\n"+
 			"rules max_stocks and min_if_used by branch and bound), with the cost of every binding limit, price ranging per stock\n"+
 			"and, when the spec cannot be met, the smallest relaxation that would make it feasible (exit 3).")
 	stocksPath := fs.String("stocks", "", "stock catalogue TOML (default: embedded demo stocks)")
 	specPath := fs.String("spec", "", "product spec TOML (default: the embedded demo laminating spec)")
 	format := fs.String("format", "text", "text, json or csv")
-	mps := fs.String("mps", "", "also write the model to this `file` in free MPS format (- = standard output, the report then goes to standard error)")
+	mps := fs.String("mps", "", "also write the model to this `file` in MPS format (- = standard output, the report then goes to standard error)")
+	mpsLayout := fs.String("mps-format", "free", mpsFormatHelp)
 	svg := fs.String("svg", "", "also draw the blend's SFC against the spec's bands into this SVG `file` (- = standard output)")
 	temps := fs.String("temps", "", `SFC temperatures to report, deg C (default 10,15,...,45 plus the spec's)`)
 	maxNodes := fs.Int("max-nodes", 100000, "integer rules: branch and bound solves at most this many LPs")
@@ -37,6 +53,10 @@ func (a *app) solve(args []string) error {
 		return errUsage
 	}
 	if err := checkFormat(*format, "text", "json", "csv"); err != nil {
+		return err
+	}
+	layout, err := mpsFormat(*mpsLayout)
+	if err != nil {
 		return err
 	}
 	model, err := a.sfcModel(*calPath)
@@ -64,7 +84,7 @@ func (a *app) solve(args []string) error {
 		ts = blend.SpecTemps(spec)
 	}
 	if *mps != "" {
-		lp, err := optimise.MPS(cat, spec)
+		lp, err := optimise.MPSIn(layout, cat, spec)
 		if err != nil {
 			return fmt.Errorf("--mps: %w", err)
 		}
