@@ -54,6 +54,22 @@ func clampTo(q catalogue.Quantity, v float64) float64 {
 	return math.Min(rg.Max, math.Max(rg.Least, v))
 }
 
+// toExtremes moves a random blend (genStocks, genSpec) to a batch of
+// batch t, its stock on hand in proportion (so the hidden feasible blend
+// stays feasible, within the accepted range), and its prices to the ends
+// of the accepted range (extremePrice).
+func toExtremes(r *rand.Rand, cat *catalogue.Catalogue, spec *catalogue.Spec, batch float64) {
+	f := batch / spec.Batch
+	spec.Batch = batch
+	for j := range cat.Stocks {
+		s := &cat.Stocks[j]
+		if s.Limited() {
+			s.Available = clampTo(catalogue.QtyOnHand, s.Available*f)
+		}
+		s.Price = extremePrice(r, s.Price)
+	}
+}
+
 // requireAccepted fails unless every price, tonnage and availability of
 // cat and spec is one the loaders accept.
 func requireAccepted(t *testing.T, cat *catalogue.Catalogue, batches ...float64) {
@@ -133,16 +149,7 @@ func extremeBlends(t *testing.T) []suiteCase {
 	for k := 0; k < 60; k++ {
 		cat := genStocks(r, 3+r.IntN(18))
 		spec := genSpec(r, cat, 3+r.IntN(12))
-		batch := []float64{0.001, 1e6, logUniform(r, -3, 6)}[r.IntN(3)]
-		f := batch / spec.Batch
-		spec.Batch = batch
-		for j := range cat.Stocks {
-			s := &cat.Stocks[j]
-			if s.Limited() {
-				s.Available = clampTo(catalogue.QtyOnHand, s.Available*f)
-			}
-			s.Price = extremePrice(r, s.Price)
-		}
+		toExtremes(r, cat, spec, []float64{0.001, 1e6, logUniform(r, -3, 6)}[r.IntN(3)])
 		cases = append(cases, suiteCase{cat: cat, spec: spec})
 	}
 	dir := t.TempDir()
@@ -280,15 +287,7 @@ func TestExtremeRulesAgainstBruteForce(t *testing.T) {
 		cat := genStocks(r, 5+r.IntN(4))
 		spec := genSpec(r, cat, 4+r.IntN(6))
 		batch := []float64{0.001, 1e6}[k%2]
-		f := batch / spec.Batch
-		spec.Batch = batch
-		for j := range cat.Stocks {
-			s := &cat.Stocks[j]
-			if s.Limited() {
-				s.Available = clampTo(catalogue.QtyOnHand, s.Available*f)
-			}
-			s.Price = extremePrice(r, s.Price)
-		}
+		toExtremes(r, cat, spec, batch)
 		spec.Rules = catalogue.Rules{MaxStocks: 2 + r.IntN(3), MinIfUsed: []float64{0, 0.5, 5}[r.IntN(3)]}
 		requireAccepted(t, cat, batch)
 		want := bruteForce(t, cat, spec)
