@@ -76,6 +76,9 @@ func mustSolve(b *testing.B, e lplayer.Engine) *lplayer.Solution {
 //
 //	LP            lipoplan's simplex: a fresh engine, load, solve, the answer
 //	              with duals and basis (what BareCLP does with CLP)
+//	ScaledVsLP    the same through lp.NewScaled (the model scaled and the
+//	              answer unscaled outside the engine, as every solve for the
+//	              commands runs) and LP in turn, their ratio as scaled/lp
 //	BareCLP       CLP through the binding, a fresh CLP model per solve
 //	              (coin build; bench_coin_test.go), and BareCLPReused
 //	LPvsBareCLP   LP and BareCLP in turn in every iteration, their ratio as
@@ -98,6 +101,15 @@ func BenchmarkBlend30x20(b *testing.B) {
 	b.Run("LP", func(b *testing.B) { benchCold(b, p) })
 	benchBareCLP(b, cat, spec)
 	benchInterleaved(b, p)
+	b.Run("ScaledVsLP", func(b *testing.B) {
+		interleave(b, "scaled/lp", func() {
+			e := lplayer.NewScaled()
+			if err := e.Load(p); err != nil {
+				b.Fatal(err)
+			}
+			mustSolve(b, e)
+		}, func() { coldSolve(b, p) })
+	})
 	b.Run("GonumSimplex", func(b *testing.B) {
 		st, err := lplayer.ToStandard(p)
 		if err != nil {

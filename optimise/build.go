@@ -97,10 +97,11 @@ func finiteNum(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 // build turns stocks and a spec into the base LP: one column per stock (% of
 // batch, cost price/100 so the objective is currency per tonne of product),
 // the sum row, one row per [limits] entry and per [limits.sfc] temperature,
-// and [use] bounds and availability (pct <= 100·available/batch) as column
-// bounds. Integer rules are added by withRules. Input faults are the
-// catalogue's findings (Catalogue.CheckModel and Spec.CheckModel, a
-// catalogue.Problems) or a catalogue.BadInput.
+// and [use] bounds and availability (pct <= 100·available/batch, left out
+// when above 100 %, where it cannot bind) as column bounds. Integer rules
+// are added by withRules. Input faults are the catalogue's findings
+// (Catalogue.CheckModel and Spec.CheckModel, a catalogue.Problems) or a
+// catalogue.BadInput.
 func build(cat *catalogue.Catalogue, spec *catalogue.Spec) (*model, *layout, error) {
 	return buildIn(cat, spec, nil, nil, false)
 }
@@ -170,7 +171,10 @@ func buildIn(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache, b
 		if c.use.HasMax() {
 			m.colUp[j] = c.use.Max
 		}
-		if c.availPct < m.colUp[j] {
+		// Availability above the whole batch cannot bind (the shares sum
+		// to 100 %), so it is no bound: 1e6 t on hand for a batch of 1 kg
+		// would reach the engines as a bound of 1e11 %.
+		if c.availPct <= 100 && c.availPct < m.colUp[j] {
 			m.colUp[j] = c.availPct
 		}
 	}

@@ -24,31 +24,32 @@ func TestColdMethod(t *testing.T) {
 	}
 	type mc struct {
 		name string
-		m    *model
+		p    *lp.Problem
 	}
 	var ms []mc
+	of := func(m *model) *lp.Problem { return (&engine{}).problem(m) }
 	cat, spec := bench30x20(t)
 	b, _, err := build(cat, spec)
 	require.NoError(t, err)
-	ms = append(ms, mc{"blend30x20", b})
+	ms = append(ms, mc{"blend30x20", of(b)})
 	spec4 := spec.Clone()
 	spec4.Rules = catalogue.Rules{MaxStocks: 4}
 	b4, lay4, _ := build(cat, spec4)
-	ms = append(ms, mc{"milp-relax", lay4.withRules(b4, func(j int) float64 { return min(b4.colUp[j], 100) })})
+	ms = append(ms, mc{"milp-relax", of(lay4.withRules(b4, func(j int) float64 { return min(b4.colUp[j], 100) }))})
 	for k, sz := range [][2]int{{20, 50}, {5, 20}, {10, 30}, {30, 60}} {
 		c, o := randomPlan(rand.New(rand.NewPCG(uint64(k), 9)), sz[0], sz[1])
 		pm, _, _ := buildPlan(c, o, &profileCache{})
-		ms = append(ms, mc{"plan", pm})
+		ms = append(ms, mc{"plan", &pm.prob})
 	}
 	r := rand.New(rand.NewPCG(1, 1))
 	for k := 0; k < 3; k++ {
 		c := genStocks(r, 30+r.IntN(270))
 		s := genSpec(r, c, 20)
 		bm, _, _ := build(c, s)
-		ms = append(ms, mc{"blend", bm})
+		ms = append(ms, mc{"blend", of(bm)})
 	}
 	for _, x := range ms {
-		p := (&engine{}).problem(x.m)
+		p := x.p
 		line := ""
 		var objs []float64
 		for _, o := range []lp.Options{{Method: lp.Dual}, {Method: lp.Primal}} {
@@ -68,6 +69,6 @@ func TestColdMethod(t *testing.T) {
 			line += fmt.Sprintf(" | %s %d iterations %v", o.Method, sol.Iterations, best)
 		}
 		assert.True(t, relClose(objs[0], objs[1], 1e-9), "%s: dual %v, primal %v", x.name, objs[0], objs[1])
-		t.Logf("%-10s %4dx%-4d %s", x.name, x.m.nRows, x.m.nCols, line)
+		t.Logf("%-10s %4dx%-4d %s", x.name, x.p.Rows, x.p.Cols, line)
 	}
 }

@@ -91,7 +91,10 @@ func (e *engine) close() {
 // names (FNV-1a). Models of one structure share an LP engine; a collision
 // costs a cold start at worst, never a wrong answer (an engine solves
 // whatever it is given).
-func structure(m *model) uint64 {
+func structure(m *model) uint64 { return structureOf(m.nRows, m.nCols, m.colName, m.rowName) }
+
+// structureOf is structure for a model given by its shape and names.
+func structureOf(rows, cols int, colName, rowName []string) uint64 {
 	h := fnv.New64a()
 	var b [8]byte
 	put := func(v int) {
@@ -100,22 +103,21 @@ func structure(m *model) uint64 {
 		}
 		h.Write(b[:])
 	}
-	put(m.nRows)
-	put(m.nCols)
-	for _, s := range m.colName {
+	put(rows)
+	put(cols)
+	for _, s := range colName {
 		h.Write([]byte(s))
 		h.Write([]byte{0})
 	}
-	for _, s := range m.rowName {
+	for _, s := range rowName {
 		h.Write([]byte(s))
 		h.Write([]byte{0})
 	}
 	return h.Sum64()
 }
 
-// lpFor is the LP engine for m's structure, made when new.
-func (e *engine) lpFor(m *model) lp.Engine {
-	k := structure(m)
+// lpFor is the LP engine for structure k, made when new.
+func (e *engine) lpFor(k uint64) lp.Engine {
 	for i, key := range e.keys {
 		if key == k {
 			l := e.lps[i]
@@ -144,8 +146,14 @@ func (e *engine) problem(m *model) *lp.Problem {
 
 // solveLP solves m ignoring m.integer.
 func (e *engine) solveLP(m *model) (*solution, error) {
-	l := e.lpFor(m)
-	if err := l.Load(e.problem(m)); err != nil {
+	return e.solveProblem(structure(m), e.problem(m))
+}
+
+// solveProblem solves p, a model of structure key given in the engine
+// layer's form (a plan's, built sparse).
+func (e *engine) solveProblem(key uint64, p *lp.Problem) (*solution, error) {
+	l := e.lpFor(key)
+	if err := l.Load(p); err != nil {
 		return nil, fmt.Errorf("%s: %w", l.Name(), err)
 	}
 	s, err := l.Solve()
@@ -193,13 +201,17 @@ func rangingOf(m *model, s *solution) (*lp.Ranging, error) {
 	return lp.NewRanging(p, &lp.Solution{Status: s.status, X: s.x, RowAct: s.act, Y: s.y, D: s.d, Basis: s.basis})
 }
 
-// simplexEngine is lipoplan's own simplex and branch and bound.
+// simplexEngine is lipoplan's own simplex and branch and bound. The
+// engines that solve for the commands see every model scaled (lp.Scaled,
+// lp.ScaledMIP).
 func simplexEngine() *engine {
 	return &engine{lpName: "lipoplan-simplex", mipName: "lipoplan-bb",
-		newLP: func() lp.Engine { return lp.New() }, mip: lp.NewBranchAndBound()}
+		newLP: lp.NewScaled, mip: lp.ScaledMIP(lp.NewBranchAndBound())}
 }
 
-// gonumEngine is gonum's simplex, a test reference (no integer rules).
+// gonumEngine is gonum's simplex, a test reference (no integer rules). It
+// sees the models as built, unscaled, so that it checks lp.Scaled's
+// unscaling too.
 func gonumEngine() *engine {
 	return &engine{lpName: "gonum", mipName: "gonum", newLP: func() lp.Engine { return lp.NewGonum() }}
 }

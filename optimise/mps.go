@@ -19,6 +19,23 @@ import (
 // "used.<id>" between MARKER lines and rows "link.<id>", "share.<id>",
 // "count". [use] and availability are column bounds.
 func MPS(cat *catalogue.Catalogue, spec *catalogue.Spec) ([]byte, error) {
+	return MPSIn(FreeMPS, cat, spec)
+}
+
+// MPSFormat is the layout of an MPS file: FreeMPS (exact numbers, any
+// name length) or FixedMPS (fixed columns, names fitted to 8 characters
+// with the mapping as comments at the top, numbers in 12 characters); see
+// lp.MPSFormat.
+type MPSFormat = lp.MPSFormat
+
+// The MPS layouts.
+const (
+	FreeMPS  = lp.FreeMPS
+	FixedMPS = lp.FixedMPS
+)
+
+// MPSIn is MPS in layout f.
+func MPSIn(f MPSFormat, cat *catalogue.Catalogue, spec *catalogue.Spec) ([]byte, error) {
 	m, lay, err := build(cat, spec)
 	if err != nil {
 		return nil, err
@@ -26,8 +43,7 @@ func MPS(cat *catalogue.Catalogue, spec *catalogue.Spec) ([]byte, error) {
 	if lay.rules.Active() {
 		m = lay.withRules(m, func(j int) float64 { return math.Min(m.colUp[j], 100) })
 	}
-	name := "lipoplan"
-	return m.mps(name), nil
+	return m.mps("lipoplan", f), nil
 }
 
 // WriteMPS writes MPS(cat, spec) to path atomically: a temporary file in the
@@ -67,11 +83,17 @@ func writeAtomic(path string, b []byte) error {
 	return nil
 }
 
-// mps renders the model in free MPS (lp.MPS): rows and columns by name, a
-// repeated row name (a spec listing the same limit twice) with a "#2",
-// "#3" suffix.
-func (m *model) mps(name string) []byte {
+// mps renders the model in MPS layout f (mpsOf).
+func (m *model) mps(name string, f MPSFormat) []byte {
 	p := &lp.Problem{Obj: m.obj, ColLo: m.colLo, ColUp: m.colUp, RowLo: m.rowLo, RowUp: m.rowUp}
 	p.Dense(m.nRows, m.nCols, m.a)
-	return lp.MPS(p, name, m.colName, m.rowName, m.integer)
+	return mpsOf(p, name, m.colName, m.rowName, m.integer, f)
+}
+
+// mpsOf renders a model in MPS layout f (lp.WriteMPS): rows and columns
+// by name, a repeated row name (a spec listing the same limit twice) with
+// a "#2", "#3" suffix; in fixed MPS, names longer than 8 characters
+// replaced and the mapping written as comments at the top.
+func mpsOf(p *lp.Problem, name string, colName, rowName []string, integer []int, f MPSFormat) []byte {
+	return lp.WriteMPS(p, name, colName, rowName, integer, f)
 }

@@ -13,18 +13,23 @@ import (
 const demoPlanTonnes = 100.0
 
 func (a *app) plan(args []string) error {
-	fs := a.newFlags("plan", `[--stocks F] [--orders F] [--format text|json] [--mps FILE]`,
+	fs := a.newFlags("plan", `[--stocks F] [--orders F] [--format text|json] [--mps FILE] [--mps-format free|fixed]`,
 		"Cheapest way to make every order of an orders file from one shared stock: each product meets\n"+
 			"its spec, stock on hand is shared, and [purchase] prices buy beyond it. Prints each product's\n"+
 			"blend and what one more tonne of each limited stock would save (exit 3 when impossible).")
 	stocksPath := fs.String("stocks", "", "stock catalogue TOML (default: embedded demo stocks)")
 	ordersPath := fs.String("orders", "", fmt.Sprintf("orders TOML (default: every demo spec, %g t each)", demoPlanTonnes))
 	format := fs.String("format", "text", "text or json")
-	mps := fs.String("mps", "", "also write the joint model to this `file` in free MPS format (- = standard output, the report then goes to standard error)")
+	mps := fs.String("mps", "", "also write the joint model to this `file` in MPS format (- = standard output, the report then goes to standard error)")
+	mpsLayout := fs.String("mps-format", "free", mpsFormatHelp)
 	if err := a.parse(fs, args); err != nil {
 		return err
 	}
 	if err := checkFormat(*format, "text", "json"); err != nil {
+		return err
+	}
+	layout, err := mpsFormat(*mpsLayout)
+	if err != nil {
 		return err
 	}
 	mpsOut := output{"--mps", *mps}
@@ -41,7 +46,7 @@ func (a *app) plan(args []string) error {
 		return err
 	}
 	if *mps != "" {
-		model, err := optimise.PlanMPS(cat, orders)
+		model, err := optimise.PlanMPSIn(layout, cat, orders)
 		if err != nil {
 			return fmt.Errorf("--mps: %w", err)
 		}

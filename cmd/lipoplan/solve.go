@@ -15,13 +15,29 @@ import (
 	"lipoplan/optimise"
 )
 
+// mpsFormatHelp is the help of --mps-format (solve and plan).
+const mpsFormatHelp = "layout of the --mps file: free (exact numbers, names as in lipoplan; glpsol --freemps, COIN-OR) or\n" +
+	"fixed (fixed columns, names fitted to 8 characters with the mapping as comment lines at the top; glpsol --mps, strict readers)"
+
+// mpsFormat reads --mps-format.
+func mpsFormat(s string) (optimise.MPSFormat, error) {
+	switch s {
+	case "free":
+		return optimise.FreeMPS, nil
+	case "fixed":
+		return optimise.FixedMPS, nil
+	}
+	return optimise.FreeMPS, catalogue.Badf("--mps-format %q is not known; use free or fixed", s)
+}
+
 func (a *app) solve(args []string) error {
-	fs := a.newFlags("solve", `[--stocks F --spec F | --scenario F] [--format text|json|csv] [--mps FILE] [--svg FILE] [--sheet FILE] [--temps "5,10,37"]`,
+	fs := a.newFlags("solve", `[--stocks F --spec F | --scenario F] [--format text|json|csv] [--mps FILE] [--mps-format free|fixed] [--svg FILE] [--sheet FILE] [--temps "5,10,37"]`,
 		"Cheapest blend of the stocks that meets the spec: a linear programme (lipoplan's own simplex; integer\n"+
 			"rules max_stocks and smallest_share by branch and bound), with the cost of every binding limit, price ranging per stock\n"+
 			"and, when the spec cannot be met, the smallest relaxation that would make it feasible (exit 3).")
 	in := a.inputFlags(fs, demoSpec, "product spec TOML (default: the embedded demo laminating spec)", "text", "json", "csv").takeScenario(fs)
-	mps := fs.String("mps", "", "also write the model to this `file` in free MPS format (- = standard output, the report then goes to standard error)")
+	mps := fs.String("mps", "", "also write the model to this `file` in MPS format (- = standard output, the report then goes to standard error)")
+	mpsLayout := fs.String("mps-format", "free", mpsFormatHelp)
 	svg := fs.String("svg", "", "also draw the blend's SFC against the spec's bands into this SVG `file` (- = standard output)")
 	sheet := fs.String("sheet", "", "also write a printable blend sheet (HTML, A4) of the solved blend into this `file` (- = standard output)")
 	temps := fs.String("temps", "", `SFC temperatures to report, deg C (default 10,15,...,45 plus the spec's)`)
@@ -38,6 +54,10 @@ func (a *app) solve(args []string) error {
 	if err := in.check(); err != nil {
 		return err
 	}
+	layout, err := mpsFormat(*mpsLayout)
+	if err != nil {
+		return err
+	}
 	model, err := a.sfcModel(*calPath)
 	if err != nil {
 		return err
@@ -52,7 +72,7 @@ func (a *app) solve(args []string) error {
 		return err
 	}
 	if *mps != "" {
-		lp, err := optimise.MPS(cat, spec)
+		lp, err := optimise.MPSIn(layout, cat, spec)
 		if err != nil {
 			return fmt.Errorf("--mps: %w", err)
 		}

@@ -65,9 +65,10 @@ func coinProblem(p *Problem, start, index *[]int32, integer []int) *coin.Problem
 
 var errStopped = errors.New("clp stopped short")
 
-// Solve solves the loaded problem. lipoplan's rows are well scaled and
-// CLP runs faster on them without its own scaling pass; its dual simplex
-// from the slack basis (Clp_dual) is the fastest of its methods here.
+// Solve solves the loaded problem. lipoplan gives CLP its models scaled
+// (Scaled), and CLP runs faster on them without its own scaling pass; its
+// dual simplex from the slack basis (Clp_dual) is the fastest of its
+// methods here.
 // Should it stop short (numerical trouble), the problem is solved again
 // from scratch with scaling and CLP's own method choice (Clp_initialSolve)
 // in a model of its own.

@@ -90,9 +90,13 @@ func (b *basisLU) column(k int, w []float64) {
 // Linear Programming, ch. 10 on sensitivity analysis; Bazaraa, Jarvis &
 // Sherali, Linear Programming and Network Flows, on cost and right-hand
 // side ranging), on the computational form with bounded variables.
+//
+// The ratio tests run on the problem scaled as Scaled scales it for an
+// engine (their thresholds are absolute), and the ranges are unscaled.
 type Ranging struct {
-	p      *Problem
+	p      *Problem // scaled
 	sol    *Solution
+	sc     scaling
 	b      *basisLU
 	w, rho []float64
 	row    []float64
@@ -104,12 +108,23 @@ func NewRanging(p *Problem, sol *Solution) (*Ranging, error) {
 	if sol == nil || sol.Status != Optimal || sol.Basis == nil {
 		return nil, fmt.Errorf("%w: no optimal basis to range", ErrBasis)
 	}
-	b, err := newBasisLU(p, sol.Basis)
+	if err := p.Check(); err != nil {
+		return nil, err
+	}
+	if len(sol.X) != p.Cols || len(sol.D) != p.Cols || len(sol.Y) != p.Rows || len(sol.RowAct) != p.Rows {
+		return nil, fmt.Errorf("%w: the answer does not match %d columns and %d rows", ErrBadProblem, p.Cols, p.Rows)
+	}
+	g := &Ranging{p: &Problem{}}
+	g.sc.set(p, nil)
+	g.sc.apply(p, g.p)
+	g.sol = g.sc.scaleAnswer(sol)
+	b, err := newBasisLU(g.p, sol.Basis)
 	if err != nil {
 		return nil, err
 	}
 	m := p.Rows
-	return &Ranging{p: p, sol: sol, b: b, w: make([]float64, m), rho: make([]float64, m), row: make([]float64, p.Cols+m)}, nil
+	g.b, g.w, g.rho, g.row = b, make([]float64, m), make([]float64, m), make([]float64, p.Cols+m)
+	return g, nil
 }
 
 // reduced is the reduced cost of variable k (a row logical's is its dual).
@@ -126,6 +141,13 @@ func (g *Ranging) reduced(k int) float64 {
 // while d_j + δ <= 0. For a basic column at position p every nonbasic k
 // must keep the sign of d_k - δ·α_pk, α_p = e_pᵀB⁻¹[A -I].
 func (g *Ranging) CostRange(j int) (lo, hi float64) {
+	lo, hi = g.costRange(j)
+	f := g.sc.obj * g.sc.cs[j]
+	return lo / f, hi / f
+}
+
+// costRange is CostRange on the scaled problem.
+func (g *Ranging) costRange(j int) (lo, hi float64) {
 	const eps = 1e-9
 	lo, hi = math.Inf(-1), math.Inf(1)
 	switch g.sol.Basis[j] {
@@ -187,10 +209,19 @@ func (g *Ranging) CostRange(j int) (lo, hi float64) {
 // y = B⁻ᵀ dir_B, every nonbasic variable k's reduced cost moves by t·δ_k,
 // δ_k = dir_k - yᵀa_k (a_k its column of [A -I]; a row logical has no cost),
 // and must keep its sign. CostRange(j) is the case dir = e_j.
+//
+// The direction is scaled as the costs are (the ratio tests run on the
+// scaled problem): Obj_s + t·dir_s is the scaled Obj + t·dir, so t needs
+// no unscaling.
 func (g *Ranging) CostDirectionRange(dir []float64) (lo, hi float64) {
 	const eps = 1e-9
 	lo, hi = math.Inf(-1), math.Inf(1)
 	p := g.p
+	scaled := make([]float64, len(dir))
+	for k, v := range dir {
+		scaled[k] = v * g.sc.obj * g.sc.cs[k]
+	}
+	dir = scaled
 	clear(g.w)
 	for k, st := range g.sol.Basis {
 		if st == Basic && k < p.Cols {
@@ -246,12 +277,16 @@ func (g *Ranging) CostDirectionRange(dir []float64) (lo, hi float64) {
 // move away from the activity: [-Inf, activity] for a lower bound,
 // [activity, +Inf] for an upper bound.
 func (g *Ranging) RowBoundRange(i int, upper bool) (lo, hi float64) {
-	return g.boundRange(g.p.Cols+i, upper, g.sol.RowAct[i], g.p.RowLo[i], g.p.RowUp[i])
+	lo, hi = g.boundRange(g.p.Cols+i, upper, g.sol.RowAct[i], g.p.RowLo[i], g.p.RowUp[i])
+	r := g.sc.rs[i]
+	return lo / r, hi / r
 }
 
 // ColBoundRange is RowBoundRange for column j's bounds.
 func (g *Ranging) ColBoundRange(j int, upper bool) (lo, hi float64) {
-	return g.boundRange(j, upper, g.sol.X[j], g.p.ColLo[j], g.p.ColUp[j])
+	lo, hi = g.boundRange(j, upper, g.sol.X[j], g.p.ColLo[j], g.p.ColUp[j])
+	c := g.sc.cs[j]
+	return lo * c, hi * c
 }
 
 func (g *Ranging) boundRange(k int, upper bool, v, blo, bup float64) (lo, hi float64) {

@@ -124,3 +124,165 @@ func pow2(v float64) float64 {
 	}
 	return math.Ldexp(1, e)
 }
+
+// scaling is a problem's scale factors as engines see it: row i is
+// multiplied by rs[i], column j's variable is x_j = cs[j]·x'_j (its matrix
+// column multiplied by cs[j], its bounds divided by it) and the objective
+// by obj. Every factor is a power of two, so scaling and unscaling are
+// exact.
+type scaling struct {
+	rs, cs []float64
+	obj    float64
+	work   []float64
+}
+
+// set computes the factors of p: rows and columns by scaleFactors, the
+// columns in integer kept unscaled (their values must stay integers), and
+// the objective by objFactor.
+func (sc *scaling) set(p *Problem, integer []int) {
+	sc.rs, sc.cs = resize(sc.rs, p.Rows), resize(sc.cs, p.Cols)
+	scaleFactors(p, sc.rs, sc.cs, &sc.work)
+	for _, j := range integer {
+		if j >= 0 && j < p.Cols {
+			sc.cs[j] = 1
+		}
+	}
+	sc.obj = objFactor(p.Obj, sc.cs)
+}
+
+// objFactor scales the objective the way scaleFactors scales a row: by
+// the power of two nearest to 1/√(min·max) of its nonzero scaled entries
+// |c_j·cs_j| (Tomlin 1975's geometric scaling applied to the objective
+// row), so that the costs straddle 1. A price of 1e9 per tonne and one
+// of 0.001 in one model then reach an engine as about 1e6 and 1e-6
+// instead of 1e7 and 1e-5 — and a model whose costs are all tiny (prices
+// of 0.001 on orders of 0.001 t: costs of 1e-8) as costs near 1, far
+// above the engines' dual tolerances (1e-9 for lipoplan's simplex, 1e-7
+// for CLP), which otherwise swallow every difference between them.
+func objFactor(obj, cs []float64) float64 {
+	lo, hi := math.Inf(1), 0.0
+	for j, c := range obj {
+		if c != 0 {
+			v := math.Abs(c) * cs[j]
+			lo, hi = min(lo, v), max(hi, v)
+		}
+	}
+	if hi == 0 {
+		return 1
+	}
+	return pow2(1 / math.Sqrt(lo*hi))
+}
+
+// apply writes p scaled into dst. dst shares p's Start and Index (engines
+// copy what they load); its other arrays are dst's own, reused.
+func (sc *scaling) apply(p, dst *Problem) {
+	dst.Rows, dst.Cols = p.Rows, p.Cols
+	dst.Start, dst.Index = p.Start, p.Index
+	dst.Value = resize(dst.Value, len(p.Value))
+	for j := 0; j < p.Cols; j++ {
+		c := sc.cs[j]
+		for k := p.Start[j]; k < p.Start[j+1]; k++ {
+			dst.Value[k] = sc.rs[p.Index[k]] * p.Value[k] * c
+		}
+	}
+	dst.Obj, dst.ColLo, dst.ColUp = resize(dst.Obj, p.Cols), resize(dst.ColLo, p.Cols), resize(dst.ColUp, p.Cols)
+	for j := 0; j < p.Cols; j++ {
+		dst.Obj[j], dst.ColLo[j], dst.ColUp[j] = sc.costOf(j, p.Obj[j]), p.ColLo[j]/sc.cs[j], p.ColUp[j]/sc.cs[j]
+	}
+	dst.RowLo, dst.RowUp = resize(dst.RowLo, p.Rows), resize(dst.RowUp, p.Rows)
+	for i := 0; i < p.Rows; i++ {
+		dst.RowLo[i], dst.RowUp[i] = p.RowLo[i]*sc.rs[i], p.RowUp[i]*sc.rs[i]
+	}
+}
+
+// costOf is column j's scaled cost for cost c.
+func (sc *scaling) costOf(j int, c float64) float64 { return c * sc.obj * sc.cs[j] }
+
+// unscale turns an answer to the scaled problem into one to the problem:
+// x = C·x', r = R⁻¹·r', y = R·y'/obj, d = d'/(obj·C), and the
+// certificates u = R·u' (Farkas) and ray = C·ray'.
+func (sc *scaling) unscale(s *Solution) {
+	for j := range s.X {
+		s.X[j] *= sc.cs[j]
+	}
+	for j := range s.D {
+		s.D[j] /= sc.obj * sc.cs[j]
+	}
+	for i := range s.RowAct {
+		s.RowAct[i] /= sc.rs[i]
+	}
+	for i := range s.Y {
+		s.Y[i] *= sc.rs[i] / sc.obj
+	}
+	for i := range s.Farkas {
+		s.Farkas[i] *= sc.rs[i]
+	}
+	for j := range s.Ray {
+		s.Ray[j] *= sc.cs[j]
+	}
+	s.Obj /= sc.obj
+}
+
+// scaleAnswer is unscale's inverse, for an answer given in the problem's
+// terms (ranging works on the scaled problem).
+func (sc *scaling) scaleAnswer(s *Solution) *Solution {
+	out := &Solution{Status: s.Status, Obj: s.Obj * sc.obj, Basis: s.Basis, Iterations: s.Iterations}
+	out.X = make([]float64, len(s.X))
+	for j, v := range s.X {
+		out.X[j] = v / sc.cs[j]
+	}
+	out.D = make([]float64, len(s.D))
+	for j, v := range s.D {
+		out.D[j] = v * sc.obj * sc.cs[j]
+	}
+	out.RowAct = make([]float64, len(s.RowAct))
+	for i, v := range s.RowAct {
+		out.RowAct[i] = v * sc.rs[i]
+	}
+	out.Y = make([]float64, len(s.Y))
+	for i, v := range s.Y {
+		out.Y[i] = v * sc.obj / sc.rs[i]
+	}
+	return out
+}
+
+// Bounds of the objective factor's second look (refit).
+const (
+	refitStep = 128     // refit when the deciding costs are this far below 1
+	refitMax  = 1 << 40 // the largest scaled cost allowed after a refit
+)
+
+// refit is the objective factor's second look, once an answer x' to the
+// scaled problem is known. The costs that decide an optimum are those of
+// the columns strictly inside their bounds (the basic columns of a
+// nondegenerate optimum; a column held at a bound, a dear stock forced in
+// at its [use] minimum, decides nothing). When even the largest of them is
+// far below 1 (by refitStep or more), the engines' absolute dual
+// tolerances may have swallowed the differences between them, and refit
+// returns the factor that brings it to about 1, the largest scaled cost of
+// all staying at most refitMax. A catalogue with prices of 0.001 and of
+// 1e9 per tonne has costs 1e12 apart: the factor objFactor takes leaves
+// its cheap stocks' costs near 1e-6, within ten times CLP's dual tolerance
+// of each other, and CLP stopped 2 % above the optimum among them before
+// this refit. Large deciding costs need no refit (the tolerances are then
+// fine beside them), and one was seen to cost accuracy: brought down to 1,
+// it pushed the other deciding costs of a plan below CLP's tolerance. It
+// reports false when no refit is due. p is the problem unscaled.
+func (sc *scaling) refit(p *Problem, x []float64) (float64, bool) {
+	inside, all := 0.0, 0.0
+	for j, c := range p.Obj {
+		v := math.Abs(c) * sc.cs[j] * sc.obj
+		all = max(all, v)
+		if xj := x[j] * sc.cs[j]; xj > p.ColLo[j] && xj < p.ColUp[j] {
+			inside = max(inside, v)
+		}
+	}
+	if inside == 0 {
+		return sc.obj, false
+	}
+	f := min(1/inside, refitMax/all)
+	if f < refitStep {
+		return sc.obj, false
+	}
+	return sc.obj * pow2(f), true
+}

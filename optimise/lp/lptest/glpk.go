@@ -60,8 +60,35 @@ func NeedGlpsol(t testing.TB) {
 // other rows in order (KeptRows).
 func Glpsol(t testing.TB, mps string, ranges bool) GLPK {
 	t.Helper()
+	return GlpsolWith(t, mps, GlpsolOptions{Ranges: ranges})
+}
+
+// GlpsolOptions choose how glpsol reads and solves a file.
+type GlpsolOptions struct {
+	// Fixed reads the file as fixed MPS (glpsol --mps), not free MPS.
+	Fixed bool
+	// Exact solves an LP with GLPK's simplex in exact rational arithmetic
+	// (glpsol --exact): no tolerance, the reference where coefficients
+	// span many orders of magnitude and a floating-point simplex,
+	// GLPK's own included, may stop short of the optimum.
+	Exact bool
+	// Ranges also reads the sensitivity report (--ranges).
+	Ranges bool
+}
+
+// GlpsolWith is Glpsol with the options o.
+func GlpsolWith(t testing.TB, mps string, o GlpsolOptions) GLPK {
+	t.Helper()
 	sol := mps + ".sol"
-	args := []string{"--freemps", "--nopresol", mps, "-w", sol}
+	format := "--freemps"
+	if o.Fixed {
+		format = "--mps"
+	}
+	args := []string{format, "--nopresol", mps, "-w", sol}
+	if o.Exact {
+		args = append(args, "--exact")
+	}
+	ranges := o.Ranges
 	if ranges {
 		args = append(args, "--ranges", mps+".rng")
 	}
