@@ -228,8 +228,6 @@ func (in *inputs) load(a *app) (*catalogue.Catalogue, *catalogue.Spec, error) {
 	return cat, spec, nil
 }
 
-// files are the input files named on the command line, which no output of
-// the same run may overwrite.
 // loadWithTemps is load and the report temperatures of a --temps flag
 // (temps; "" gives the defaults plus the spec's, blend.SpecTemps).
 func (in *inputs) loadWithTemps(a *app, temps string) (*catalogue.Catalogue, *catalogue.Spec, []float64, error) {
@@ -256,6 +254,8 @@ func (in *inputs) scenarioPath() string {
 	return *in.scenario
 }
 
+// files are the input files named on the command line, which no output of
+// the same run may overwrite.
 func (in *inputs) files() []string {
 	out := []string{*in.stocks}
 	if in.spec != nil {

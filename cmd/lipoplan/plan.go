@@ -17,15 +17,14 @@ func (a *app) plan(args []string) error {
 		"Cheapest way to make every order of an orders file from one shared stock: each product meets\n"+
 			"its spec, stock on hand is shared, and [purchase] prices buy beyond it. Prints each product's\n"+
 			"blend and what one more tonne of each limited stock would save (exit 3 when impossible).")
-	stocksPath := fs.String("stocks", "", "stock catalogue TOML (default: embedded demo stocks)")
+	in := a.inputFlags(fs, noSpec, "", "text", "json")
 	ordersPath := fs.String("orders", "", fmt.Sprintf("orders TOML (default: every demo spec, %g t each)", demoPlanTonnes))
-	format := fs.String("format", "text", "text or json")
 	mps := fs.String("mps", "", "also write the joint model to this `file` in MPS format (- = standard output, the report then goes to standard error)")
 	mpsLayout := fs.String("mps-format", "free", mpsFormatHelp)
 	if err := a.parse(fs, args); err != nil {
 		return err
 	}
-	if err := checkFormat(*format, "text", "json"); err != nil {
+	if err := in.check(); err != nil {
 		return err
 	}
 	layout, err := mpsFormat(*mpsLayout)
@@ -37,7 +36,7 @@ func (a *app) plan(args []string) error {
 	if err != nil {
 		return err
 	}
-	cat, err := a.stocks(*stocksPath)
+	cat, _, err := in.load(a)
 	if err != nil {
 		return err
 	}
@@ -50,7 +49,7 @@ func (a *app) plan(args []string) error {
 		if err != nil {
 			return fmt.Errorf("--mps: %w", err)
 		}
-		inputs := []string{*stocksPath, *ordersPath}
+		inputs := append(in.files(), *ordersPath)
 		for _, o := range orders.Orders {
 			inputs = append(inputs, o.Path)
 		}
@@ -62,7 +61,7 @@ func (a *app) plan(args []string) error {
 	if err != nil {
 		return err
 	}
-	if *format == "json" {
+	if in.json() {
 		err = writeJSON(report, planJSON(res))
 	} else {
 		writePlanText(report, res)
