@@ -86,7 +86,7 @@ func (f *fuzzBytes) value() float64 {
 // values, keeps every comment, and leaves every line but one per changed
 // value byte for byte. Edits the workspace would refuse (Catalogue.Check,
 // Spec.Check) are not written. Run: go test ./catalogue -run '^$' -fuzz
-// FuzzPatch -fuzztime 20000x
+// FuzzPatch -fuzztime 2000x
 func FuzzPatch(f *testing.F) {
 	f.Add([]byte{0, 3, 40, 1, 1, 5, 7, 3, 0, 3, 1, 20, 2})
 	f.Add([]byte{1, 5, 6, 8, 2, 9, 4, 1, 6, 3, 30, 1, 10, 5})

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -426,7 +427,7 @@ func (sc docSchema) dropEmpty(path []string) bool {
 // acids, limit names, stock ids) as strings.
 func (sc docSchema) less(parent []string, a, b string) bool {
 	if known := sc.fixedKeys(parent); known != nil {
-		ia, ib := index(known, a), index(known, b)
+		ia, ib := slices.Index(known, a), slices.Index(known, b)
 		if ia >= 0 && ib >= 0 {
 			return ia < ib
 		}
@@ -466,15 +467,6 @@ func (sc docSchema) fixedKeys(parent []string) []string {
 		return keysBound
 	}
 	return nil
-}
-
-func index(list []string, s string) int {
-	for i, x := range list {
-		if x == s {
-			return i
-		}
-	}
-	return -1
 }
 
 func (sc docSchema) isTempTable(parent []string) bool {

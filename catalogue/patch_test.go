@@ -166,37 +166,28 @@ type specCase struct {
 	out, in, aft []string
 }
 
-func limitByName(t *testing.T, s *Spec, name string) *Limit {
+// find returns the item of items that match picks, named what in a failure.
+func find[T any](t *testing.T, items []T, what string, match func(T) bool) *T {
 	t.Helper()
-	for i := range s.Limits {
-		if s.Limits[i].Name == name {
-			return &s.Limits[i]
+	for i := range items {
+		if match(items[i]) {
+			return &items[i]
 		}
 	}
-	t.Fatalf("no limit %s", name)
+	t.Fatalf("no %s", what)
 	return nil
+}
+
+func limitByName(t *testing.T, s *Spec, name string) *Limit {
+	return find(t, s.Limits, "limit "+name, func(l Limit) bool { return l.Name == name })
 }
 
 func sfcAt(t *testing.T, s *Spec, temp float64) *SFCLimit {
-	t.Helper()
-	for i := range s.SFC {
-		if s.SFC[i].Temp == temp {
-			return &s.SFC[i]
-		}
-	}
-	t.Fatalf("no SFC limit at %g", temp)
-	return nil
+	return find(t, s.SFC, fmt.Sprintf("SFC limit at %g", temp), func(l SFCLimit) bool { return l.Temp == temp })
 }
 
 func useOf(t *testing.T, s *Spec, id string) *Use {
-	t.Helper()
-	for i := range s.Use {
-		if s.Use[i].Stock == id {
-			return &s.Use[i]
-		}
-	}
-	t.Fatalf("no use bound for %s", id)
-	return nil
+	return find(t, s.Use, "use bound for "+id, func(u Use) bool { return u.Stock == id })
 }
 
 func upTo(v float64) Bound    { return Bound{Min: math.Inf(-1), Max: v} }

@@ -491,18 +491,7 @@ func (s *tomlScanner) multiline(delim string, escapes bool) error {
 }
 
 func (s *tomlScanner) array(v *tomlValue, raw []string) error {
-	s.pos++ // [
-	for {
-		if s.gap() {
-			v.comments = true
-		}
-		if s.peek() == ']' {
-			s.pos++
-			return nil
-		}
-		if s.eof() {
-			return s.fail("an array is not closed")
-		}
+	return s.items(v, ']', "an array", func() error {
 		path := append(append([]string(nil), v.path...), "#"+strconv.Itoa(len(v.elems)))
 		el, err := s.value(path, raw)
 		if err != nil {
@@ -510,51 +499,53 @@ func (s *tomlScanner) array(v *tomlValue, raw []string) error {
 		}
 		el.parent = v
 		v.elems = append(v.elems, el)
-		if s.gap() {
-			v.comments = true
-		}
-		switch s.peek() {
-		case ',':
-			s.pos++
-		case ']':
-			s.pos++
-			return nil
-		default:
-			return s.fail("expected , or ] in an array")
-		}
-	}
+		return nil
+	})
 }
 
 func (s *tomlScanner) inlineTable(v *tomlValue, raw []string) error {
-	s.pos++ // {
-	for {
-		if s.gap() {
-			v.comments = true
-		}
-		if s.peek() == '}' {
-			s.pos++
-			return nil
-		}
-		if s.eof() {
-			return s.fail("an inline table is not closed")
-		}
+	return s.items(v, '}', "an inline table", func() error {
 		e, err := s.entry(v.path, raw)
 		if err != nil {
 			return err
 		}
 		e.owner = v
 		v.entries = append(v.entries, e)
+		return nil
+	})
+}
+
+// items reads the items of an array or inline table after its opening
+// bracket up to closer: items separated by commas, a trailing comma
+// allowed, newlines and comments between them (TOML v1.0.0, Array; TOML
+// 1.1 for an inline table).
+func (s *tomlScanner) items(v *tomlValue, closer byte, what string, item func() error) error {
+	s.pos++ // the opening bracket
+	for {
+		if s.gap() {
+			v.comments = true
+		}
+		if s.peek() == closer {
+			s.pos++
+			return nil
+		}
+		if s.eof() {
+			return s.fail("%s is not closed", what)
+		}
+		if err := item(); err != nil {
+			return err
+		}
 		if s.gap() {
 			v.comments = true
 		}
 		switch s.peek() {
 		case ',':
 			s.pos++
-		case '}':
+		case closer:
 			s.pos++
 			return nil
 		default:
-			return s.fail("expected , or } in an inline table")
+			return s.fail("expected , or %c in %s", closer, what)
 		}
 	}
 }
