@@ -148,6 +148,9 @@ type Part = catalogue.Part
 // own values, which is what an LP row sees. SFC is evaluated at temps by
 // linear weighting of measured curves.
 func Mix(parts []Part, temps []float64) (Properties, error) {
+	if _, err := catalogue.CheckParts(parts); err != nil {
+		return Properties{}, err // before a nil stock is read
+	}
 	profiles := make([]*Properties, len(parts))
 	for k, pt := range parts {
 		p := Profile(pt.Stock.FattyAcids)

@@ -121,6 +121,9 @@ func TestMixRejectsBadShares(t *testing.T) {
 	assert.Error(t, err)
 	_, err = Mix([]Part{{Stock: a, Pct: math.NaN()}}, nil)
 	assert.Error(t, err)
+	// a line without a stock is an error, not a panic
+	_, err = Mix([]Part{{Stock: a, Pct: 50}, {Stock: nil, Pct: 50}}, nil)
+	assert.ErrorContains(t, err, "line 2 of the mix has no stock")
 }
 
 func TestCoefficientMatchesValue(t *testing.T) {

@@ -486,8 +486,8 @@ func sortedKeys[V any](m map[string]V) []string {
 
 // The temperatures an SFC value or limit may be given at, deg C.
 const (
-	minTemp = -40.0
-	maxTemp = 100.0
+	MinTemp = -40.0
+	MaxTemp = 100.0
 )
 
 // temp reads an SFC temperature key in deg C.
@@ -500,16 +500,16 @@ func (c *collector) temp(where, label, key string) (float64, bool) {
 	return t, c.tempRange(where, label, key, t)
 }
 
-// tempRange reports an SFC temperature outside minTemp..maxTemp; key is the
+// tempRange reports an SFC temperature outside MinTemp..MaxTemp; key is the
 // temperature as the file wrote it ("" writes t).
 func (c *collector) tempRange(where, label, key string, t float64) bool {
-	if t >= minTemp && t <= maxTemp {
+	if t >= MinTemp && t <= MaxTemp {
 		return true
 	}
 	if key == "" {
 		key = TempKey(t)
 	}
-	c.errf(where, "%s temperature %q is outside %g..%g C; check the key", label, key, minTemp, maxTemp)
+	c.errf(where, "%s temperature %q is outside %g..%g C; check the key", label, key, MinTemp, MaxTemp)
 	return false
 }
 

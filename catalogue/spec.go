@@ -5,6 +5,7 @@ import (
 	"math"
 	"path/filepath"
 	"sort"
+	"strconv"
 	"strings"
 
 	"github.com/BurntSushi/toml"
@@ -74,6 +75,56 @@ type Process struct {
 	Method        string   // "chemical" or "enzymatic"
 	Cost          float64  // currency per tonne processed
 	SFC           string   // "measured" or "predicted"
+	// Through bounds the share of the batch that passes through the
+	// reactor, % of batch ("through = { min = 30 }"); nil leaves it to the
+	// optimiser, which uses the reactor only where it pays.
+	Through *Bound
+	// FeedRatio fixes the make-up of the reactor's feed: the parts of each
+	// stock of Interesterify, in its order ("feed_ratio = { "ps-h" = 3,
+	// "pko-r" = 2 }"); nil lets the optimiser choose the feed.
+	FeedRatio []FeedPart
+}
+
+// FeedPart is one stock's parts in a fixed reactor feed (Process.FeedRatio).
+type FeedPart struct {
+	Stock string
+	Parts float64 // > 0; the feed is each stock's parts over the sum
+}
+
+// Required reports whether the spec makes the reactor take part: a
+// minimum share through it.
+func (p *Process) Required() bool { return p.Through != nil && p.Through.HasMin() && p.Through.Min > 0 }
+
+// FeedShares are the fixed feed's fractions (summing to 1) by stock of
+// Interesterify, nil when the feed is free.
+func (p *Process) FeedShares() map[string]float64 {
+	if len(p.FeedRatio) == 0 {
+		return nil
+	}
+	var sum float64
+	for _, f := range p.FeedRatio {
+		sum += f.Parts
+	}
+	out := make(map[string]float64, len(p.FeedRatio))
+	for _, f := range p.FeedRatio {
+		out[f.Stock] = f.Parts / sum
+	}
+	return out
+}
+
+// Clone returns a deep copy of the process step.
+func (p *Process) Clone() *Process {
+	out := *p
+	out.Interesterify = append([]string(nil), p.Interesterify...)
+	out.FeedRatio = append([]FeedPart(nil), p.FeedRatio...)
+	if len(p.FeedRatio) == 0 {
+		out.FeedRatio = nil
+	}
+	if p.Through != nil {
+		b := *p.Through
+		out.Through = &b
+	}
+	return &out
 }
 
 // Spec is a product specification.
@@ -96,9 +147,7 @@ func (s *Spec) Clone() *Spec {
 	out.SFC = append([]SFCLimit(nil), s.SFC...)
 	out.Use = append([]Use(nil), s.Use...)
 	if s.Process != nil {
-		p := *s.Process
-		p.Interesterify = append([]string(nil), s.Process.Interesterify...)
-		out.Process = &p
+		out.Process = s.Process.Clone()
 	}
 	return &out
 }
@@ -125,10 +174,12 @@ type rawRules struct {
 }
 
 type rawProcess struct {
-	Interesterify val `toml:"interesterify"`
-	Method        val `toml:"method"`
-	Cost          val `toml:"cost"`
-	SFC           val `toml:"sfc"`
+	Interesterify val            `toml:"interesterify"`
+	Method        val            `toml:"method"`
+	Cost          val            `toml:"cost"`
+	SFC           val            `toml:"sfc"`
+	Through       toml.Primitive `toml:"through"`
+	FeedRatio     leafMap        `toml:"feed_ratio"`
 }
 
 type rawSpec struct {
@@ -145,7 +196,7 @@ var (
 	keysSpecTop = []string{"name", "batch", "limits", "use", "rules", "process"}
 	keysBound   = []string{"min", "max"}
 	keysRules   = []string{"max_stocks", "smallest_share", "min_if_used"}
-	keysProcess = []string{"interesterify", "method", "cost", "sfc"}
+	keysProcess = []string{"interesterify", "method", "cost", "sfc", "through", "feed_ratio"}
 )
 
 // ParseSpec decodes and validates a product spec (README, "File formats"). When cat
@@ -170,7 +221,8 @@ func ParseSpec(name string, data []byte, cat *Catalogue) (*Spec, Problems) {
 				return keysProcess, true
 			case len(parent) == 2 && parent[0] == "limits" && parent[1] != "sfc",
 				len(parent) == 3 && parent[0] == "limits" && parent[1] == "sfc",
-				len(parent) == 2 && parent[0] == "use":
+				len(parent) == 2 && parent[0] == "use",
+				len(parent) == 2 && parent[0] == "process" && parent[1] == "through":
 				return keysBound, true
 			}
 			return nil, false
@@ -285,6 +337,17 @@ func (c *collector) specValues(s *Spec, cat *Catalogue, typed bool) {
 		c.processCost(where, p.Cost)
 		if p.SFC != "" {
 			c.processSFC(where, p.SFC)
+		}
+		if p.Through != nil {
+			// A model may send nothing through (through max 0: the blend
+			// without the reactor, as a comparison of routes solves it);
+			// a person would remove [process] instead.
+			if c.limitSides(where+" through", *p.Through, QtyPercent, typed) && typed {
+				c.processThrough(where, *p.Through)
+			}
+		}
+		if len(p.FeedRatio) > 0 {
+			c.processFeedRatio(where, p)
 		}
 	}
 }
@@ -561,7 +624,7 @@ func (c *collector) spec(md toml.MetaData, raw rawSpec, cat *Catalogue) *Spec {
 		s.Rules = c.rules(*raw.Rules)
 	}
 	if raw.Process != nil {
-		s.Process = c.process(*raw.Process, cat)
+		s.Process = c.process(md, *raw.Process, cat)
 	}
 	s.SortLimits()
 	return s
@@ -611,7 +674,7 @@ func (c *collector) rules(r rawRules) Rules {
 	return out
 }
 
-func (c *collector) process(r rawProcess, cat *Catalogue) *Process {
+func (c *collector) process(md toml.MetaData, r rawProcess, cat *Catalogue) *Process {
 	const where = "[process]"
 	p := &Process{SFC: "predicted"}
 	if !r.Interesterify.set {
@@ -648,5 +711,95 @@ func (c *collector) process(r rawProcess, cat *Catalogue) *Process {
 		c.processSFC(where, m)
 		p.SFC = m
 	}
+	if md.IsDefined("process", "through") {
+		if b, ok := c.bound(md, where+" through", r.Through, QtyPercent, "through"); ok {
+			p.Through = &b
+			c.processThrough(where, b)
+		}
+	}
+	if r.FeedRatio.set {
+		if r.FeedRatio.m == nil {
+			c.errf(where, `feed_ratio must be a table of stock = parts, e.g. feed_ratio = { "ps-h" = 3, "pko-r" = 2 }, not %s`, describe(r.FeedRatio.raw))
+		} else {
+			byID := map[string]float64{}
+			good := true
+			for id, v := range r.FeedRatio.m {
+				f, ok := c.num(where+" feed_ratio", strconv.Quote(id), val{v: v, set: true})
+				if !ok {
+					good = false
+					continue
+				}
+				byID[id] = f
+			}
+			if good {
+				// in the order of interesterify; names not in it are
+				// reported by processFeedRatio, in sorted order
+				for _, id := range p.Interesterify {
+					if f, ok := byID[id]; ok {
+						p.FeedRatio = append(p.FeedRatio, FeedPart{Stock: id, Parts: f})
+						delete(byID, id)
+					}
+				}
+				extra := make([]string, 0, len(byID))
+				for id := range byID {
+					extra = append(extra, id)
+				}
+				sort.Strings(extra)
+				for _, id := range extra {
+					p.FeedRatio = append(p.FeedRatio, FeedPart{Stock: id, Parts: byID[id]})
+				}
+				c.processFeedRatio(where, p)
+			}
+		}
+	}
 	return p
+}
+
+// processThrough reports a share through the reactor that no blend can
+// take: a minimum of 0 or a maximum of 0 says nothing a practitioner means
+// (no [process] table, or the optimiser's own choice, does that).
+func (c *collector) processThrough(where string, b Bound) bool {
+	if b.HasMax() && b.Max <= 0 {
+		c.errf(where, "through max = %g lets nothing through the reactor; remove the [process] table instead", b.Max)
+		return false
+	}
+	if b.HasMin() && b.Min <= 0 && !b.HasMax() {
+		c.errf(where, "through min = %g asks for nothing; give a share above 0 %% of the batch, e.g. through = { min = 30 }, or remove through", b.Min)
+		return false
+	}
+	return true
+}
+
+// processFeedRatio reports a fixed feed that does not name exactly the
+// stocks of interesterify, or a part that is not a positive number.
+func (c *collector) processFeedRatio(where string, p *Process) bool {
+	good := true
+	listed := make(map[string]bool, len(p.Interesterify))
+	for _, id := range p.Interesterify {
+		listed[id] = true
+	}
+	given := make(map[string]bool, len(p.FeedRatio))
+	for _, f := range p.FeedRatio {
+		given[f.Stock] = true
+		switch {
+		case !listed[f.Stock]:
+			c.errf(where, "feed_ratio gives parts for %q, which is not in interesterify; add it there or remove it from feed_ratio", f.Stock)
+			good = false
+		case !c.finite(where+" feed_ratio", f.Stock, f.Parts):
+			good = false
+		case f.Parts <= 0:
+			c.errf(where, "feed_ratio %q = %g: parts must be above 0; to feed none of it, remove it from interesterify and feed_ratio", f.Stock, f.Parts)
+			good = false
+		case f.Parts > 1e6:
+			c.errf(where, "feed_ratio %q = %g is outside the accepted range (above 0, at most 1e6 parts); give the parts as small numbers, e.g. 3 and 2", f.Stock, f.Parts)
+			good = false
+		}
+	}
+	for _, id := range p.Interesterify {
+		if len(p.FeedRatio) > 0 && !given[id] {
+			c.errf(where, "feed_ratio gives no parts for %q of interesterify; give every feed stock its parts, or remove feed_ratio to let the blend decide the feed", id)
+			good = false
+		}
+	}
+	return good
 }

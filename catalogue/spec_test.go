@@ -32,6 +32,8 @@ smallest_share = 5.0
 interesterify = ["rapeseed", "pko-r"]
 method = "enzymatic"
 cost = 45.0
+through = { min = 20, max = 60 }
+feed_ratio = { "pko-r" = 2, rapeseed = 3 }
 `
 
 func TestParseSpecValues(t *testing.T) {
@@ -60,8 +62,17 @@ price = 1150.0
 	assert.Equal(t, []Use{{"pko-r", Bound{math.Inf(-1), 25}}, {"rapeseed", Bound{5, 30}}}, s.Use)
 	assert.Equal(t, Rules{MaxStocks: 4, SmallestShare: 5}, s.Rules)
 	require.NotNil(t, s.Process)
-	assert.Equal(t, Process{Interesterify: []string{"rapeseed", "pko-r"}, Method: "enzymatic", Cost: 45, SFC: "predicted"}, *s.Process,
-		"sfc defaults to predicted: the measured curves no longer apply after the reactor")
+	assert.Equal(t, Process{Interesterify: []string{"rapeseed", "pko-r"}, Method: "enzymatic", Cost: 45, SFC: "predicted",
+		Through: &Bound{20, 60}, FeedRatio: []FeedPart{{"rapeseed", 3}, {"pko-r", 2}}}, *s.Process,
+		"sfc defaults to predicted: the measured curves no longer apply after the reactor; the feed ratio in the order of interesterify")
+	assert.True(t, s.Process.Required())
+	assert.Equal(t, map[string]float64{"rapeseed": 0.6, "pko-r": 0.4}, s.Process.FeedShares())
+	// a clone shares nothing with the spec it came from
+	c := s.Clone()
+	c.Process.Through.Min = 1
+	c.Process.FeedRatio[0].Parts = 9
+	assert.Equal(t, 20.0, s.Process.Through.Min)
+	assert.Equal(t, 3.0, s.Process.FeedRatio[0].Parts)
 
 	// Without a catalogue the stock ids are not checked.
 	_, ps = ParseSpec("x.toml", []byte(strings.Replace(fullSpec, `"pko-r" = { max = 25 }`, `"ghost" = { max = 25 }`, 1)), nil)

@@ -118,6 +118,16 @@ func WriteSpec(w io.Writer, s *Spec) error {
 		if p.SFC != "" {
 			tw.line("sfc = %s", tomlString(p.SFC))
 		}
+		if p.Through != nil {
+			tw.line("through = %s", tw.bound("process through", *p.Through))
+		}
+		if len(p.FeedRatio) > 0 {
+			parts := make([]string, len(p.FeedRatio))
+			for i, f := range p.FeedRatio {
+				parts[i] = tomlKey(f.Stock) + " = " + tw.float("feed_ratio "+f.Stock, f.Parts)
+			}
+			tw.line("feed_ratio = { %s }", strings.Join(parts, ", "))
+		}
 	}
 	if tw.err != nil {
 		return fmt.Errorf("writing spec %q: %w", s.Name, tw.err)

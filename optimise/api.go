@@ -30,6 +30,14 @@ type Options struct {
 	// limit gives Status NotProven.
 	MaxNodes int
 	MaxTime  time.Duration
+	// Progress, when set, is told how far long work has come, done of
+	// total (done never falls and ends at total when the work runs to its
+	// end; total may grow once, when the work learns its size): the steps
+	// of a sweep, or for the integer rules the share of branch and bound's
+	// search tree closed, in parts per 1000 (lp.Limits.Progress). It is
+	// called on the solving goroutine and must return quickly. Nothing in
+	// this package prints.
+	Progress func(done, total int)
 	// Model is the TAG model for predicted SFC (a [process] step with
 	// sfc = "predicted"); the zero value is sle's default, uncalibrated.
 	Model sle.Options

@@ -348,6 +348,14 @@ func (l *layout) withRules(m *model, linkCap func(j int) float64) *model {
 		out.colLo[c], out.colUp[c] = 0, 1
 		out.integer = append(out.integer, c)
 	}
+	// The rows' room at once: the dense matrix of thousands of stocks with
+	// their link rows runs to hundreds of MB, and growing it row by row
+	// copied it over and over.
+	rows := m.nRows + len(cand) + 1
+	if r.SmallestShare > 0 {
+		rows += len(cand)
+	}
+	out.a = make([]float64, 0, rows*out.nCols)
 	coef := make([]float64, out.nCols)
 	for i := 0; i < m.nRows; i++ {
 		copy(coef, m.row(i))

@@ -171,9 +171,19 @@ func (e *engine) solveMILP(m *model) (*solution, error) {
 	return out, nil
 }
 
-// withLimits sets the branch-and-bound limits of later MILP solves.
-func (e *engine) withLimits(nodes int, t time.Duration) {
-	e.limits = lp.Limits{MaxNodes: nodes, MaxTime: t}
+// withLimits sets the branch-and-bound limits of later MILP solves and
+// where they report their progress (nil: nowhere).
+func (e *engine) withLimits(nodes int, t time.Duration, progress func(done, total int)) {
+	e.limits = lp.Limits{MaxNodes: nodes, MaxTime: t, Progress: progress}
+}
+
+// stage maps the progress of part k (from 0) of n equal parts of some work
+// onto the whole; nil stays nil.
+func stage(p func(done, total int), k, n int) func(done, total int) {
+	if p == nil {
+		return nil
+	}
+	return func(done, total int) { p(k*total+done, n*total) }
 }
 
 // rangingOf prepares cost ranging on an optimal LP solution of m.

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strings"
 
 	"lipoplan/blend"
 	"lipoplan/catalogue"
@@ -23,6 +24,11 @@ type ProcessReport struct {
 	// SFC of the interesterified product alone (% solid by temperature), at
 	// the report temperatures; nil when the reactor is not used.
 	SFC map[float64]float64
+	// Through is the spec's bound on the share of the batch through the
+	// reactor (% of batch), nil when the optimiser chooses it; FeedRatio
+	// the spec's fixed feed (fractions by stock), nil when free.
+	Through   *catalogue.Bound
+	FeedRatio map[string]float64
 }
 
 // Tolerances and limits of the successive LP.
@@ -52,6 +58,13 @@ func solveProcess(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (
 // solveProcessIn is solveProcess on engine eng with stock profiles from pc
 // and working buffers from buf (nil: computed, allocated), as solveIn.
 func solveProcessIn(eng *engine, pc *profileCache, buf *scratch, cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result, error) {
+	return solveProcessDiag(eng, pc, buf, cat, spec, opt, true)
+}
+
+// solveProcessDiag is solveProcessIn; with diagnose set, a predicted-SFC
+// spec found impossible whose reactor demands may be the cause is solved
+// again without them (demandSearch).
+func solveProcessDiag(eng *engine, pc *profileCache, buf *scratch, cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options, diagnose bool) (*Result, error) {
 	predicted := spec.Process == nil || spec.Process.SFC != "measured"
 	base, lay, err := buildIn(cat, spec, pc, buf, predicted)
 	if err != nil {
@@ -63,7 +76,10 @@ func solveProcessIn(eng *engine, pc *profileCache, buf *scratch, cat *catalogue.
 	}
 	res := &Result{Engine: eng.name(), Currency: cat.Currency, Spec: spec.Name, Batch: spec.Batch}
 	pr := spec.Process
-	rep := &ProcessReport{Method: pr.Method, SFCModel: pm.mode}
+	rep := &ProcessReport{Method: pr.Method, SFCModel: pm.mode, Through: pm.through}
+	if pm.ratio != nil {
+		rep.FeedRatio = pr.FeedShares()
+	}
 	res.Process = rep
 
 	if pm.mode == "measured" {
@@ -77,6 +93,9 @@ func solveProcessIn(eng *engine, pc *profileCache, buf *scratch, cat *catalogue.
 			return nil, fmt.Errorf("optimise %s: the process programme is unbounded, which a blend with shares adding to 100 %% cannot be", specWhere(spec))
 		}
 		if sol.status != solOptimal {
+			if r, ok, err := pm.demandInfeasible(eng, res, pm.measuredLin()); ok || err != nil {
+				return r, err
+			}
 			return pm.infeasible(eng, res, base, "")
 		}
 		rep.Converged = true
@@ -97,6 +116,9 @@ func solveProcessIn(eng *engine, pc *profileCache, buf *scratch, cat *catalogue.
 		}
 		rep.Iterations, rep.Converged = 1, true
 		if sol.status != solOptimal {
+			if r, ok, err := pm.demandInfeasible(eng, res, pm.measuredLin()); ok || err != nil {
+				return r, err
+			}
 			return pm.infeasible(eng, res, base, "")
 		}
 		return pm.finish(res, m, sol, opt, wb, "[process] sfc = \"predicted\" with no SFC limit: the cheapest blend is found directly, and its SFC shown is the TAG model's for the whole blend.")
@@ -129,6 +151,14 @@ func solveProcessIn(eng *engine, pc *profileCache, buf *scratch, cat *catalogue.
 		}
 	}
 	if best == nil {
+		if r, ok, err := pm.demandInfeasible(eng, res, pm.freeLin()); ok || err != nil {
+			return r, err
+		}
+		if pm.demands() && diagnose {
+			if r, ok, err := pm.demandSearch(eng, res, cat, opt); ok || err != nil {
+				return r, err
+			}
+		}
 		why := ""
 		if linInfeasible {
 			why = "even the straight-line estimate of the predicted SFC admits no blend; "
@@ -334,15 +364,23 @@ func (pm *procModel) equalMix() *procPoint {
 }
 
 // withReactor is p scaled to (100 - f) % with f % of the batch fed to the
-// reactor in equal parts of the feed stocks: a start that tries the
-// reaction.
+// reactor in equal parts of the feed stocks (in the spec's feed ratio when
+// it fixes one; f moved into the spec's through bound): a start that tries
+// the reaction.
 func (pm *procModel) withReactor(p *procPoint, f float64) *procPoint {
+	if t := pm.through; t != nil {
+		f = math.Min(math.Max(f, t.Min), t.Max)
+	}
 	q := pm.newPoint()
 	for j, x := range p.x {
 		q.x[j] = x * (100 - f) / 100
 	}
 	for k, z := range p.z {
-		q.z[k] = z*(100-f)/100 + f/float64(len(p.z))
+		part := 1 / float64(len(p.z))
+		if pm.ratio != nil {
+			part = pm.ratio[k]
+		}
+		q.z[k] = z*(100-f)/100 + f*part
 	}
 	return q
 }
@@ -419,6 +457,13 @@ type procModel struct {
 	isFeed   []int     // feed index of each stock column, -1 when not fed
 	sfcRows  []int     // base rows that are SFC limits
 	sfcTemps []float64 // their temperatures
+	// The spec's demands on the reactor ([process] through, feed_ratio):
+	// through bounds Σ z (% of batch), nil when free; ratio[k] is feed
+	// stock k's fraction of the feed, nil when free. With free set the LP
+	// holds neither (for the diagnosis of an impossible demand).
+	through *catalogue.Bound
+	ratio   []float64
+	free    bool
 }
 
 // newProcModel checks the [process] step against the model (what build's
@@ -460,6 +505,16 @@ func newProcModel(base *model, lay *layout) (*procModel, error) {
 		}
 		pm.isFeed[j] = len(pm.feed)
 		pm.feed = append(pm.feed, j)
+	}
+	if pr.Through != nil {
+		b := *pr.Through
+		pm.through = &b
+	}
+	if shares := pr.FeedShares(); shares != nil {
+		pm.ratio = make([]float64, len(pm.feed))
+		for k, j := range pm.feed {
+			pm.ratio[k] = shares[lay.cols[j].stock.ID]
+		}
 	}
 	for i := 1; i < base.nRows; i++ {
 		key := lay.rows[i].key
@@ -622,7 +677,42 @@ func (pm *procModel) lp(lin *sfcLin, at *procPoint, delta float64) *model {
 		coef[j], coef[n+k] = 1, -1
 		m.addRow("direct."+b.colName[j], coef, 0, math.Inf(1))
 	}
+	if pm.free {
+		return m
+	}
+	if t := pm.through; t != nil {
+		clear(coef)
+		for k := range pm.feed {
+			coef[n+k] = 1
+		}
+		m.addRow(throughKey, coef, t.Min, t.Max)
+	}
+	// z_k - r_k·Σ z = 0 for every feed stock but the last (the last
+	// follows from the others)
+	for k := 0; k+1 < len(pm.ratio); k++ {
+		clear(coef)
+		for q := range pm.feed {
+			coef[n+q] = -pm.ratio[k]
+		}
+		coef[n+k] += 1
+		m.addRow("ratio."+b.colName[pm.feed[k]], coef, 0, 0)
+	}
 	return m
+}
+
+// throughKey is the row of the share of the batch through the reactor;
+// its limits are reported as "process.through.min" and ".max".
+const throughKey = "process.through"
+
+// throughRow is the report row of the through bound in an LP of pm.lp:
+// after the base rows and the K "direct" rows.
+func (pm *procModel) throughRow() (extraRow, bool) {
+	if pm.through == nil || pm.free {
+		return extraRow{}, false
+	}
+	return extraRow{at: pm.base.nRows + len(pm.feed), info: rowInfo{
+		key: throughKey, label: "reactor throughput", unit: " % of the batch", bound: *pm.through, scale: 1,
+	}}, true
 }
 
 // boxed reports whether a column of m is held by a trust-region bound
@@ -717,6 +807,162 @@ func reportTemps(spec *catalogue.Spec, opt Options) []float64 {
 	return blend.SpecTemps(spec)
 }
 
+// demands reports whether the spec makes demands on the reactor: a share
+// through it or a fixed feed.
+func (pm *procModel) demands() bool { return pm.through != nil || pm.ratio != nil }
+
+// demandInfeasible reports an impossible spec whose reactor demands are
+// the cause (ok true): the largest share of the batch that can pass
+// through the reactor under the limits of lin (every linear limit, and the
+// SFC rows as lin has them) and the feed ratio, against the spec's
+// minimum, or a feed ratio that the limits leave no blend for. It is not
+// the cause (ok false) when the spec is impossible without the demands
+// too, or when they are not what blocks it.
+func (pm *procModel) demandInfeasible(eng *engine, res *Result, lin *sfcLin) (*Result, bool, error) {
+	if !pm.demands() {
+		return nil, false, nil
+	}
+	spec := pm.lay.spec
+	solve := func(m *model) (*solution, error) {
+		s, err := eng.solveLP(m)
+		if err != nil {
+			return nil, fmt.Errorf("optimise %s: reactor demands: %w", specWhere(spec), err)
+		}
+		return s, nil
+	}
+	pm.free = true
+	s, err := solve(pm.lp(lin, nil, 0))
+	pm.free = false
+	if err != nil || s.status != solOptimal {
+		return nil, false, err // impossible without the demands: the plain diagnosis
+	}
+	// The most that can go through with the feed ratio: max Σ z.
+	save := pm.through
+	pm.through = nil
+	m := pm.lp(lin, nil, 0)
+	pm.through = save
+	clear(m.obj)
+	n := pm.lay.n()
+	for k := range pm.feed {
+		m.obj[n+k] = -1
+	}
+	if s, err = solve(m); err != nil {
+		return nil, false, err
+	}
+	res.Status = Infeasible
+	res.Process.Feed = nil
+	basis := "with the other limits"
+	if lin.free {
+		basis = "with the limits other than SFC"
+	}
+	if s.status != solOptimal {
+		res.Notes = append(res.Notes, fmt.Sprintf("the fixed feed_ratio of the reactor (%s) leaves no blend that meets the spec %s: change the parts or remove feed_ratio to let the blend choose the feed", pm.ratioWords(), basis))
+		return res, true, nil
+	}
+	most := -s.obj
+	t := pm.through
+	if t == nil || !t.HasMin() || most >= t.Min-1e-7 {
+		return nil, false, nil
+	}
+	with := ""
+	if pm.ratio != nil {
+		with = " and the feed held at " + pm.ratioWords()
+	}
+	res.Relaxation = []Relax{{Name: throughKey + ".min", By: t.Min - math.Max(most, 0)}}
+	res.Notes = append(res.Notes, fmt.Sprintf("the spec asks for at least %.2f %% of the batch through the reactor, but %s%s at most %.2f %% can go through; "+
+		"lower through min, or allow more of the feed stocks (what is on hand, their [use] caps, the limits they fill)", t.Min, basis, with, math.Max(most, 0)))
+	return res, true, nil
+}
+
+// demandSearch diagnoses a predicted-SFC spec that no blend was found for
+// when its reactor demands may be the cause (ok true when they are): the
+// spec is solved again without its through minimum (the feed ratio kept),
+// then without the feed ratio; when a blend is found, the largest
+// through minimum that still admits one is found by bisection between the
+// share that blend sends through the reactor and the spec's minimum, to
+// within demandTol % of the batch, and offered as the relaxation
+// process.through.min. Each trial is a search of its own (nil profile
+// cache and buffers: the caller's model stays intact).
+func (pm *procModel) demandSearch(eng *engine, res *Result, cat *catalogue.Catalogue, opt Options) (*Result, bool, error) {
+	spec := pm.lay.spec
+	try := func(through *catalogue.Bound, ratio bool) (*Result, error) {
+		s := spec.Clone()
+		s.Process.Through = through
+		if !ratio {
+			s.Process.FeedRatio = nil
+		}
+		return solveProcessDiag(eng, nil, nil, cat, s, opt, false)
+	}
+	t := pm.through
+	if t != nil && t.HasMin() && t.Min > 0 {
+		rest := *t
+		rest.Min = math.Inf(-1)
+		var loose *catalogue.Bound
+		if rest.HasMax() {
+			loose = &rest
+		}
+		r, err := try(loose, true)
+		if err != nil {
+			return nil, false, err
+		}
+		if r.Status == Optimal {
+			lo, hi := r.Process.Tonnes*100/spec.Batch, t.Min // feasible, infeasible
+			for hi-lo > demandTol {
+				mid := (lo + hi) / 2
+				b := *t
+				b.Min = mid
+				r, err := try(&b, true)
+				if err != nil {
+					return nil, false, err
+				}
+				if r.Status == Optimal {
+					lo = mid
+				} else {
+					hi = mid
+				}
+			}
+			with := ""
+			if pm.ratio != nil {
+				with = " with the feed held at " + pm.ratioWords()
+			}
+			res.Process.Feed = nil
+			res.Status = Infeasible
+			res.Relaxation = []Relax{{Name: throughKey + ".min", By: t.Min - lo}}
+			res.Notes = append(res.Notes, fmt.Sprintf("the spec asks for at least %.2f %% of the batch through the reactor%s, but then no blend's predicted SFC meets the limits; "+
+				"by trial, about %.1f %% can go through (to within %.1f %% of the batch): lower through min, or widen the SFC limits", t.Min, with, lo, demandTol))
+			return res, true, nil
+		}
+	}
+	if pm.ratio == nil {
+		return nil, false, nil
+	}
+	r, err := try(t, false)
+	if err != nil {
+		return nil, false, err
+	}
+	if r.Status != Optimal {
+		return nil, false, nil // impossible without the demands too
+	}
+	res.Process.Feed = nil
+	res.Status = Infeasible
+	res.Notes = append(res.Notes, fmt.Sprintf("with the reactor feed held at %s no blend's predicted SFC meets the limits, but with the feed left free one does (%.2f %s per tonne): change the parts or remove feed_ratio",
+		pm.ratioWords(), r.CostPerTonne, r.Currency))
+	return res, true, nil
+}
+
+// demandTol is the precision, % of batch, of the largest share through the
+// reactor that demandSearch reports.
+const demandTol = 0.5
+
+// ratioWords is the fixed feed in words, e.g. "palm-st-hard 60 % : pko 40 %".
+func (pm *procModel) ratioWords() string {
+	parts := make([]string, len(pm.feed))
+	for k, j := range pm.feed {
+		parts[k] = fmt.Sprintf("%s %.4g %%", pm.lay.cols[j].stock.ID, 100*pm.ratio[k])
+	}
+	return strings.Join(parts, " : ")
+}
+
 // infeasible reports an impossible process spec with the relaxation of the
 // plain model (no reactor, measured curves).
 func (pm *procModel) infeasible(eng *engine, res *Result, base *model, why string) (*Result, error) {
@@ -793,6 +1039,9 @@ func (pm *procModel) finish(res *Result, m *model, sol *solution, opt Options, w
 	// conserves the fatty-acid composition, so the product has the
 	// properties of the physical mix of all stocks used (the plain report).
 	adds := &reportAdds{cost: pm.cost * Z / 100}
+	if r, ok := pm.throughRow(); ok {
+		adds.rows = append(adds.rows, r)
+	}
 	if wb != nil {
 		rowSFC, err := wb.rows(p)
 		if err != nil {

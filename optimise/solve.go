@@ -7,6 +7,7 @@ import (
 
 	"lipoplan/blend"
 	"lipoplan/catalogue"
+	"lipoplan/optimise/lp"
 )
 
 // solve runs one Solve on an engine of its own, freed before it returns
@@ -39,7 +40,13 @@ func solveIn(eng *engine, pc *profileCache, buf *scratch, cat *catalogue.Catalog
 	if err != nil {
 		return nil, err
 	}
-	eng.withLimits(opt.MaxNodes, opt.MaxTime)
+	// Progress: the MILP, and with max_stocks its second MILP that prices
+	// the rule (or an elastic MILP when the rules cannot be met), each half.
+	parts := 1
+	if lay.rules.MaxStocks > 0 {
+		parts = 2
+	}
+	eng.withLimits(opt.MaxNodes, opt.MaxTime, stage(opt.Progress, 0, parts))
 	res := &Result{Engine: eng.name(), Currency: cat.Currency, Spec: spec.Name, Batch: spec.Batch}
 	if spec.Process != nil {
 		res.Notes = append(res.Notes, "the spec's [process] step (interesterification) is not modelled by solve: "+
@@ -53,6 +60,10 @@ func solveIn(eng *engine, pc *profileCache, buf *scratch, cat *catalogue.Catalog
 		s, err := solveRules(eng, base, lay, lay.rules)
 		if err != nil {
 			return nil, err
+		}
+		eng.limits.Progress = nil
+		if parts == 2 {
+			eng.limits.Progress = stage(opt.Progress, 1, parts)
 		}
 		switch s.status {
 		case solOptimal:
@@ -90,6 +101,10 @@ func solveIn(eng *engine, pc *profileCache, buf *scratch, cat *catalogue.Catalog
 		if err := lay.priceMaxStocks(eng, base, res); err != nil {
 			return nil, err
 		}
+	}
+	if opt.Progress != nil && lay.rules.Active() && res.Status == Optimal {
+		// complete, also when max_stocks needed no pricing MILP
+		opt.Progress(parts*lp.ProgressTotal, parts*lp.ProgressTotal)
 	}
 	return res, nil
 }
@@ -159,6 +174,16 @@ type reportAdds struct {
 	// (ok false: the activity), e.g. the predicted SFC of the whole blend
 	value func(i int) (float64, bool)
 	sfc   map[float64]float64 // the blend's SFC instead of the measured-linear one
+	// rows are limits of the model beyond the layout's rows, reported
+	// after them (the share through a reactor)
+	rows []extraRow
+}
+
+// extraRow is a limit row of a model beyond the layout's rows: its index
+// in the model and what to call it.
+type extraRow struct {
+	at   int
+	info rowInfo
 }
 
 // report fills res from an optimal LP solution of m, whose first columns
@@ -173,7 +198,7 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 	}
 	n := l.n()
 	batch := l.spec.Batch
-	nl := 2 + 2*len(l.rows)
+	nl := 2 + 2*(len(l.rows)+len(adds.rows))
 	for _, c := range l.cols {
 		if c.use.HasMin() {
 			nl++
@@ -226,8 +251,15 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 	w := phrasing{cur: l.cat.Currency, tiny: 1e-7 * math.Max(1, cost)}
 	tx := l.buf.texts(nl)
 	add := func(lr LimitReport) { res.Limits = append(res.Limits, lr) }
-	for i := 1; i < len(l.rows); i++ { // row 0 is the sum
-		ri := &l.rows[i]
+	for k := 1; k < len(l.rows)+len(adds.rows); k++ { // row 0 is the sum
+		i := k
+		var ri *rowInfo
+		if k < len(l.rows) {
+			ri = &l.rows[k]
+		} else {
+			e := &adds.rows[k-len(l.rows)]
+			i, ri = e.at, &e.info
+		}
 		v, y := sol.act[i], sol.y[i]
 		shown := v
 		if adds.value != nil {

@@ -113,8 +113,10 @@ func TestSweepParametricAgainstSolves(t *testing.T) {
 		for i, p := range got.Points {
 			prices[i] = p.Value
 		}
-		ref := &SweepResult{Tolerance: got.Tolerance}
-		require.NoError(t, sweepBySolves(ref, cat, spec, id, prices, Options{}))
+		ps := PriceSweep{Stocks: []string{id}, From: from, To: to, Steps: 11}
+		ref, err := newSweep(cat, ps)
+		require.NoError(t, err)
+		require.NoError(t, sweepBySolves(ref, cat, spec, ps, prices, Options{}, nil))
 		for _, want := range ref.Breakpoints {
 			found := false
 			for _, bp := range got.Breakpoints {

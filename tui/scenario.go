@@ -305,8 +305,8 @@ func (s *Scenario) WithNewRow(text string) (*Scenario, string, error) {
 		if err != nil {
 			return nil, "", err
 		}
-		if t < -20 || t > 80 {
-			return nil, "", fmt.Errorf("SFC temperature %g °C is outside -20..80 °C", t)
+		if t < catalogue.MinTemp || t > catalogue.MaxTemp {
+			return nil, "", fmt.Errorf("SFC temperature %g °C is outside %g..%g °C, the range the spec files take", t, catalogue.MinTemp, catalogue.MaxTemp)
 		}
 		for _, l := range sp.SFC {
 			if l.Temp == t {
@@ -421,10 +421,9 @@ func (s *Scenario) WithMatch(id string, tol float64) (*Scenario, error) {
 	out := s.Clone()
 	spec.Name = s.Spec.Name
 	spec.Batch = s.Spec.Batch
-	spec.Process = s.Spec.Process
-	if spec.Process != nil {
-		p := *s.Spec.Process
-		spec.Process = &p
+	spec.Process = nil
+	if s.Spec.Process != nil {
+		spec.Process = s.Spec.Process.Clone()
 	}
 	out.Spec = spec
 	return out, nil

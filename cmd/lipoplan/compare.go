@@ -234,24 +234,13 @@ func writeCompareText(w io.Writer, cols []compared) {
 		}
 		return fmt.Sprintf("%+.2f", c.res.CostPerTonne-cols[0].res.CostPerTonne)
 	})
-	fmt.Fprintln(w, "  blend, % of batch")
-	var blends [][]optimise.Line
-	for _, c := range cols {
-		blends = append(blends, c.res.Blend)
+	res := make([]*optimise.Result, len(cols))
+	for i, c := range cols {
+		res[i] = c.res
 	}
-	for _, id := range tui.StocksByShare(blends...) {
-		row("    "+id, found(func(c compared) string {
-			for _, l := range c.res.Blend {
-				if l.Stock == id && l.Pct > 1e-9 {
-					return fmt.Sprintf("%.2f", l.Pct)
-				}
-			}
-			return "."
-		}))
-	}
-	row("IV", found(func(c compared) string { return fmt.Sprintf("%.1f", c.res.Properties.IV) }))
-	row("SAFA, %", found(func(c compared) string { return fmt.Sprintf("%.1f", c.res.Properties.SAFA) }))
-	row("trans, %", found(func(c compared) string { return fmt.Sprintf("%.2f", c.res.Properties.Trans) }))
+	blendRows(w, func(label string, cell func(i int) string) {
+		row(label, func(i int, _ compared) string { return cell(i) })
+	}, res)
 	for _, t := range limitTemps(cols) {
 		row("SFC "+catalogue.TempKey(t)+" C, % solid", found(func(c compared) string {
 			if v, ok := c.res.Properties.SFC[t]; ok {
@@ -285,6 +274,39 @@ func writeCompareText(w io.Writer, cols []compared) {
 	}
 	fmt.Fprintln(w)
 	fmt.Fprintln(w, cautionLine)
+}
+
+// blendRows prints the rows side-by-side reports share, one column per
+// result: the blend (every stock any column uses, the largest shares
+// first; "." where a column does not use it), IV, SAFA and trans; "-" in a
+// column without a blend. row prints one labelled row of cells.
+func blendRows(w io.Writer, row func(label string, cell func(i int) string), res []*optimise.Result) {
+	found := func(f func(r *optimise.Result) string) func(i int) string {
+		return func(i int) string {
+			if len(res[i].Blend) == 0 {
+				return "-"
+			}
+			return f(res[i])
+		}
+	}
+	fmt.Fprintln(w, "  blend, % of batch")
+	blends := make([][]optimise.Line, len(res))
+	for i, r := range res {
+		blends[i] = r.Blend
+	}
+	for _, id := range tui.StocksByShare(blends...) {
+		row("    "+id, found(func(r *optimise.Result) string {
+			for _, l := range r.Blend {
+				if l.Stock == id && l.Pct > 1e-9 {
+					return fmt.Sprintf("%.2f", l.Pct)
+				}
+			}
+			return "."
+		}))
+	}
+	row("IV", found(func(r *optimise.Result) string { return fmt.Sprintf("%.1f", r.Properties.IV) }))
+	row("SAFA, %", found(func(r *optimise.Result) string { return fmt.Sprintf("%.1f", r.Properties.SAFA) }))
+	row("trans, %", found(func(r *optimise.Result) string { return fmt.Sprintf("%.2f", r.Properties.Trans) }))
 }
 
 // savedWords is a saved result in a few words.

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"flag"
 	"fmt"
 	"os"
 	"path/filepath"
@@ -13,13 +14,23 @@ import (
 )
 
 func (a *app) demo(args []string) error {
-	fs := a.newFlags("demo", "[--write DIR] [--stocks-table]",
-		"Solve the embedded demo scenario (an invented plant and its stocks) and print the report.\n"+
+	fs := a.newFlags("demo", "[--write DIR] [--no-stocks-table]",
+		"Solve the embedded demo scenario (an invented plant and its stocks) and print the report, after\n"+
+			"the property table of the demo stocks (--no-stocks-table, or --stocks-table=false, leaves it out).\n"+
 			"--write saves the demo stock catalogue and specs as TOML files to start your own.")
 	write := fs.String("write", "", "save the demo files into this folder instead of solving")
-	table := fs.Bool("stocks-table", true, "print the property table of the demo stocks first")
+	table := fs.Bool("stocks-table", true, "print the property table of the demo stocks first (the default; --stocks-table=false leaves it out)")
+	noTable := fs.Bool("no-stocks-table", false, "leave out the property table of the demo stocks")
 	if err := a.parse(fs, args); err != nil {
 		return err
+	}
+	if *noTable {
+		asked := false
+		fs.Visit(func(f *flag.Flag) { asked = asked || (f.Name == "stocks-table" && *table) })
+		if asked {
+			return catalogue.Badf("--stocks-table and --no-stocks-table contradict each other; give one of them")
+		}
+		*table = false
 	}
 	if *write != "" {
 		return a.writeDemo(*write)

@@ -230,6 +230,32 @@ func (in *inputs) load(a *app) (*catalogue.Catalogue, *catalogue.Spec, error) {
 
 // files are the input files named on the command line, which no output of
 // the same run may overwrite.
+// loadWithTemps is load and the report temperatures of a --temps flag
+// (temps; "" gives the defaults plus the spec's, blend.SpecTemps).
+func (in *inputs) loadWithTemps(a *app, temps string) (*catalogue.Catalogue, *catalogue.Spec, []float64, error) {
+	cat, spec, err := in.load(a)
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	ts, err := parseTemps(temps)
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	if ts == nil {
+		ts = blend.SpecTemps(spec)
+	}
+	return cat, spec, ts, nil
+}
+
+// scenarioPath is the --scenario file, "" when none was given or the
+// command takes none.
+func (in *inputs) scenarioPath() string {
+	if in.scenario == nil {
+		return ""
+	}
+	return *in.scenario
+}
+
 func (in *inputs) files() []string {
 	out := []string{*in.stocks}
 	if in.spec != nil {

@@ -10,6 +10,7 @@ import (
 	"os"
 	"sort"
 	"strings"
+	"time"
 
 	"lipoplan/catalogue"
 )
@@ -32,6 +33,10 @@ type app struct {
 	stdout io.Writer
 	stderr io.Writer
 	color  bool // ANSI colour allowed (a terminal and NO_COLOR unset)
+	// stderrTerm: standard error is a terminal, so long work may draw a
+	// progress bar there (progress.go); clock is its time (nil: time.Now).
+	stderrTerm bool
+	clock      func() time.Time
 }
 
 // command is one subcommand.
@@ -55,13 +60,14 @@ func commands() []command {
 		{"calibrate", "fit the TAG model's SFC to the catalogue's measured curves", (*app).calibrate},
 		{"replace", "cheapest trans-free blend that melts like a fat you use now", (*app).replace},
 		{"compare", "solve saved scenarios and set them side by side", (*app).compare},
+		{"routes", "physical blend, chemical and enzymatic interesterification side by side", (*app).routes},
 		// further commands add their line here
 	}
 	sort.SliceStable(cs, func(i, j int) bool { return order(cs[i].name) < order(cs[j].name) })
 	return cs
 }
 
-var commandOrder = []string{"demo", "check", "mix", "tags", "solve", "replace", "plan", "sweep", "compare", "calibrate", "explore", "serve"}
+var commandOrder = []string{"demo", "check", "mix", "tags", "solve", "replace", "plan", "sweep", "compare", "routes", "calibrate", "explore", "serve"}
 
 func order(name string) int {
 	for i, n := range commandOrder {
@@ -73,7 +79,7 @@ func order(name string) int {
 }
 
 func main() {
-	a := &app{stdout: os.Stdout, stderr: os.Stderr, color: colorAllowed(os.Stdout)}
+	a := &app{stdout: os.Stdout, stderr: os.Stderr, color: colorAllowed(os.Stdout), stderrTerm: isTerminal(os.Stderr)}
 	os.Exit(a.main(os.Args[1:]))
 }
 
@@ -153,9 +159,5 @@ func colorAllowed(f *os.File) bool {
 	if _, ok := os.LookupEnv("NO_COLOR"); ok {
 		return false
 	}
-	st, err := f.Stat()
-	if err != nil {
-		return false
-	}
-	return st.Mode()&os.ModeCharDevice != 0
+	return isTerminal(f)
 }

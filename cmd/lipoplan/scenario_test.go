@@ -2,6 +2,8 @@ package main
 
 import (
 	"bytes"
+	"crypto/sha256"
+	"encoding/hex"
 	"encoding/json"
 	"math"
 	"os"
@@ -84,9 +86,19 @@ func TestScenarioFlagSameAsFiles(t *testing.T) {
 	assert.InDelta(t, solveScenario(t, sc).CostPerTonne, got.Cost, 1e-4)
 	_, text, _ := run(t, "solve", "--scenario", path)
 	assert.Contains(t, text, "Left out by the spec: palm-st-hard")
+	// a sheet of a scenario run names the scenario file as its input, with
+	// its SHA-256 (FIPS 180-4, by crypto/sha256)
+	sheet := filepath.Join(dir, "sheet.html")
+	code, _, errs := run(t, "solve", "--scenario", path, "--sheet", sheet)
+	require.Equal(t, 0, code, errs)
+	sum := sha256.Sum256(readBytes(t, path))
+	page := string(readBytes(t, sheet))
+	assert.Contains(t, page, "scenario (stocks and spec)")
+	assert.Contains(t, page, hex.EncodeToString(sum[:]))
+	assert.NotContains(t, page, "embedded demo data", "the scenario, not the demo files, is the input")
 
 	// one set of inputs a run; the scenario is an input no output may overwrite
-	code, _, errs := run(t, "solve", "--scenario", path, "--stocks", stocks)
+	code, _, errs = run(t, "solve", "--scenario", path, "--stocks", stocks)
 	assert.Equal(t, 2, code)
 	assert.Contains(t, errs, "either --scenario or --stocks/--spec")
 	code, _, errs = run(t, "sweep", "--price", "palm=900:1300:5", "--scenario", path, "--spec", specPath)

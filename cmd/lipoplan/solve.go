@@ -10,20 +10,20 @@ import (
 	"strings"
 	"time"
 
-	"lipoplan/blend"
 	"lipoplan/blend/sle"
 	"lipoplan/catalogue"
 	"lipoplan/optimise"
 )
 
 func (a *app) solve(args []string) error {
-	fs := a.newFlags("solve", `[--stocks F --spec F | --scenario F] [--format text|json|csv] [--mps FILE] [--svg FILE] [--temps "5,10,37"]`,
+	fs := a.newFlags("solve", `[--stocks F --spec F | --scenario F] [--format text|json|csv] [--mps FILE] [--svg FILE] [--sheet FILE] [--temps "5,10,37"]`,
 		"Cheapest blend of the stocks that meets the spec: a linear programme (lipoplan's own simplex; integer\n"+
 			"rules max_stocks and smallest_share by branch and bound), with the cost of every binding limit, price ranging per stock\n"+
 			"and, when the spec cannot be met, the smallest relaxation that would make it feasible (exit 3).")
 	in := a.inputFlags(fs, demoSpec, "product spec TOML (default: the embedded demo laminating spec)", "text", "json", "csv").takeScenario(fs)
 	mps := fs.String("mps", "", "also write the model to this `file` in free MPS format (- = standard output, the report then goes to standard error)")
 	svg := fs.String("svg", "", "also draw the blend's SFC against the spec's bands into this SVG `file` (- = standard output)")
+	sheet := fs.String("sheet", "", "also write a printable blend sheet (HTML, A4) of the solved blend into this `file` (- = standard output)")
 	temps := fs.String("temps", "", `SFC temperatures to report, deg C (default 10,15,...,45 plus the spec's)`)
 	maxNodes := fs.Int("max-nodes", 100000, "integer rules: branch and bound solves at most this many LPs")
 	maxTime := fs.Duration("max-time", 60*time.Second, "integer rules: branch and bound runs at most this `duration`")
@@ -42,21 +42,14 @@ func (a *app) solve(args []string) error {
 	if err != nil {
 		return err
 	}
-	mpsOut, svgOut := output{"--mps", *mps}, output{"--svg", *svg}
-	report, err := a.reportTo(mpsOut, svgOut)
+	mpsOut, svgOut, sheetOut := output{"--mps", *mps}, output{"--svg", *svg}, output{"--sheet", *sheet}
+	report, err := a.reportTo(mpsOut, svgOut, sheetOut)
 	if err != nil {
 		return err
 	}
-	cat, spec, err := in.load(a)
+	cat, spec, ts, err := in.loadWithTemps(a, *temps)
 	if err != nil {
 		return err
-	}
-	ts, err := parseTemps(*temps)
-	if err != nil {
-		return err
-	}
-	if ts == nil {
-		ts = blend.SpecTemps(spec)
 	}
 	if *mps != "" {
 		lp, err := optimise.MPS(cat, spec)
@@ -67,12 +60,19 @@ func (a *app) solve(args []string) error {
 			return err
 		}
 	}
-	res, err := optimise.Solve(cat, spec, optimise.Options{Temps: ts, Model: model, MaxNodes: *maxNodes, MaxTime: *maxTime})
+	bar := a.progress("branch and bound")
+	res, err := optimise.Solve(cat, spec, optimise.Options{Temps: ts, Model: model, MaxNodes: *maxNodes, MaxTime: *maxTime, Progress: bar.callback()})
+	bar.finish()
 	if err != nil {
 		return err
 	}
 	if *svg != "" && res.Status == optimise.Optimal {
 		if err := a.write(svgOut, sfcSVG(res, spec), in.files()...); err != nil {
+			return err
+		}
+	}
+	if *sheet != "" && len(res.Blend) > 0 {
+		if err := a.writeSheet(sheetOut, res, spec, cat, ts, model, in, *calPath); err != nil {
 			return err
 		}
 	}
@@ -408,8 +408,12 @@ func writeDiagnosis(w io.Writer, r *optimise.Result, spec *catalogue.Spec) {
 		return
 	}
 	fmt.Fprintln(w)
-	fmt.Fprintln(w, "Smallest change that would make it feasible (elastic programme; each move is weighed against")
-	fmt.Fprintln(w, "the spread of that quantity over the stocks, so IV units and % points compare fairly):")
+	if len(r.Relaxation) == 1 && r.Relaxation[0].Name == "process.through.min" {
+		fmt.Fprintln(w, "Change to the reactor demand that would make it feasible (see the note):")
+	} else {
+		fmt.Fprintln(w, "Smallest change that would make it feasible (elastic programme; each move is weighed against")
+		fmt.Fprintln(w, "the spread of that quantity over the stocks, so IV units and % points compare fairly):")
+	}
 	if spec.Rules.Active() {
 		fmt.Fprintln(w, "(the integer rules under [rules] are kept as written)")
 	}
@@ -460,6 +464,12 @@ func boundOf(spec *catalogue.Spec, name string) (float64, bool) {
 		}
 		return 0, false
 	}
+	if key == "process.through" {
+		if spec.Process == nil || spec.Process.Through == nil {
+			return 0, false
+		}
+		return pick(*spec.Process.Through)
+	}
 	if t, ok := strings.CutPrefix(key, "sfc."); ok {
 		for _, l := range spec.SFC {
 			if catalogue.TempKey(l.Temp) == t {
@@ -494,26 +504,64 @@ func relaxWords(x optimise.Relax) string {
 func writeReactor(w io.Writer, r *optimise.Result, temps []float64) {
 	p := r.Process
 	if len(p.Feed) == 0 {
+		if r.Status != optimise.Optimal && r.Status != optimise.NotProven {
+			return // the diagnosis says why
+		}
 		fmt.Fprintf(w, "Reactor (%s interesterification): not used, nothing goes through it; blending the stocks as they are is cheaper.\n\n", p.Method)
 		return
 	}
 	fmt.Fprintf(w, "Reactor (%s interesterification, SFC of the reacted fat %s)\n", p.Method, p.SFCModel)
+	if d := demandWords(p); d != "" {
+		fmt.Fprintf(w, "  the spec asks for %s\n", d)
+	}
 	for _, l := range p.Feed {
 		fmt.Fprintf(w, "  %-14s %8.2f %% of batch %9.3f t\n", l.Stock, l.Pct, l.Tonnes)
 	}
 	fmt.Fprintf(w, "  %.3f t processed per batch, processing %s per batch", p.Tonnes, money(p.Cost, r.Currency))
 	if p.SFCModel == "predicted" {
-		state := "converged"
+		state := "settled"
 		if !p.Converged {
-			state = "stopped at its iteration cap; treat the answer as approximate"
+			state = "stopped at the cap before it settled; treat the answer as approximate"
 		}
-		fmt.Fprintf(w, "; successive LP: %d LP solves, %s", p.Iterations, state)
+		fmt.Fprintf(w, "; %d trial blends, %s", p.Iterations, state)
 	}
 	fmt.Fprintln(w)
 	if len(p.SFC) > 0 {
 		writeSFCRow(w, "  SFC of the reacted fat alone", p.SFC, temps)
 	}
 	fmt.Fprintln(w)
+}
+
+// demandWords is what the spec demands of the reactor, e.g. "at least
+// 30.00 % of the batch through it, the feed as palm-st-hard 60 % : pko 40 %";
+// "" when it demands nothing.
+func demandWords(p *optimise.ProcessReport) string {
+	var parts []string
+	if t := p.Through; t != nil {
+		switch {
+		case t.HasMin() && t.HasMax():
+			parts = append(parts, fmt.Sprintf("%.2f to %.2f %% of the batch through it", t.Min, t.Max))
+		case t.HasMin():
+			parts = append(parts, fmt.Sprintf("at least %.2f %% of the batch through it", t.Min))
+		case t.HasMax():
+			parts = append(parts, fmt.Sprintf("at most %.2f %% of the batch through it", t.Max))
+		}
+	}
+	if len(p.FeedRatio) > 0 {
+		ids := make([]string, 0, len(p.FeedRatio))
+		for id := range p.FeedRatio {
+			ids = append(ids, id)
+		}
+		sort.Slice(ids, func(a, b int) bool {
+			return p.FeedRatio[ids[a]] > p.FeedRatio[ids[b]] || p.FeedRatio[ids[a]] == p.FeedRatio[ids[b]] && ids[a] < ids[b]
+		})
+		feed := make([]string, len(ids))
+		for i, id := range ids {
+			feed[i] = fmt.Sprintf("%s %.4g %%", id, 100*p.FeedRatio[id])
+		}
+		parts = append(parts, "the feed as "+strings.Join(feed, " : "))
+	}
+	return strings.Join(parts, ", ")
 }
 
 // processJSON is the reactor step in JSON (additive to the README's JSON output).
@@ -526,8 +574,26 @@ func processJSON(p *optimise.ProcessReport) map[string]any {
 	for t, v := range p.SFC {
 		sfc[catalogue.TempKey(t)] = round(v, 3)
 	}
-	return map[string]any{"method": p.Method, "sfc_model": p.SFCModel, "feed": feed, "tonnes": round(p.Tonnes, 6),
-		"cost": round(p.Cost, 4), "iterations": p.Iterations, "converged": p.Converged, "sfc": sfc}
+	out := map[string]any{"method": p.Method, "sfc_model": p.SFCModel, "feed": feed, "tonnes": round(p.Tonnes, 6),
+		"cost": round(p.Cost, 4), "iterations": p.Iterations, "converged": p.Converged, "sfc": sfc, "through": nil, "feed_ratio": nil}
+	if t := p.Through; t != nil {
+		b := map[string]any{}
+		if t.HasMin() {
+			b["min"] = round(t.Min, 6)
+		}
+		if t.HasMax() {
+			b["max"] = round(t.Max, 6)
+		}
+		out["through"] = b
+	}
+	if len(p.FeedRatio) > 0 {
+		fr := map[string]float64{}
+		for id, f := range p.FeedRatio {
+			fr[id] = round(100*f, 6)
+		}
+		out["feed_ratio"] = fr
+	}
+	return out
 }
 
 // wrapText folds s at spaces to lines of at most width runes, indenting

@@ -15,27 +15,7 @@ import (
 // limits as bands (min to max at each limited temperature). Plain SVG 1.1.
 func sfcSVG(r *optimise.Result, spec *catalogue.Spec) []byte {
 	const W, H, L, R, T, B = 640.0, 400.0, 60.0, 20.0, 50.0, 50.0
-	var temps []float64
-	for t := range r.Properties.SFC {
-		temps = append(temps, t)
-	}
-	sort.Float64s(temps)
-	x0, x1 := 10.0, 45.0
-	if len(temps) > 0 {
-		x0, x1 = math.Min(x0, temps[0]), math.Max(x1, temps[len(temps)-1])
-	}
-	top := 10.0
-	for _, t := range temps {
-		top = math.Max(top, r.Properties.SFC[t])
-	}
-	for _, l := range spec.SFC {
-		if l.HasMax() {
-			top = math.Max(top, l.Max)
-		} else if l.HasMin() {
-			top = math.Max(top, l.Min)
-		}
-	}
-	top = math.Min(100, math.Ceil(top/10)*10)
+	temps, x0, x1, top := sfcAxes(r.Properties.SFC, spec)
 	px := func(t float64) float64 { return L + (t-x0)/(x1-x0)*(W-L-R) }
 	py := func(v float64) float64 { return H - B - v/top*(H-T-B) }
 	var b bytes.Buffer
@@ -55,13 +35,7 @@ func sfcSVG(r *optimise.Result, spec *catalogue.Spec) []byte {
 	fmt.Fprintf(&b, `<text x="%g" y="%g" text-anchor="middle">temperature, °C</text>`+"\n", (L+W-R)/2, H-12)
 	fmt.Fprintf(&b, `<text x="16" y="%g" transform="rotate(-90 16 %g)" text-anchor="middle">solid fat, %%</text>`+"\n", (T+H-B)/2, (T+H-B)/2)
 	for _, l := range spec.SFC {
-		lo, hi := 0.0, top
-		if l.HasMin() {
-			lo = l.Min
-		}
-		if l.HasMax() {
-			hi = math.Min(l.Max, top)
-		}
+		lo, hi := bandEnds(l, top)
 		fmt.Fprintf(&b, `<rect x="%.1f" y="%.1f" width="10" height="%.1f" fill="#5c7a8c" fill-opacity="0.35"><title>SFC %s °C: %s</title></rect>`+"\n",
 			px(l.Temp)-5, py(hi), py(lo)-py(hi), catalogue.TempKey(l.Temp), bandWords(l))
 	}
@@ -76,6 +50,46 @@ func sfcSVG(r *optimise.Result, spec *catalogue.Spec) []byte {
 	}
 	b.WriteString("</svg>\n")
 	return b.Bytes()
+}
+
+// sfcAxes are the axes of an SFC chart: the curve's temperatures in order,
+// the temperature range (10 to 45 °C, wider when the curve is) and the top
+// of the % solid axis (the next 10 above the curve and the spec's bands, at
+// most 100).
+func sfcAxes(sfc map[float64]float64, spec *catalogue.Spec) (temps []float64, x0, x1, top float64) {
+	for t := range sfc {
+		temps = append(temps, t)
+	}
+	sort.Float64s(temps)
+	x0, x1 = 10.0, 45.0
+	if len(temps) > 0 {
+		x0, x1 = math.Min(x0, temps[0]), math.Max(x1, temps[len(temps)-1])
+	}
+	top = 10.0
+	for _, t := range temps {
+		top = math.Max(top, sfc[t])
+	}
+	for _, l := range spec.SFC {
+		if l.HasMax() {
+			top = math.Max(top, l.Max)
+		} else if l.HasMin() {
+			top = math.Max(top, l.Min)
+		}
+	}
+	return temps, x0, x1, math.Min(100, math.Ceil(top/10)*10)
+}
+
+// bandEnds are the ends of an SFC limit's band on a chart whose axis ends
+// at top: from its minimum (or 0) to its maximum (or top).
+func bandEnds(l catalogue.SFCLimit, top float64) (lo, hi float64) {
+	lo, hi = 0, top
+	if l.HasMin() {
+		lo = l.Min
+	}
+	if l.HasMax() {
+		hi = math.Min(l.Max, top)
+	}
+	return lo, hi
 }
 
 func bandWords(l catalogue.SFCLimit) string {

@@ -167,7 +167,14 @@ func (c *CBC) SolveMIP(p *Problem, integer []int, lim Limits) (*MIPSolution, err
 	mp.SetMaxSeconds(lim.MaxTime.Seconds())
 	mp.SetMaxNodes(lim.MaxNodes)
 	mp.SetParameter("heuristicsOnOff", "off")
-	switch st := mp.Solve(); st {
+	if lim.Progress != nil {
+		lim.Progress(0, ProgressTotal)
+	}
+	st := mp.Solve()
+	if lim.Progress != nil && (st == coin.Optimal || st == coin.Infeasible) {
+		lim.Progress(ProgressTotal, ProgressTotal)
+	}
+	switch st {
 	case coin.Infeasible:
 		return &MIPSolution{Status: Infeasible, Bound: math.Inf(1), Nodes: mp.Nodes()}, nil
 	case coin.Unbounded:

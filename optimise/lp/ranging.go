@@ -180,6 +180,62 @@ func (g *Ranging) CostRange(j int) (lo, hi float64) {
 	return min(lo, 0), max(hi, 0)
 }
 
+// CostDirectionRange is the interval [lo, hi] of steps t along a direction
+// of cost change, Obj + t·dir (len(dir) = Cols), over which the basis stays
+// optimal (±Inf when unlimited): the parametric objective function of Gass
+// & Saaty (Naval Res. Logist. Q. 2, 1955, 39), on the final tableau. With
+// y = B⁻ᵀ dir_B, every nonbasic variable k's reduced cost moves by t·δ_k,
+// δ_k = dir_k - yᵀa_k (a_k its column of [A -I]; a row logical has no cost),
+// and must keep its sign. CostRange(j) is the case dir = e_j.
+func (g *Ranging) CostDirectionRange(dir []float64) (lo, hi float64) {
+	const eps = 1e-9
+	lo, hi = math.Inf(-1), math.Inf(1)
+	p := g.p
+	clear(g.w)
+	for k, st := range g.sol.Basis {
+		if st == Basic && k < p.Cols {
+			g.w[g.b.pos[k]] = dir[k]
+		}
+	}
+	g.b.f.btran(g.w, g.rho)
+	for k, st := range g.sol.Basis {
+		if st == Basic || st == Fixed {
+			continue
+		}
+		var delta float64
+		if k >= p.Cols {
+			delta = g.rho[k-p.Cols]
+		} else {
+			delta = dir[k]
+			for q := p.Start[k]; q < p.Start[k+1]; q++ {
+				delta -= g.rho[p.Index[q]] * p.Value[q]
+			}
+		}
+		if math.Abs(delta) <= eps {
+			continue
+		}
+		ratio := -g.reduced(k) / delta
+		switch st {
+		case AtLower: // need d_k + tδ >= 0
+			if delta < 0 {
+				hi = min(hi, ratio)
+			} else {
+				lo = max(lo, ratio)
+			}
+		case AtUpper: // need d_k + tδ <= 0
+			if delta > 0 {
+				hi = min(hi, ratio)
+			} else {
+				lo = max(lo, ratio)
+			}
+		case Free: // need d_k + tδ = 0
+			lo, hi = max(lo, 0), min(hi, 0)
+		}
+	}
+	// As in CostRange: never exclude the current costs themselves.
+	return min(lo, 0), max(hi, 0)
+}
+
 // RowBoundRange is the interval of values of row i's lower bound (upper
 // false) or upper bound (upper true) over which the basis stays optimal,
 // so that the row's dual Y[i] prices every change within it. When the
