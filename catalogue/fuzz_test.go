@@ -81,7 +81,7 @@ func (f *fuzzBytes) value() float64 {
 // FuzzPatch applies random edits of the kinds the workspace makes (prices,
 // amounts on hand, limit sides set and cleared, limits, SFC temperatures
 // and [use] bounds added and dropped, stocks left out, rules, the batch, the
-// reactor's cost) to the demo files and checks the in-place edit: it is
+// reactor's cost and share through it) to the demo files and checks the in-place edit: it is
 // made in place, reads back (ParseStocks, ParseSpec) to exactly the edited
 // values, keeps every comment, and leaves every line but one per changed
 // value byte for byte. Edits the workspace would refuse (Catalogue.Check,
@@ -155,8 +155,14 @@ func FuzzPatch(f *testing.F) {
 				s.Rules = Rules{MaxStocks: r.next() % 6, SmallestShare: float64(r.next() % 8)}
 			case 11:
 				s.Batch = 1 + r.value()
-				if s.Process != nil {
-					s.Process.Cost = 10 + r.value()
+				if p := s.Process; p != nil {
+					p.Cost = 10 + r.value()
+					switch r.next() % 3 {
+					case 0:
+						p.Through = nil
+					case 1: // the reactor made to take part
+						p.Through = &Bound{Min: 1 + r.value()/2, Max: math.Inf(1)}
+					}
 				}
 			}
 			s.SortLimits()

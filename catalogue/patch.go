@@ -90,12 +90,12 @@ func PatchStocks(name string, orig []byte, cat *Catalogue) (Patch, error) {
 		full:   full.Bytes(),
 		want:   stockLeaves(cat),
 		what:   "a stock catalogue",
-		read: func(data []byte) ([]leaf, error) {
-			c, ps := ParseStocks(name, data)
+		read: func(data []byte) ([]leaf, toml.MetaData, error) {
+			c, ps, md := parseStocks(name, data)
 			if c == nil {
-				return nil, ps.Err()
+				return nil, md, ps.Err()
 			}
-			return stockLeaves(c), nil
+			return stockLeaves(c), md, nil
 		},
 	}
 	job.same = func(old []leaf) string { return sameStockList(old, job.want) }
@@ -116,12 +116,12 @@ func PatchSpec(name string, orig []byte, spec *Spec, cat *Catalogue) (Patch, err
 		full:   full.Bytes(),
 		want:   specLeaves(spec),
 		what:   "a spec",
-		read: func(data []byte) ([]leaf, error) {
-			s, ps := ParseSpec(name, data, nil)
+		read: func(data []byte) ([]leaf, toml.MetaData, error) {
+			s, ps, md := parseSpec(name, data, nil)
 			if s == nil {
-				return nil, ps.Err()
+				return nil, md, ps.Err()
 			}
-			return specLeaves(s), nil
+			return specLeaves(s), md, nil
 		},
 		reread: func(data []byte) ([]leaf, error) {
 			s, ps := ParseSpec(name, data, cat)
@@ -187,7 +187,8 @@ func stockLeaves(cat *Catalogue) []leaf {
 }
 
 // specLeaves lists every value of s as ParseSpec reads it (a [process]
-// without sfc reads as "predicted"; a rule of 0 is no rule).
+// without sfc reads as "predicted"; a rule of 0 is no rule; the reactor's
+// feed ratio by stock).
 func specLeaves(s *Spec) []leaf {
 	out := []leaf{
 		{path: []string{"name"}, val: s.Name, what: Change{Item: "name"}},
@@ -235,6 +236,12 @@ func specLeaves(s *Spec) []leaf {
 			sfc = "predicted"
 		}
 		proc("sfc", sfc)
+		if p.Through != nil {
+			bound(*p.Through, Change{Table: "process", Item: "through"}, "process", "through")
+		}
+		for _, f := range p.FeedRatio {
+			out = append(out, leaf{path: []string{"process", "feed_ratio", f.Stock}, val: f.Parts, what: Change{Table: "process", Item: "feed_ratio", Field: f.Stock}})
+		}
 	}
 	return out
 }
@@ -463,7 +470,8 @@ func (sc docSchema) fixedKeys(parent []string) []string {
 		return keysProcess
 	case len(parent) == 2 && parent[0] == "limits" && parent[1] != "sfc",
 		len(parent) == 3 && parent[0] == "limits" && parent[1] == "sfc",
-		len(parent) == 2 && parent[0] == "use":
+		len(parent) == 2 && parent[0] == "use",
+		len(parent) == 2 && parent[0] == "process" && parent[1] == "through":
 		return keysBound
 	}
 	return nil
@@ -481,7 +489,7 @@ type patchJob struct {
 	full   []byte // the file written afresh
 	want   []leaf
 	what   string // "a stock catalogue"
-	read   func([]byte) ([]leaf, error)
+	read   func([]byte) ([]leaf, toml.MetaData, error)
 	reread func([]byte) ([]leaf, error) // the check of the result; read when nil
 	same   func(old []leaf) string      // a reason not to edit in place, or ""
 }
@@ -494,7 +502,7 @@ func (j patchJob) run() Patch {
 	if len(bytes.TrimSpace(j.orig)) == 0 {
 		return afresh(nil, "the file is empty or missing")
 	}
-	old, err := j.read(j.orig)
+	old, md, err := j.read(j.orig)
 	if err != nil {
 		return afresh(nil, fmt.Sprintf("the file no longer reads as %s (%s)", j.what, firstLine(err)))
 	}
@@ -507,13 +515,16 @@ func (j patchJob) run() Patch {
 			return afresh(changes, reason)
 		}
 	}
-	data, err := j.edit(ops)
+	data, err := j.edit(ops, md)
 	if err != nil {
 		return afresh(changes, err.Error())
 	}
 	reread := j.reread
 	if reread == nil {
-		reread = j.read
+		reread = func(data []byte) ([]leaf, error) {
+			l, _, err := j.read(data)
+			return l, err
+		}
 	}
 	back, err := reread(data)
 	if err != nil {
@@ -590,13 +601,9 @@ func orNone(s string) string {
 	return s
 }
 
-// edit applies ops to the original text.
-func (j patchJob) edit(ops []op) ([]byte, error) {
-	var m map[string]any
-	md, err := toml.Decode(string(j.orig), &m)
-	if err != nil {
-		return nil, fmt.Errorf("the file does not read as TOML (%w)", err)
-	}
+// edit applies ops to the original text, which the reference parser read
+// as md.
+func (j patchJob) edit(ops []op, md toml.MetaData) ([]byte, error) {
 	doc, err := scanTOML(j.orig, md)
 	if err != nil {
 		var se *scanError

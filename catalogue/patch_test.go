@@ -254,6 +254,10 @@ func TestPatchSpecDemo(t *testing.T) {
 		{name: "the reactor's feed", file: "process-margarine.toml", edit: func(s *Spec) {
 			s.Process.Interesterify = append(s.Process.Interesterify, "fh-rapeseed")
 		}, out: []string{`interesterify = ["palm-st-hard", "pko"]`}, in: []string{`interesterify = ["palm-st-hard", "pko", "fh-rapeseed"]`}},
+		{name: "the reactor made to take part", file: "process-margarine.toml", edit: func(s *Spec) {
+			s.Process.Through = &Bound{Min: 20, Max: math.Inf(1)}
+			s.Process.FeedRatio = []FeedPart{{Stock: "palm-st-hard", Parts: 3}, {Stock: "pko", Parts: 2}}
+		}, in: []string{"through = { min = 20.0 }", `feed_ratio = { palm-st-hard = 3.0, pko = 2.0 }`}, aft: []string{`sfc = "predicted"`, "through = { min = 20.0 }"}},
 		{name: "no reactor: the table goes, its comment stays", file: "process-margarine.toml", edit: func(s *Spec) { s.Process = nil },
 			out: []string{"[process]", `interesterify = ["palm-st-hard", "pko"]`, `method = "chemical"`, "cost = 45.0                        # EUR per tonne processed (invented)", `sfc = "predicted"`},
 			in:  []string{"# EUR per tonne processed (invented)"}},
