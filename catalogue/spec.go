@@ -203,11 +203,18 @@ var (
 // is non-nil every stock id named in [use] and [process] must exist in it.
 // The spec's ID is the file's base name without extension.
 func ParseSpec(name string, data []byte, cat *Catalogue) (*Spec, Problems) {
+	s, ps, _ := parseSpec(name, data, cat)
+	return s, ps
+}
+
+// parseSpec is ParseSpec, with the reference parser's metadata of the
+// file (for the in-place edit, patch.go).
+func parseSpec(name string, data []byte, cat *Catalogue) (*Spec, Problems, toml.MetaData) {
 	c := &collector{file: name}
 	var raw rawSpec
 	md, ok := c.decode(data, &raw)
 	if !ok {
-		return nil, c.problems()
+		return nil, c.problems(), md
 	}
 	spec := c.spec(md, raw, cat)
 	c.unknownKeys(md,
@@ -241,11 +248,11 @@ func ParseSpec(name string, data []byte, cat *Catalogue) (*Spec, Problems) {
 			return ""
 		})
 	if c.failed() {
-		return nil, c.problems()
+		return nil, c.problems(), md
 	}
 	spec.File = name
 	spec.ID = SpecID(name)
-	return spec, c.problems()
+	return spec, c.problems(), md
 }
 
 // SpecID is the short id of a spec file: its base name without extension.

@@ -447,11 +447,18 @@ func (c *collector) curveFalls(where string, curve Curve) {
 // name is the file name used in messages. The catalogue is nil when any
 // problem is an error; warnings come back with a usable catalogue.
 func ParseStocks(name string, data []byte) (*Catalogue, Problems) {
+	cat, ps, _ := parseStocks(name, data)
+	return cat, ps
+}
+
+// parseStocks is ParseStocks, with the reference parser's metadata of
+// the file (for the in-place edit, patch.go).
+func parseStocks(name string, data []byte) (*Catalogue, Problems, toml.MetaData) {
 	c := &collector{file: name}
 	var raw rawStocks
 	md, ok := c.decode(data, &raw)
 	if !ok {
-		return nil, c.problems()
+		return nil, c.problems(), md
 	}
 	// Stock labels by document position: each [[stock]] header is one key "stock".
 	labels := make([]string, len(raw.Stock))
@@ -480,10 +487,10 @@ func ParseStocks(name string, data []byte) (*Catalogue, Problems) {
 		})
 	cat := c.stocks(raw)
 	if c.failed() {
-		return nil, c.problems()
+		return nil, c.problems(), md
 	}
 	cat.File = name
-	return cat, c.problems()
+	return cat, c.problems(), md
 }
 
 // LoadStocks reads and parses a stock catalogue file.

@@ -108,7 +108,7 @@ func (k keyMap) keyGroups() [][2]string {
 		{"6: ← → enter d c", "Compare: pick a column, work on it, drop it, figures or SFC curves"},
 		{"a", "write a note on the scenario (saved with it)"},
 		{"s / o", "save the scenario and its result as one TOML file / open one"},
-		{"W", "write stocks and spec back to the files they came from"},
+		{"W", "write stocks and spec back to their files, asking first"},
 		{"q  ctrl+c", "quit (q asks again while edits are unsaved)"},
 	}
 }

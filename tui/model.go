@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"path/filepath"
 	"strconv"
 	"strings"
 	"time"
@@ -53,6 +54,7 @@ const (
 	promptVariant // the name of a variant to keep
 	promptNote    // the scenario's note
 	promptRelax   // the relaxation's preview: enter applies, esc cancels
+	promptWrite   // W: write the stocks and spec back? y or enter writes, n or esc cancels
 )
 
 type prompt struct {
@@ -103,6 +105,8 @@ type Model struct {
 	benchCol int           // 6 Compare: the column under the cursor
 	curves   bool          // 6 Compare: SFC curves instead of figures
 	relax    *relaxPreview // R: the relaxed scenario waiting for enter or esc
+	writing  *writePlan    // W: what would be written, waiting for y or n
+	sheet    []string      // lines shown over the panel until the next key (what W wrote)
 
 	keys   keyMap
 	help   help.Model
@@ -236,7 +240,7 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 		m.relaxArrived(msg)
 		return m, nil
 	case tea.PasteMsg:
-		if m.prompt.kind != promptNone && m.prompt.kind != promptRelax {
+		if m.prompt.kind != promptNone && m.prompt.kind != promptRelax && m.prompt.kind != promptWrite {
 			m.input.insert(msg.Content)
 		}
 		return m, nil
@@ -253,8 +257,8 @@ func (m *Model) key(k tea.KeyPressMsg) tea.Cmd {
 	ks := m.keys
 	quitArm := m.quitArm
 	m.quitArm = false
-	if m.showKeys {
-		m.showKeys = false // any key closes the key list
+	if m.showKeys || m.sheet != nil {
+		m.showKeys, m.sheet = false, nil // any key closes the key list or the sheet
 		return nil
 	}
 	if m.panel == panelCompare {
@@ -419,8 +423,11 @@ func (m *Model) closePrompt() {
 }
 
 func (m *Model) promptKey(k tea.KeyPressMsg) tea.Cmd {
-	if m.prompt.kind == promptRelax {
+	switch m.prompt.kind {
+	case promptRelax:
 		return m.relaxKey(k)
+	case promptWrite:
+		return m.writeKey(k)
 	}
 	switch {
 	case key.Matches(k, m.keys.Cancel):
@@ -920,54 +927,18 @@ func (m *Model) open(name string) tea.Cmd {
 	return cmd
 }
 
-func (m *Model) writeBack() tea.Cmd {
-	if err := m.files.CanWriteBack(); err != nil {
-		m.fail(err)
-		return nil
-	}
-	var wrote, kept []string
-	_, spec := m.sc.Effective()
-	for _, f := range []struct {
-		path, other string
-		encode      func() ([]byte, error)
-	}{
-		{m.files.StocksPath, m.files.SpecPath, func() ([]byte, error) { return encodeStocks(m.sc.Catalogue) }},
-		{m.files.SpecPath, m.files.StocksPath, func() ([]byte, error) { return encodeSpec(spec) }},
-	} {
-		if f.path == "" {
-			continue
-		}
-		data, err := f.encode()
-		if err != nil {
-			m.fail(err)
-			return nil
-		}
-		w, err := m.output(f.path, f.other).Write(data)
-		if err != nil {
-			m.fail(err)
-			return nil
-		}
-		wrote = append(wrote, m.shownPath(f.path))
-		if w.Backup != "" {
-			kept = append(kept, m.shownPath(w.Backup))
-		}
-	}
-	m.dirty = false
-	msg := "Wrote " + strings.Join(wrote, " and ")
-	if len(kept) > 0 {
-		// the backup names come first: a narrow status line cuts the end
-		msg = "Old files kept as " + strings.Join(kept, " and ") + ". " + msg
-	}
-	m.info(msg + " (left-out stocks are written as use max 0).")
-	return nil
-}
-
-// shownPath hides the server's folder from a confined (served) workspace.
+// shownPath hides the server's folder from a confined (served) workspace:
+// a path inside the served folder is shown from there, any other by its
+// file name alone.
 func (m *Model) shownPath(path string) string {
-	if m.files.Confined {
-		return strings.TrimPrefix(strings.TrimPrefix(path, m.files.Dir), "/")
+	if !m.files.Confined {
+		return path
 	}
-	return path
+	rel, err := filepath.Rel(m.files.Dir, path)
+	if err != nil || rel == ".." || strings.HasPrefix(rel, "../") || filepath.IsAbs(rel) {
+		return "…/" + filepath.Base(path)
+	}
+	return rel
 }
 
 // firstLines keeps the first n lines of a long error for the status line.

@@ -222,16 +222,3 @@ func unwrapPathErr(err error) error {
 	}
 	return err
 }
-
-// encodeStocks and encodeSpec give the bytes write-back puts in the files.
-func encodeStocks(cat *catalogue.Catalogue) ([]byte, error) {
-	var b bytes.Buffer
-	err := catalogue.WriteStocks(&b, cat)
-	return b.Bytes(), err
-}
-
-func encodeSpec(spec *catalogue.Spec) ([]byte, error) {
-	var b bytes.Buffer
-	err := catalogue.WriteSpec(&b, spec)
-	return b.Bytes(), err
-}

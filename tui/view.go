@@ -37,6 +37,10 @@ func (m *Model) Render() string {
 	switch {
 	case m.showKeys:
 		body = m.keysPanel(w)
+	case m.prompt.kind == promptWrite:
+		body = m.writeSheet(w)
+	case m.sheet != nil:
+		body = m.sheet
 	default:
 		body = m.panelBody(w, bodyH)
 	}
@@ -203,8 +207,11 @@ func (m *Model) statusLine(w int) string {
 }
 
 func (m *Model) bottomLine(w int) string {
-	if m.prompt.kind == promptRelax {
+	switch m.prompt.kind {
+	case promptRelax:
 		return " " + m.styles.key.Render("Apply the relaxation?") + m.styles.muted.Render("   enter apply · esc keep the spec as it is")
+	case promptWrite:
+		return " " + m.styles.key.Render("Write these files?") + m.styles.muted.Render("   y/enter write · n/esc cancel")
 	}
 	if m.prompt.kind != promptNone {
 		return " " + m.input.view() + m.styles.muted.Render("   enter apply · esc cancel")

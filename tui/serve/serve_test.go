@@ -431,6 +431,50 @@ func TestWritableServerSavesByName(t *testing.T) {
 	waitFor(t, s.out, "nothing to write back", 10*time.Second)
 }
 
+// A writable server's session writes the stocks back after asking, and
+// names the files and the backup inside the served folder only.
+func TestWritableServerWritesBack(t *testing.T) {
+	key, line := newKey(t)
+	demo := catalogue.DemoFiles()
+	var stocks string
+	ts := start(t, []string{line}, func(c *Config) {
+		c.Writable = true
+		stocks = filepath.Join(c.Files.Dir, "stocks.toml")
+		spec := filepath.Join(c.Files.Dir, "spec.toml")
+		require.NoError(t, os.WriteFile(stocks, demo["stocks.toml"], 0o644))
+		require.NoError(t, os.WriteFile(spec, demo["laminating.toml"], 0o644))
+		c.Files.StocksPath, c.Files.SpecPath = stocks, spec
+	})
+	s, err := dial(t, ts.addr, key)
+	require.NoError(t, err)
+	defer s.close()
+	waitFor(t, s.out, "Cheapest blend", 20*time.Second)
+	_, err = io.WriteString(s.in, "2]W")
+	require.NoError(t, err)
+	waitFor(t, s.out, "Write back to the files the session started from?", 10*time.Second)
+	waitFor(t, s.out, "Write stocks.toml: 1 price?", 10*time.Second)
+	assert.Equal(t, demo["stocks.toml"], mustRead(t, stocks), "nothing is written before y")
+	_, err = io.WriteString(s.in, "y")
+	require.NoError(t, err)
+	waitFor(t, s.out, "Old files kept as stocks.toml.", 10*time.Second)
+	baks, err := filepath.Glob(stocks + ".*.bak")
+	require.NoError(t, err)
+	require.Len(t, baks, 1)
+	waitFor(t, s.out, filepath.Base(baks[0]), 10*time.Second)
+	assert.Equal(t, demo["stocks.toml"], mustRead(t, baks[0]))
+	assert.NotContains(t, ansi.Strip(s.out.String()), ts.dir, "the server's folder is never shown")
+	cat, ps := catalogue.LoadStocks(stocks)
+	require.Empty(t, ps.Errors())
+	assert.Equal(t, 1160.0, cat.Stocks[0].Price, "the first stock's price, raised by 10")
+}
+
+func mustRead(t *testing.T, path string) []byte {
+	t.Helper()
+	b, err := os.ReadFile(path)
+	require.NoError(t, err)
+	return b
+}
+
 // TestUnknownWindowSizeKeepsTheScreen: a client without a local terminal
 // (OpenSSH -tt with stdin a pipe) reports a 0x0 window in its pty-req and in
 // any window-change. The wish middleware forwards that size to the program
