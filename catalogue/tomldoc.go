@@ -119,7 +119,36 @@ func scanTOML(src []byte, md toml.MetaData) (*tomlDoc, error) {
 	if err := doc.sameKeys(md.Keys()); err != nil {
 		return nil, err
 	}
+	if err := doc.definedOnce(); err != nil {
+		return nil, err
+	}
 	return doc, nil
+}
+
+// definedOnce refuses a document that defines a key twice, or a key both
+// as a value and as a table ("t.a = 1" then "t = 2"): TOML v1.0.0 does not
+// allow it ("Defining a key multiple times is invalid"), but the reference
+// parser lets some such documents through, and an edit of one of the two
+// definitions would not be the value it reads.
+func (d *tomlDoc) definedOnce() error {
+	seen := make(map[string]*tomlEntry, len(d.entries))
+	for _, e := range d.entries {
+		seen[strings.Join(e.path, "\x00")] = e
+	}
+	for _, e := range d.entries {
+		if len(seen) < len(d.entries) {
+			break
+		}
+		for n := 1; n < len(e.path); n++ {
+			if p, ok := seen[strings.Join(e.path[:n], "\x00")]; ok && p.val != nil && (p.val.kind == valScalar || p.val.kind == valString) {
+				return &scanError{line: d.lineOf(e.keyStart), msg: fmt.Sprintf("key %q is defined as a value and as a table", strings.Join(e.path[:n], "."))}
+			}
+		}
+	}
+	if len(seen) < len(d.entries) {
+		return &scanError{line: 0, msg: "a key is defined twice"}
+	}
+	return nil
 }
 
 func (s *tomlScanner) fail(format string, args ...any) error {
