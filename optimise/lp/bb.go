@@ -192,7 +192,7 @@ func (b *BranchAndBound) SolveMIP(p *Problem, integer []int, lim Limits) (sol *M
 			run.ints = append(run.ints, j)
 		}
 	}
-	run.byRows()
+	run.rStart, run.rIdx, run.rVal = byRows(p.Rows, p.Start, p.Index, p.Value, nil, nil, nil)
 	if lim.Progress != nil {
 		lim.Progress(0, ProgressTotal)
 	}
@@ -226,27 +226,6 @@ func (r *bbRun) openBound() float64 {
 		b = min(b, n.bound)
 	}
 	return b
-}
-
-func (r *bbRun) byRows() {
-	p := r.p
-	r.rStart = make([]int, p.Rows+1)
-	for _, i := range p.Index {
-		r.rStart[i+1]++
-	}
-	for i := 0; i < p.Rows; i++ {
-		r.rStart[i+1] += r.rStart[i]
-	}
-	r.rIdx = make([]int, len(p.Index))
-	r.rVal = make([]float64, len(p.Index))
-	fill := append([]int(nil), r.rStart[:p.Rows]...)
-	for j := 0; j < p.Cols; j++ {
-		for k := p.Start[j]; k < p.Start[j+1]; k++ {
-			i := p.Index[k]
-			r.rIdx[fill[i]], r.rVal[fill[i]] = j, p.Value[k]
-			fill[i]++
-		}
-	}
 }
 
 func (r *bbRun) search() (Status, error) {

@@ -305,6 +305,36 @@ func (p *Problem) Dense(rows, cols int, a []float64) {
 	p.Start[cols] = k
 }
 
+// byRows lays out a matrix of rows rows, given by columns (column j's row
+// numbers index[start[j]:start[j+1]] with values value[...]), by rows: row
+// i's column numbers, in increasing order, are rIdx[rStart[i]:rStart[i+1]]
+// with values rVal[...]. rStart, rIdx and rVal are reused when large
+// enough.
+func byRows(rows int, start, index []int, value []float64, rStart, rIdx []int, rVal []float64) ([]int, []int, []float64) {
+	nz := start[len(start)-1]
+	rStart = resize(rStart, rows+1)
+	clear(rStart)
+	for _, i := range index[:nz] {
+		rStart[i+1]++
+	}
+	for i := 0; i < rows; i++ {
+		rStart[i+1] += rStart[i]
+	}
+	rIdx, rVal = resize(rIdx, nz), resize(rVal, nz)
+	// rStart[i] is row i's next free place while the entries are filled
+	// in, and is moved back to row i's start after.
+	for j := 0; j+1 < len(start); j++ {
+		for k := start[j]; k < start[j+1]; k++ {
+			q := rStart[index[k]]
+			rIdx[q], rVal[q] = j, value[k]
+			rStart[index[k]]++
+		}
+	}
+	copy(rStart[1:], rStart[:rows])
+	rStart[0] = 0
+	return rStart, rIdx, rVal
+}
+
 // Activity computes A x into dst (grown as needed) and returns it.
 func (p *Problem) Activity(x, dst []float64) []float64 {
 	dst = resize(dst, p.Rows)

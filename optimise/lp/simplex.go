@@ -93,7 +93,6 @@ type Simplex struct {
 	nzR                              []int  // variables whose pivot-row entry may be nonzero
 	cand                             []candidate
 	flips                            []int
-	rowMark                          []int
 	scaleWork                        []float64
 	seen                             []int
 }
@@ -232,25 +231,7 @@ func (s *Simplex) setMatrix() {
 			s.cVal[k] = s.rs[p.Index[k]] * p.Value[k] * s.cs[j]
 		}
 	}
-	s.rStart = resize(s.rStart, m+1)
-	clear(s.rStart)
-	for _, i := range p.Index {
-		s.rStart[i+1]++
-	}
-	for i := 0; i < m; i++ {
-		s.rStart[i+1] += s.rStart[i]
-	}
-	s.rIdx, s.rVal = resize(s.rIdx, nz), resize(s.rVal, nz)
-	fill := resize(s.rowMark, m)
-	copy(fill, s.rStart[:m])
-	for j := 0; j < n; j++ {
-		for k := s.cStart[j]; k < s.cStart[j+1]; k++ {
-			i := s.cIdx[k]
-			s.rIdx[fill[i]], s.rVal[fill[i]] = j, s.cVal[k]
-			fill[i]++
-		}
-	}
-	s.rowMark = fill
+	s.rStart, s.rIdx, s.rVal = byRows(m, s.cStart, s.cIdx, s.cVal, s.rStart, s.rIdx, s.rVal)
 }
 
 // setCol scales column j's cost and bounds.
