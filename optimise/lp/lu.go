@@ -59,6 +59,27 @@ const (
 	maxEtas     = 64    // updates before a fresh factorisation
 )
 
+// basisMatrix lays out by columns the basis matrix whose position r holds
+// variable head[r]: column k < n of the matrix given by columns (start,
+// index, value), or -e_i for row i's logical n+i. bStart, bIdx and bVal
+// are reused when large enough.
+func basisMatrix(head []int, n int, start, index []int, value []float64, bStart, bIdx []int, bVal []float64) ([]int, []int, []float64) {
+	bStart = resize(bStart, len(head)+1)
+	bIdx, bVal = bIdx[:0], bVal[:0]
+	for r, k := range head {
+		bStart[r] = len(bIdx)
+		if k >= n {
+			bIdx = append(bIdx, k-n)
+			bVal = append(bVal, -1)
+			continue
+		}
+		bIdx = append(bIdx, index[start[k]:start[k+1]]...)
+		bVal = append(bVal, value[start[k]:start[k+1]]...)
+	}
+	bStart[len(head)] = len(bIdx)
+	return bStart, bIdx, bVal
+}
+
 // factorize computes the LU factors of the m x m matrix whose column p is
 // given in compressed sparse column form (bStart, bIdx, bVal). It returns
 // the positions whose columns turned out linearly dependent on the others

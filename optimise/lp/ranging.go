@@ -13,12 +13,10 @@ var ErrBasis = errors.New("basis is not square and nonsingular")
 // basisLU factorises the basis matrix of a basis of p as given (unscaled):
 // the basic columns of [A -I].
 type basisLU struct {
-	p          *Problem
-	head       []int // basic variable at each position
-	pos        []int // position of each variable, -1 when nonbasic
-	f          factor
-	start, idx []int
-	val        []float64
+	p    *Problem
+	head []int // basic variable at each position
+	pos  []int // position of each variable, -1 when nonbasic
+	f    factor
 }
 
 func newBasisLU(p *Problem, basis []VarStatus) (*basisLU, error) {
@@ -37,19 +35,8 @@ func newBasisLU(p *Problem, basis []VarStatus) (*basisLU, error) {
 	if len(b.head) != m {
 		return nil, fmt.Errorf("%w: %d basic variables for %d rows", ErrBasis, len(b.head), m)
 	}
-	b.start = make([]int, m+1)
-	for r, k := range b.head {
-		b.start[r] = len(b.idx)
-		if k >= n {
-			b.idx = append(b.idx, k-n)
-			b.val = append(b.val, -1)
-			continue
-		}
-		b.idx = append(b.idx, p.Index[p.Start[k]:p.Start[k+1]]...)
-		b.val = append(b.val, p.Value[p.Start[k]:p.Start[k+1]]...)
-	}
-	b.start[m] = len(b.idx)
-	if bad, _ := b.f.factorize(m, b.start, b.idx, b.val); len(bad) > 0 {
+	start, idx, val := basisMatrix(b.head, n, p.Start, p.Index, p.Value, nil, nil, nil)
+	if bad, _ := b.f.factorize(m, start, idx, val); len(bad) > 0 {
 		return nil, fmt.Errorf("%w: %d dependent basic columns", ErrBasis, len(bad))
 	}
 	return b, nil

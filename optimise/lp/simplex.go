@@ -439,19 +439,7 @@ func (s *Simplex) addCol(k int, v float64, w []float64) {
 func (s *Simplex) refactor() (repaired bool, err error) {
 	m := s.m
 	for attempt := 0; ; attempt++ {
-		s.bStart = resize(s.bStart, m+1)
-		s.bIdx, s.bVal = s.bIdx[:0], s.bVal[:0]
-		for r, k := range s.head {
-			s.bStart[r] = len(s.bIdx)
-			if k >= s.n {
-				s.bIdx = append(s.bIdx, k-s.n)
-				s.bVal = append(s.bVal, -1)
-				continue
-			}
-			s.bIdx = append(s.bIdx, s.cIdx[s.cStart[k]:s.cStart[k+1]]...)
-			s.bVal = append(s.bVal, s.cVal[s.cStart[k]:s.cStart[k+1]]...)
-		}
-		s.bStart[m] = len(s.bIdx)
+		s.bStart, s.bIdx, s.bVal = basisMatrix(s.head, s.n, s.cStart, s.cIdx, s.cVal, s.bStart, s.bIdx, s.bVal)
 		bad, free := s.lu.factorize(m, s.bStart, s.bIdx, s.bVal)
 		if len(bad) == 0 {
 			s.luOK = true
