@@ -728,10 +728,11 @@ func (c *collector) process(md toml.MetaData, r rawProcess, cat *Catalogue) *Pro
 		if r.FeedRatio.m == nil {
 			c.errf(where, `feed_ratio must be a table of stock = parts, e.g. feed_ratio = { "ps-h" = 3, "pko-r" = 2 }, not %s`, describe(r.FeedRatio.raw))
 		} else {
-			byID := map[string]float64{}
+			ids := sortedKeys(r.FeedRatio.m)
+			byID := make(map[string]float64, len(ids))
 			good := true
-			for id, v := range r.FeedRatio.m {
-				f, ok := c.num(where+" feed_ratio", strconv.Quote(id), val{v: v, set: true})
+			for _, id := range ids {
+				f, ok := c.num(where+" feed_ratio", strconv.Quote(id), val{v: r.FeedRatio.m[id], set: true})
 				if !ok {
 					good = false
 					continue
@@ -747,13 +748,10 @@ func (c *collector) process(md toml.MetaData, r rawProcess, cat *Catalogue) *Pro
 						delete(byID, id)
 					}
 				}
-				extra := make([]string, 0, len(byID))
-				for id := range byID {
-					extra = append(extra, id)
-				}
-				sort.Strings(extra)
-				for _, id := range extra {
-					p.FeedRatio = append(p.FeedRatio, FeedPart{Stock: id, Parts: byID[id]})
+				for _, id := range ids {
+					if f, ok := byID[id]; ok {
+						p.FeedRatio = append(p.FeedRatio, FeedPart{Stock: id, Parts: f})
+					}
 				}
 				c.processFeedRatio(where, p)
 			}
