@@ -3,7 +3,6 @@ package catalogue
 import (
 	"fmt"
 	"math"
-	"sort"
 	"strconv"
 	"strings"
 
@@ -173,12 +172,7 @@ func FormatCalibration(cal *Calibration) []byte {
 	fmt.Fprintf(&b, "model = %q          # solid-phase model the shifts were fitted with\n", cal.Model)
 	fmt.Fprintf(&b, "polymorph = %q       # pure-TAG melting properties of this form\n", cal.Polymorph)
 	b.WriteString("\n[shift]                 # K added to the melting point of every TAG of the class\n")
-	keys := make([]string, 0, len(cal.Shift))
-	for k := range cal.Shift {
-		keys = append(keys, k)
-	}
-	sort.Strings(keys)
-	for _, k := range keys {
+	for _, k := range sortedKeys(cal.Shift) {
 		fmt.Fprintf(&b, "%s = %s\n", k, strconv.FormatFloat(cal.Shift[k], 'f', 3, 64))
 	}
 	f := cal.Fit

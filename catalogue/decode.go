@@ -1,6 +1,7 @@
 package catalogue
 
 import (
+	"bytes"
 	"errors"
 	"fmt"
 	"math"
@@ -200,19 +201,21 @@ func syntaxLine(data []byte, start, reported int, open bool) (line int, unfinish
 	if start < 0 || start > len(data) {
 		return reported, false
 	}
-	line = 1 + strings.Count(string(data[:start]), "\n")
-	lineStart := strings.LastIndexByte(string(data[:start]), '\n') + 1
-	if !open || start >= len(data) || data[start] == '\n' || strings.TrimSpace(string(data[lineStart:start])) != "" {
+	before := data[:start]
+	line = 1 + bytes.Count(before, []byte("\n"))
+	lineStart := bytes.LastIndexByte(before, '\n') + 1
+	if !open || start >= len(data) || data[start] == '\n' || len(bytes.TrimSpace(data[lineStart:start])) > 0 {
 		return line, false
 	}
-	// The error is at the first character of its line: find the line before
-	// with text that is not a comment.
-	lines := strings.Split(string(data[:lineStart]), "\n")
-	for i := len(lines) - 2; i >= 0; i-- {
-		t := strings.TrimSpace(lines[i])
-		if t != "" && !strings.HasPrefix(t, "#") {
-			return i + 1, true
+	// The error is at the first character of its line: walk back to the
+	// line before with text that is not a comment (end is the newline that
+	// ends line n).
+	for n, end := line-1, lineStart-1; end >= 0; n-- {
+		from := bytes.LastIndexByte(data[:end], '\n') + 1
+		if t := bytes.TrimSpace(data[from:end]); len(t) > 0 && t[0] != '#' {
+			return n, true
 		}
+		end = from - 1
 	}
 	return line, false
 }

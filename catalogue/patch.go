@@ -461,20 +461,7 @@ func (sc docSchema) fixedKeys(parent []string) []string {
 		}
 		return nil
 	}
-	switch {
-	case len(parent) == 0:
-		return keysSpecTop
-	case len(parent) == 1 && parent[0] == "rules":
-		return keysRules
-	case len(parent) == 1 && parent[0] == "process":
-		return keysProcess
-	case len(parent) == 2 && parent[0] == "limits" && parent[1] != "sfc",
-		len(parent) == 3 && parent[0] == "limits" && parent[1] == "sfc",
-		len(parent) == 2 && parent[0] == "use",
-		len(parent) == 2 && parent[0] == "process" && parent[1] == "through":
-		return keysBound
-	}
-	return nil
+	return specKeys(parent)
 }
 
 func (sc docSchema) isTempTable(parent []string) bool {

@@ -199,6 +199,26 @@ var (
 	keysProcess = []string{"interesterify", "method", "cost", "sfc", "through", "feed_ratio"}
 )
 
+// specKeys lists the known keys of the spec's fixed table at parent, in
+// order, or nil for a table keyed by the user's names (limit names,
+// temperatures, stock ids, feed_ratio).
+func specKeys(parent []string) []string {
+	switch {
+	case len(parent) == 0:
+		return keysSpecTop
+	case len(parent) == 1 && parent[0] == "rules":
+		return keysRules
+	case len(parent) == 1 && parent[0] == "process":
+		return keysProcess
+	case len(parent) == 2 && parent[0] == "limits" && parent[1] != "sfc",
+		len(parent) == 3 && parent[0] == "limits" && parent[1] == "sfc",
+		len(parent) == 2 && parent[0] == "use",
+		len(parent) == 2 && parent[0] == "process" && parent[1] == "through":
+		return keysBound
+	}
+	return nil
+}
+
 // ParseSpec decodes and validates a product spec (README, "File formats"). When cat
 // is non-nil every stock id named in [use] and [process] must exist in it.
 // The spec's ID is the file's base name without extension.
@@ -219,20 +239,8 @@ func parseSpec(name string, data []byte, cat *Catalogue) (*Spec, Problems, toml.
 	spec := c.spec(md, raw, cat)
 	c.unknownKeys(md,
 		func(parent toml.Key) ([]string, bool) {
-			switch {
-			case len(parent) == 0:
-				return keysSpecTop, true
-			case len(parent) == 1 && parent[0] == "rules":
-				return keysRules, true
-			case len(parent) == 1 && parent[0] == "process":
-				return keysProcess, true
-			case len(parent) == 2 && parent[0] == "limits" && parent[1] != "sfc",
-				len(parent) == 3 && parent[0] == "limits" && parent[1] == "sfc",
-				len(parent) == 2 && parent[0] == "use",
-				len(parent) == 2 && parent[0] == "process" && parent[1] == "through":
-				return keysBound, true
-			}
-			return nil, false
+			known := specKeys(parent)
+			return known, known != nil
 		},
 		func(_ int, k toml.Key) string {
 			switch {
@@ -728,10 +736,11 @@ func (c *collector) process(md toml.MetaData, r rawProcess, cat *Catalogue) *Pro
 		if r.FeedRatio.m == nil {
 			c.errf(where, `feed_ratio must be a table of stock = parts, e.g. feed_ratio = { "ps-h" = 3, "pko-r" = 2 }, not %s`, describe(r.FeedRatio.raw))
 		} else {
-			byID := map[string]float64{}
+			ids := sortedKeys(r.FeedRatio.m)
+			byID := make(map[string]float64, len(ids))
 			good := true
-			for id, v := range r.FeedRatio.m {
-				f, ok := c.num(where+" feed_ratio", strconv.Quote(id), val{v: v, set: true})
+			for _, id := range ids {
+				f, ok := c.num(where+" feed_ratio", strconv.Quote(id), val{v: r.FeedRatio.m[id], set: true})
 				if !ok {
 					good = false
 					continue
@@ -747,13 +756,10 @@ func (c *collector) process(md toml.MetaData, r rawProcess, cat *Catalogue) *Pro
 						delete(byID, id)
 					}
 				}
-				extra := make([]string, 0, len(byID))
-				for id := range byID {
-					extra = append(extra, id)
-				}
-				sort.Strings(extra)
-				for _, id := range extra {
-					p.FeedRatio = append(p.FeedRatio, FeedPart{Stock: id, Parts: byID[id]})
+				for _, id := range ids {
+					if f, ok := byID[id]; ok {
+						p.FeedRatio = append(p.FeedRatio, FeedPart{Stock: id, Parts: f})
+					}
 				}
 				c.processFeedRatio(where, p)
 			}

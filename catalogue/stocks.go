@@ -503,8 +503,6 @@ func LoadStocks(path string) (*Catalogue, Problems) {
 }
 
 // stocks converts and checks a decoded catalogue.
-
-// stocks converts and checks a decoded catalogue.
 func (c *collector) stocks(raw rawStocks) *Catalogue {
 	cat := &Catalogue{Currency: "EUR"}
 	if raw.Currency.set {

@@ -135,18 +135,15 @@ func (d *tomlDoc) definedOnce() error {
 	for _, e := range d.entries {
 		seen[strings.Join(e.path, "\x00")] = e
 	}
+	if len(seen) < len(d.entries) {
+		return &scanError{line: 0, msg: "a key is defined twice"}
+	}
 	for _, e := range d.entries {
-		if len(seen) < len(d.entries) {
-			break
-		}
 		for n := 1; n < len(e.path); n++ {
 			if p, ok := seen[strings.Join(e.path[:n], "\x00")]; ok && p.val != nil && (p.val.kind == valScalar || p.val.kind == valString) {
 				return &scanError{line: d.lineOf(e.keyStart), msg: fmt.Sprintf("key %q is defined as a value and as a table", strings.Join(e.path[:n], "."))}
 			}
 		}
-	}
-	if len(seen) < len(d.entries) {
-		return &scanError{line: 0, msg: "a key is defined twice"}
 	}
 	return nil
 }

@@ -7,7 +7,6 @@ import (
 	"math"
 	"os"
 	"path/filepath"
-	"sort"
 	"strconv"
 	"strings"
 	"unicode/utf8"
@@ -46,12 +45,7 @@ func WriteStocks(w io.Writer, c *Catalogue) error {
 			}
 		}
 		if len(s.TAGs) > 0 {
-			keys := make([]string, 0, len(s.TAGs))
-			for k := range s.TAGs {
-				keys = append(keys, k)
-			}
-			sort.Strings(keys)
-			tw.table("stock.tags", where, s.TAGs, keys)
+			tw.table("stock.tags", where, s.TAGs, sortedKeys(s.TAGs))
 		}
 	}
 	if tw.err != nil {
