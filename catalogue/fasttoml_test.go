@@ -1,0 +1,190 @@
+package catalogue
+
+import (
+	"bytes"
+	"fmt"
+	"math/rand/v2"
+	"testing"
+	"time"
+	"unicode/utf8"
+
+	"github.com/BurntSushi/toml"
+	"github.com/stretchr/testify/require"
+)
+
+// The fast reader is held to the reference parser, BurntSushi/toml: on a
+// document it reads, the tree must be the one the reference parser
+// decodes, and the stock catalogue and its problems must be the ones the
+// reference path gives (parseStocks).
+
+// sameAsReference checks data both ways; it reports whether the fast
+// reader read the document.
+func sameAsReference(t *testing.T, data []byte) bool {
+	t.Helper()
+	tree, ok := fastTOML(data)
+	if ok {
+		var want map[string]any
+		_, err := toml.Decode(string(data), &want)
+		require.NoError(t, err, "the fast reader read a document the reference parser refuses:\n%s", data)
+		require.Equal(t, want, tree, "the fast reader's tree differs from the reference parser's:\n%s", data)
+	}
+	raw, fast := fastStocks(data)
+	if !fast {
+		return ok
+	}
+	var want rawStocks
+	md, err := toml.Decode(string(data), &want)
+	require.NoError(t, err)
+	require.Empty(t, md.Undecoded(), "fastStocks read a document with keys the reference parser does not place:\n%s", data)
+	require.Equal(t, want, raw)
+	cat, ps := ParseStocks("f.toml", data)
+	refCat, refPs, _ := parseStocks("f.toml", data)
+	require.Equal(t, refCat, cat, "catalogue read by the fast reader differs:\n%s", data)
+	require.Equal(t, refPs, ps, "problems found through the fast reader differ:\n%s", data)
+	return ok
+}
+
+// fastCorpus is the demo files, the bad-input corpus, the TOML v1.0.0
+// samples and a generated 300-stock catalogue.
+func fastCorpus(tb testing.TB) [][]byte {
+	var out [][]byte
+	for _, data := range DemoFiles() {
+		out = append(out, data)
+	}
+	for _, b := range readBadCorpus(tb) {
+		out = append(out, b.data)
+	}
+	for _, s := range tomlSamples {
+		out = append(out, []byte(s))
+	}
+	return append(out, stocksN(tb, 300))
+}
+
+// stocksN writes a catalogue of n stocks: the demo stocks and seeded
+// variants of them (synthetic data for timing and comparison only).
+func stocksN(tb testing.TB, n int) []byte {
+	demo := DemoStocks()
+	cat := demo.Clone()
+	r := rand.New(rand.NewPCG(uint64(n), 1))
+	for k := 0; len(cat.Stocks) < n; k++ {
+		s := demo.Stocks[k%len(demo.Stocks)]
+		s.ID = fmt.Sprintf("%s-v%03d", s.ID, k)
+		s.Price *= 0.9 + 0.2*r.Float64()
+		cat.Stocks = append(cat.Stocks, s)
+	}
+	var b bytes.Buffer
+	if err := WriteStocks(&b, cat); err != nil {
+		tb.Fatal(err)
+	}
+	return b.Bytes()
+}
+
+func TestFastStocksSame(t *testing.T) {
+	read := 0
+	for _, data := range fastCorpus(t) {
+		if sameAsReference(t, data) {
+			read++
+		}
+	}
+	require.Greater(t, read, 10, "the fast reader read almost none of the corpus")
+	_, ok := fastStocks(DemoFiles()["stocks.toml"])
+	require.True(t, ok, "the demo catalogue is of clean shape and must take the fast path")
+}
+
+// TestFastTOMLForms checks forms of TOML v1.0.0 (toml.io/en/v1.0.0) one by
+// one against the reference parser: those the fast reader must read, and
+// those it must leave to the reference parser (declined), legal or not.
+func TestFastTOMLForms(t *testing.T) {
+	read := []string{
+		"a = 1\n", "a = -0\n", "a = +17\n", "a = 1_000\n", "a = 3.1415\n", "a = -0.01\n",
+		"a = 5e+22\n", "a = 1e06\n", "a = -2E-2\n", "a = 6.626e-34\n", "a = 224_617.445_991\n",
+		"a = true\nb = false\n", `a = "tab\there \"q\" \\ \u00e9 \U0001F600"` + "\n",
+		"a = 'C:\\Users\\x'\n", `"C18:1" = 20.0` + "\n", "'lit key' = 1\n",
+		"a = { x = 1, y = \"z\", n = { m = 2.5 } }\n", "a = {}\n",
+		"[t]\nx = 1\n[t.u]\ny = 2\n", "[ t . \"u v\" ]\nx = 1\n",
+		"[[s]]\nid = 1\n[s.f]\nk = 2\n[[s]]\nid = 2\n",
+		"# comment\r\na = 1 # trailing\r\n", "a = 1", "\n\n\t\n",
+		"[x.y.z]\nw = 1\n[x.y.v]\nw = 2\n",
+	}
+	for _, s := range read {
+		t.Run(s, func(t *testing.T) {
+			_, ok := fastTOML([]byte(s))
+			require.True(t, ok, "declined")
+			sameAsReference(t, []byte(s))
+		})
+	}
+	declined := []string{
+		// legal TOML outside the subset
+		"a.b = 1\n", "a = [1, 2]\n", "a = \"\"\"x\"\"\"\n", "a = '''x'''\n", "a = inf\n", "a = nan\n",
+		"a = 0x1f\n", "a = 0o17\n", "a = 0b1\n", "a = 1979-05-27\n", "a = 07:32:00\n",
+		"[x.y]\n[x]\n", "\xef\xbb\xbfa = 1\n",
+		"a = { x = 1,\n y = 2 }\n", "a = { x = 1, }\n", `a = "\e"` + "\n", `a = "\x41"` + "\n",
+		// not TOML
+		"a = 1\na = 2\n", "[t]\n[t]\n", "[[t]]\n[t]\n", "[t]\n[[t]]\n", "a = 1\n[a]\n",
+		"a = { x = 1 }\n[a]\n", "a = { x = 1 }\n[a.b]\n", "a = 01\n", "a = 1__0\n", "a = 1_\n",
+		"a = 1.\n", "a = .5\n", "a = 1e\n", "a = 99999999999999999999\n", "a = 1e400\n",
+		"a = \"x\ny\"\n", "a = \"\\uD800\"\n", "a = 1 b = 2\n", "[t] x = 1\n", "a = \n", "= 1\n",
+		"\"\" = 1\n", "a = 1\rb = 2\n", "# bell \x07\n", "a = \"x\x7f\"\n", "a = tru\n", "a = truex\n",
+		"[t\n", "[[t]\n", "a = {x = 1\n",
+	}
+	for _, s := range declined {
+		t.Run(s, func(t *testing.T) {
+			_, ok := fastTOML([]byte(s))
+			require.False(t, ok, "read, but the fast reader should leave it to the reference parser")
+		})
+	}
+}
+
+// FuzzFastTOML holds the fast reader to the reference parser on arbitrary
+// text (sameAsReference). Seeds: fastCorpus. Run: go test ./catalogue -run
+// '^$' -fuzz FuzzFastTOML -fuzztime 100000x
+func FuzzFastTOML(f *testing.F) {
+	for _, data := range fastCorpus(f) {
+		f.Add(data)
+	}
+	f.Fuzz(func(t *testing.T, data []byte) {
+		if !utf8.Valid(data) {
+			return
+		}
+		sameAsReference(t, data)
+	})
+}
+
+// BenchmarkLoadStocks300 reads a 300-stock catalogue by the fast reader
+// (Fast, what ParseStocks does) and by the reference path (Reference:
+// BurntSushi/toml and its metadata), and the two in turn with their ratio
+// as the metric fast/reference.
+func BenchmarkLoadStocks300(b *testing.B) {
+	data := stocksN(b, 300)
+	fast := func() {
+		if _, ps := ParseStocks("s.toml", data); len(ps.Errors()) > 0 {
+			b.Fatal(ps)
+		}
+	}
+	ref := func() {
+		if _, ps, _ := parseStocks("s.toml", data); len(ps.Errors()) > 0 {
+			b.Fatal(ps)
+		}
+	}
+	b.Run("Fast", func(b *testing.B) {
+		for b.Loop() {
+			fast()
+		}
+	})
+	b.Run("Reference", func(b *testing.B) {
+		for b.Loop() {
+			ref()
+		}
+	})
+	b.Run("Interleaved", func(b *testing.B) {
+		var tf, tr time.Duration
+		for b.Loop() {
+			t0 := time.Now()
+			fast()
+			t1 := time.Now()
+			ref()
+			tf, tr = tf+t1.Sub(t0), tr+time.Since(t1)
+		}
+		b.ReportMetric(float64(tf)/float64(tr), "fast/reference")
+	})
+}
