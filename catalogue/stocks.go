@@ -446,7 +446,22 @@ func (c *collector) curveFalls(where string, curve Curve) {
 // ParseStocks decodes and validates a stock catalogue (README, "File formats").
 // name is the file name used in messages. The catalogue is nil when any
 // problem is an error; warnings come back with a usable catalogue.
+//
+// A document of clean shape is read by the fast reader (fastStocks), any
+// other by the reference parser (parseStocks); both give the same
+// catalogue and the same problems (TestFastStocksSame, FuzzFastTOML).
 func ParseStocks(name string, data []byte) (*Catalogue, Problems) {
+	if len(data) <= MaxInputBytes {
+		if raw, ok := fastStocks(data); ok {
+			c := &collector{file: name}
+			cat := c.stocks(raw)
+			if c.failed() {
+				return nil, c.problems()
+			}
+			cat.File = name
+			return cat, c.problems()
+		}
+	}
 	cat, ps, _ := parseStocks(name, data)
 	return cat, ps
 }
@@ -581,7 +596,11 @@ func (c *collector) faMap(where, table string, lm leafMap) (map[string]float64, 
 		c.errf(where, "%s must be a table, not %s; write [stock.%s] and then lines such as \"C16:0\" = 44.0", table, describe(lm.raw), table)
 		return nil, false
 	}
-	out := map[string]float64{}
+	out := make(map[string]float64, len(lm.m))
+	if leavesClean(lm.m, func(k string) bool { return Rank(k) >= 0 }, out) {
+		return out, true // the common case, without a sort or a label
+	}
+	clear(out)
 	good := true
 	for _, k := range sortedKeys(lm.m) {
 		if !c.acidKey(where, table, k) {
@@ -597,6 +616,66 @@ func (c *collector) faMap(where, table string, lm leafMap) (map[string]float64, 
 		out[k] = f
 	}
 	return out, good
+}
+
+// leavesClean reads a table of leaves into out when every key passes
+// keyOK and every value is a finite number >= 0, the common case; it
+// reports whether they all did (out is then complete). The callers then
+// read a table that is not clean again, key by key in order, for the
+// messages.
+func leavesClean(m map[string]any, keyOK func(string) bool, out map[string]float64) bool {
+	for k, v := range m {
+		var f float64
+		switch x := v.(type) {
+		case int64:
+			f = float64(x)
+		case float64:
+			f = x
+		default:
+			return false
+		}
+		if !(f >= 0) || math.IsInf(f, 1) || !keyOK(k) {
+			return false
+		}
+		out[k] = f
+	}
+	return true
+}
+
+// curveClean reads a measured SFC table whose keys are all temperatures
+// in range, distinct, with values in 0..100 % solid, the common case; ok
+// false sends the caller to the reading key by key for the messages.
+func curveClean(m map[string]any) (Curve, bool) {
+	out := make(Curve, 0, len(m))
+	for k, v := range m {
+		t, err := ParseTemp(k)
+		if err != nil || !(t >= MinTemp && t <= MaxTemp) {
+			return nil, false
+		}
+		var f float64
+		switch x := v.(type) {
+		case int64:
+			f = float64(x)
+		case float64:
+			f = x
+		default:
+			return nil, false
+		}
+		if !(f >= 0 && f <= 100) {
+			return nil, false
+		}
+		out = append(out, Point{Temp: t, Solid: f})
+	}
+	sort.Slice(out, func(i, j int) bool { return out[i].Temp < out[j].Temp })
+	for i := 1; i < len(out); i++ {
+		if out[i].Temp == out[i-1].Temp {
+			return nil, false
+		}
+	}
+	if len(out) == 0 {
+		return nil, true
+	}
+	return out, true
 }
 
 // checkSum reports a profile that does not sum to 100: an error outside
@@ -621,6 +700,16 @@ func (c *collector) checkSum(where, table, unit string, m map[string]float64, wa
 // x the acid's mol% in the whole fat, should not be negative.
 func (c *collector) checkSN2(where string, fa, sn2 map[string]float64) {
 	mol := MolPercent(fa)
+	clean := true
+	for k, x2 := range sn2 {
+		if x2 > 0 && (fa[k] <= 0 || (3*mol[k]-x2)/2 < sn13Floor) {
+			clean = false
+			break
+		}
+	}
+	if clean { // the common case, without a sort
+		return
+	}
 	for _, k := range SortedKeys(sn2) {
 		x2 := sn2[k]
 		if x2 <= 0 {
@@ -642,6 +731,10 @@ func (c *collector) curve(where string, lm leafMap) Curve {
 	if lm.m == nil {
 		c.errf(where, "sfc must be a table, not %s; write [stock.sfc] and then lines such as \"20\" = 26.0", describe(lm.raw))
 		return nil
+	}
+	if out, ok := curveClean(lm.m); ok {
+		c.curveFalls(where, out)
+		return out
 	}
 	var out Curve
 	seen := map[float64]string{}
@@ -675,22 +768,28 @@ func (c *collector) tags(where string, lm leafMap) map[string]float64 {
 		c.errf(where, "tags must be a table, not %s; write [stock.tags] and then lines such as \"POP\" = 23.1", describe(lm.raw))
 		return nil
 	}
-	out := map[string]float64{}
-	good := true
-	for _, k := range sortedKeys(lm.m) {
-		if !c.tagCode(where, k) {
-			good = false
-			continue
+	out := make(map[string]float64, len(lm.m))
+	if !leavesClean(lm.m, func(k string) bool { _, err := ParseTAGCode(k); return err == nil }, out) {
+		clear(out)
+		good := true
+		for _, k := range sortedKeys(lm.m) {
+			if !c.tagCode(where, k) {
+				good = false
+				continue
+			}
+			label := fmt.Sprintf("tags %q", k)
+			v, ok := c.num(where, label, val{v: lm.m[k], set: true})
+			if !ok || !c.amount(where, label, v) {
+				good = false
+				continue
+			}
+			out[k] = v
 		}
-		label := fmt.Sprintf("tags %q", k)
-		v, ok := c.num(where, label, val{v: lm.m[k], set: true})
-		if !ok || !c.amount(where, label, v) {
-			good = false
-			continue
+		if !good {
+			return nil
 		}
-		out[k] = v
 	}
-	if !good || len(out) == 0 {
+	if len(out) == 0 {
 		return nil
 	}
 	c.checkSum(where, "tags", "mol%", out, false)
