@@ -459,11 +459,10 @@ type procModel struct {
 	sfcTemps []float64 // their temperatures
 	// The spec's demands on the reactor ([process] through, feed_ratio):
 	// through bounds Σ z (% of batch), nil when free; ratio[k] is feed
-	// stock k's fraction of the feed, nil when free. With free set the LP
-	// holds neither (for the diagnosis of an impossible demand).
+	// stock k's fraction of the feed, nil when free. Diagnoses of other
+	// demands work on a copy (procModel.with).
 	through *catalogue.Bound
 	ratio   []float64
-	free    bool
 }
 
 // newProcModel checks the [process] step against the model (what build's
@@ -677,9 +676,6 @@ func (pm *procModel) lp(lin *sfcLin, at *procPoint, delta float64) *model {
 		coef[j], coef[n+k] = 1, -1
 		m.addRow("direct."+b.colName[j], coef, 0, math.Inf(1))
 	}
-	if pm.free {
-		return m
-	}
 	if t := pm.through; t != nil {
 		clear(coef)
 		for k := range pm.feed {
@@ -707,7 +703,7 @@ const throughKey = "process.through"
 // throughRow is the report row of the through bound in an LP of pm.lp:
 // after the base rows and the K "direct" rows.
 func (pm *procModel) throughRow() (extraRow, bool) {
-	if pm.through == nil || pm.free {
+	if pm.through == nil {
 		return extraRow{}, false
 	}
 	return extraRow{at: pm.base.nRows + len(pm.feed), info: rowInfo{
@@ -811,6 +807,15 @@ func reportTemps(spec *catalogue.Spec, opt Options) []float64 {
 // through it or a fixed feed.
 func (pm *procModel) demands() bool { return pm.through != nil || pm.ratio != nil }
 
+// with is pm with the reactor demands through and ratio (nil: none) in
+// place of the spec's: a copy sharing everything else, for the diagnoses
+// of other demands.
+func (pm *procModel) with(through *catalogue.Bound, ratio []float64) *procModel {
+	q := *pm
+	q.through, q.ratio = through, ratio
+	return &q
+}
+
 // demandInfeasible reports an impossible spec whose reactor demands are
 // the cause (ok true): the largest share of the batch that can pass
 // through the reactor under the limits of lin (every linear limit, and the
@@ -830,17 +835,12 @@ func (pm *procModel) demandInfeasible(eng *engine, res *Result, lin *sfcLin) (*R
 		}
 		return s, nil
 	}
-	pm.free = true
-	s, err := solve(pm.lp(lin, nil, 0))
-	pm.free = false
+	s, err := solve(pm.with(nil, nil).lp(lin, nil, 0))
 	if err != nil || s.status != solOptimal {
 		return nil, false, err // impossible without the demands: the plain diagnosis
 	}
 	// The most that can go through with the feed ratio: max Σ z.
-	save := pm.through
-	pm.through = nil
-	m := pm.lp(lin, nil, 0)
-	pm.through = save
+	m := pm.with(nil, pm.ratio).lp(lin, nil, 0)
 	clear(m.obj)
 	n := pm.lay.n()
 	for k := range pm.feed {
