@@ -83,23 +83,7 @@ func solveProcessDiag(eng *engine, pc *profileCache, buf *scratch, cat *catalogu
 	res.Process = rep
 
 	if pm.mode == "measured" {
-		m := pm.lp(pm.measuredLin(), nil, 0)
-		sol, err := eng.solveLP(m)
-		if err != nil {
-			return nil, fmt.Errorf("optimise %s: process LP: %w", specWhere(spec), err)
-		}
-		rep.Iterations = 1
-		if sol.status == solUnbounded {
-			return nil, fmt.Errorf("optimise %s: the process programme is unbounded, which a blend with shares adding to 100 %% cannot be", specWhere(spec))
-		}
-		if sol.status != solOptimal {
-			if r, ok, err := pm.demandInfeasible(eng, res, pm.measuredLin()); ok || err != nil {
-				return r, err
-			}
-			return pm.infeasible(eng, res, base, "")
-		}
-		rep.Converged = true
-		return pm.finish(res, m, sol, opt, nil, "[process] sfc = \"measured\": the interesterified fat is given the SFC of its feed as blended, because measured curves cannot show what the "+
+		return pm.once(eng, res, opt, nil, "[process] sfc = \"measured\": the interesterified fat is given the SFC of its feed as blended, because measured curves cannot show what the "+
 			"reaction does; so the reactor only adds cost here. Use sfc = \"predicted\" to let the TAG model judge what interesterification does to the melting.")
 	}
 
@@ -109,19 +93,9 @@ func solveProcessDiag(eng *engine, pc *profileCache, buf *scratch, cat *catalogu
 	}
 	if len(pm.sfcRows) == 0 {
 		// No SFC limit: one LP; the TAG model only reports the SFC.
-		m := pm.lp(pm.measuredLin(), nil, 0)
-		sol, err := eng.solveLP(m)
-		if err != nil {
-			return nil, fmt.Errorf("optimise %s: process LP: %w", specWhere(spec), err)
-		}
-		rep.Iterations, rep.Converged = 1, true
-		if sol.status != solOptimal {
-			if r, ok, err := pm.demandInfeasible(eng, res, pm.measuredLin()); ok || err != nil {
-				return r, err
-			}
-			return pm.infeasible(eng, res, base, "")
-		}
-		return pm.finish(res, m, sol, opt, wb, "[process] sfc = \"predicted\" with no SFC limit: the cheapest blend is found directly, and its SFC shown is the TAG model's for the whole blend.")
+		// Converged whatever the LP's outcome: there is no search to cap.
+		rep.Converged = true
+		return pm.once(eng, res, opt, wb, "[process] sfc = \"predicted\" with no SFC limit: the cheapest blend is found directly, and its SFC shown is the TAG model's for the whole blend.")
 	}
 	var best *slpRun
 	var last *procPoint
@@ -190,6 +164,30 @@ func solveProcessDiag(eng *engine, pc *profileCache, buf *scratch, cat *catalogu
 	return pm.finish(res, curM, curSol, opt, wb, "[process] sfc = \"predicted\": the SFC of the final blend is predicted by the TAG model for the whole blend "+
 		"(the stocks blended as they are and the interesterified fat together, so no stock needs a measured curve). The blend was found by "+
 		"trying blends step by step; the cheapest found that meets the limits is shown, and the savings per unit and price ranges hold near it.")
+}
+
+// once solves the process model as one LP, its SFC rows linear in the
+// measured curves: sfc = "measured", or "predicted" with no SFC limit (wb
+// set: the TAG model only reports the SFC). note goes first in res.Notes.
+func (pm *procModel) once(eng *engine, res *Result, opt Options, wb *wholeBlend, note string) (*Result, error) {
+	spec := pm.lay.spec
+	m := pm.lp(pm.measuredLin(), nil, 0)
+	sol, err := eng.solveLP(m)
+	if err != nil {
+		return nil, fmt.Errorf("optimise %s: process LP: %w", specWhere(spec), err)
+	}
+	res.Process.Iterations = 1
+	if sol.status == solUnbounded {
+		return nil, fmt.Errorf("optimise %s: the process programme is unbounded, which a blend with shares adding to 100 %% cannot be", specWhere(spec))
+	}
+	if sol.status != solOptimal {
+		if r, ok, err := pm.demandInfeasible(eng, res, pm.measuredLin()); ok || err != nil {
+			return r, err
+		}
+		return pm.infeasible(eng, res, pm.base, "")
+	}
+	res.Process.Converged = true
+	return pm.finish(res, m, sol, opt, wb, note)
 }
 
 // slpRun is one successive-LP search from a start point.
