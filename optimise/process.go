@@ -109,7 +109,7 @@ func solveProcessIn(eng *engine, pc *profileCache, buf *scratch, cat *catalogue.
 			why = "even the straight-line estimate of the predicted SFC admits no blend; "
 		}
 		res.Notes = append(res.Notes, fmt.Sprintf("no blend was found whose predicted SFC meets the limits (within %.2g %% solid) in %d trial blends", slpSFCTol, rep.Iterations))
-		return pm.infeasiblePredicted(eng, wb, res, base, f.last, why)
+		return pm.infeasiblePredicted(eng, wb, res, f.last, why)
 	}
 	rep.Converged = f.best.converged
 	if !f.best.converged {
@@ -141,7 +141,7 @@ func (pm *procModel) once(eng *engine, res *Result, opt Options, wb *wholeBlend,
 		if r, ok, err := pm.demandInfeasible(eng, res, pm.measuredLin()); ok || err != nil {
 			return r, err
 		}
-		return pm.infeasible(eng, res, pm.base, "")
+		return pm.infeasible(eng, res)
 	}
 	res.Process.Converged = true
 	return pm.finish(res, m, sol, opt, wb, note)
@@ -994,15 +994,15 @@ func (pm *procModel) ratioWords() string {
 
 // infeasible reports an impossible process spec with the relaxation of the
 // plain model (no reactor, measured curves).
-func (pm *procModel) infeasible(eng *engine, res *Result, base *model, why string) (*Result, error) {
+func (pm *procModel) infeasible(eng *engine, res *Result) (*Result, error) {
 	res.Status = Infeasible
 	res.Process.Feed = nil
-	r, err := pm.lay.relaxation(eng, base)
+	r, err := pm.lay.relaxation(eng, pm.base)
 	if err != nil {
 		return nil, err
 	}
 	res.Relaxation = r
-	res.Notes = append(res.Notes, why+"the change shown is for the blend without the reactor, with SFC from the measured curves")
+	res.Notes = append(res.Notes, "the change shown is for the blend without the reactor, with SFC from the measured curves")
 	return res, nil
 }
 
@@ -1010,7 +1010,7 @@ func (pm *procModel) infeasible(eng *engine, res *Result, base *model, why strin
 // relaxation of the blend model without the reactor whose SFC rows are the
 // TAG model linearised at the physical mix of last (the last blend the
 // search tried; an equal mix of the allowed stocks when there is none).
-func (pm *procModel) infeasiblePredicted(eng *engine, wb *wholeBlend, res *Result, base *model, last *procPoint, why string) (*Result, error) {
+func (pm *procModel) infeasiblePredicted(eng *engine, wb *wholeBlend, res *Result, last *procPoint, why string) (*Result, error) {
 	res.Status = Infeasible
 	res.Process.Feed = nil
 	at := pm.equalMix()
@@ -1024,7 +1024,7 @@ func (pm *procModel) infeasiblePredicted(eng *engine, wb *wholeBlend, res *Resul
 	if err != nil {
 		return nil, fmt.Errorf("optimise %s: %w", specWhere(pm.lay.spec), err)
 	}
-	m := base.clone()
+	m := pm.base.clone()
 	n := pm.lay.n()
 	for r, i := range pm.sfcRows {
 		copy(m.row(i), lin.coef[r][:n])
