@@ -58,13 +58,6 @@ func solveProcess(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (
 // solveProcessIn is solveProcess on engine eng with stock profiles from pc
 // and working buffers from buf (nil: computed, allocated), as solveIn.
 func solveProcessIn(eng *engine, pc *profileCache, buf *scratch, cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) (*Result, error) {
-	return solveProcessDiag(eng, pc, buf, cat, spec, opt, true)
-}
-
-// solveProcessDiag is solveProcessIn; with diagnose set, a predicted-SFC
-// spec found impossible whose reactor demands may be the cause is solved
-// again without them (demandSearch).
-func solveProcessDiag(eng *engine, pc *profileCache, buf *scratch, cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options, diagnose bool) (*Result, error) {
 	predicted := spec.Process == nil || spec.Process.SFC != "measured"
 	base, lay, err := buildIn(cat, spec, pc, buf, predicted)
 	if err != nil {
@@ -83,23 +76,7 @@ func solveProcessDiag(eng *engine, pc *profileCache, buf *scratch, cat *catalogu
 	res.Process = rep
 
 	if pm.mode == "measured" {
-		m := pm.lp(pm.measuredLin(), nil, 0)
-		sol, err := eng.solveLP(m)
-		if err != nil {
-			return nil, fmt.Errorf("optimise %s: process LP: %w", specWhere(spec), err)
-		}
-		rep.Iterations = 1
-		if sol.status == solUnbounded {
-			return nil, fmt.Errorf("optimise %s: the process programme is unbounded, which a blend with shares adding to 100 %% cannot be", specWhere(spec))
-		}
-		if sol.status != solOptimal {
-			if r, ok, err := pm.demandInfeasible(eng, res, pm.measuredLin()); ok || err != nil {
-				return r, err
-			}
-			return pm.infeasible(eng, res, base, "")
-		}
-		rep.Converged = true
-		return pm.finish(res, m, sol, opt, nil, "[process] sfc = \"measured\": the interesterified fat is given the SFC of its feed as blended, because measured curves cannot show what the "+
+		return pm.once(eng, res, opt, nil, "[process] sfc = \"measured\": the interesterified fat is given the SFC of its feed as blended, because measured curves cannot show what the "+
 			"reaction does; so the reactor only adds cost here. Use sfc = \"predicted\" to let the TAG model judge what interesterification does to the melting.")
 	}
 
@@ -109,68 +86,114 @@ func solveProcessDiag(eng *engine, pc *profileCache, buf *scratch, cat *catalogu
 	}
 	if len(pm.sfcRows) == 0 {
 		// No SFC limit: one LP; the TAG model only reports the SFC.
-		m := pm.lp(pm.measuredLin(), nil, 0)
-		sol, err := eng.solveLP(m)
-		if err != nil {
-			return nil, fmt.Errorf("optimise %s: process LP: %w", specWhere(spec), err)
-		}
-		rep.Iterations, rep.Converged = 1, true
-		if sol.status != solOptimal {
-			if r, ok, err := pm.demandInfeasible(eng, res, pm.measuredLin()); ok || err != nil {
-				return r, err
-			}
-			return pm.infeasible(eng, res, base, "")
-		}
-		return pm.finish(res, m, sol, opt, wb, "[process] sfc = \"predicted\" with no SFC limit: the cheapest blend is found directly, and its SFC shown is the TAG model's for the whole blend.")
+		// Converged whatever the LP's outcome: there is no search to cap.
+		rep.Converged = true
+		return pm.once(eng, res, opt, wb, "[process] sfc = \"predicted\" with no SFC limit: the cheapest blend is found directly, and its SFC shown is the TAG model's for the whole blend.")
 	}
-	var best *slpRun
-	var last *procPoint
-	linInfeasible := false
-	starts, n0, err := pm.starts(eng, wb)
+	f, err := pm.search(eng, wb)
 	if err != nil {
 		return nil, fmt.Errorf("optimise %s: %w", specWhere(spec), err)
 	}
-	rep.Iterations = n0
+	rep.Iterations = f.iters
+	if f.best == nil {
+		if r, ok, err := pm.demandInfeasible(eng, res, pm.freeLin()); ok || err != nil {
+			return r, err
+		}
+		if pm.demands() {
+			if r, ok, err := pm.demandSearch(eng, wb, res); ok || err != nil {
+				return r, err
+			}
+		}
+		why := ""
+		if f.linInfeasible {
+			why = "even the straight-line estimate of the predicted SFC admits no blend; "
+		}
+		res.Notes = append(res.Notes, fmt.Sprintf("no blend was found whose predicted SFC meets the limits (within %.2g %% solid) in %d trial blends", slpSFCTol, rep.Iterations))
+		return pm.infeasiblePredicted(eng, wb, res, f.last, why)
+	}
+	rep.Converged = f.best.converged
+	if !f.best.converged {
+		res.Notes = append(res.Notes, fmt.Sprintf("the search stopped at its cap of %d trial blends before the blend settled: this blend meets the limits but a slightly cheaper one may exist", slpMaxIter))
+	}
+	if boxed(f.m, pm) {
+		res.Notes = append(res.Notes, "the search ended with the blend held close to its last step, so the savings per unit shown for the limits are for small moves only")
+	}
+	return pm.finish(res, f.m, f.sol, opt, wb, "[process] sfc = \"predicted\": the SFC of the final blend is predicted by the TAG model for the whole blend "+
+		"(the stocks blended as they are and the interesterified fat together, so no stock needs a measured curve). The blend was found by "+
+		"trying blends step by step; the cheapest found that meets the limits is shown, and the savings per unit and price ranges hold near it.")
+}
+
+// once solves the process model as one LP, its SFC rows linear in the
+// measured curves: sfc = "measured", or "predicted" with no SFC limit (wb
+// set: the TAG model only reports the SFC). note goes first in res.Notes.
+func (pm *procModel) once(eng *engine, res *Result, opt Options, wb *wholeBlend, note string) (*Result, error) {
+	spec := pm.lay.spec
+	m := pm.lp(pm.measuredLin(), nil, 0)
+	sol, err := eng.solveLP(m)
+	if err != nil {
+		return nil, fmt.Errorf("optimise %s: process LP: %w", specWhere(spec), err)
+	}
+	res.Process.Iterations = 1
+	if sol.status == solUnbounded {
+		return nil, fmt.Errorf("optimise %s: the process programme is unbounded, which a blend with shares adding to 100 %% cannot be", specWhere(spec))
+	}
+	if sol.status != solOptimal {
+		if r, ok, err := pm.demandInfeasible(eng, res, pm.measuredLin()); ok || err != nil {
+			return r, err
+		}
+		return pm.infeasible(eng, res)
+	}
+	res.Process.Converged = true
+	return pm.finish(res, m, sol, opt, wb, note)
+}
+
+// slpFound is what a successive-LP search (procModel.search) found.
+type slpFound struct {
+	// best is the cheapest run whose blend meets the SFC limits, nil when
+	// none does; m and sol are the LP whose duals report it: the
+	// linearisation at its blend without the trust-region box when that LP
+	// stays at the blend, otherwise best's own.
+	best          *slpRun
+	m             *model
+	sol           *solution
+	last          *procPoint // the last blend tried; nil when none
+	iters         int        // LP solves, the starts' included
+	linInfeasible bool       // some run's linearised model admitted no blend
+}
+
+// search runs the successive LP from each of pm's starts, sharing the cap
+// of slpMaxIter LP solves among them, and keeps the cheapest blend that
+// meets the SFC limits (see procModel).
+func (pm *procModel) search(eng *engine, wb *wholeBlend) (*slpFound, error) {
+	starts, n0, err := pm.starts(eng, wb)
+	if err != nil {
+		return nil, err
+	}
+	f := &slpFound{iters: n0}
 	for i, st := range starts {
-		left := slpMaxIter - rep.Iterations
+		left := slpMaxIter - f.iters
 		if left <= 0 {
 			break
 		}
 		// each start its share of what is left (the last one all of it)
 		run, err := pm.slp(eng, wb, st, max(left/(len(starts)-i), min(left, 8)))
 		if err != nil {
-			return nil, fmt.Errorf("optimise %s: %w", specWhere(spec), err)
+			return nil, err
 		}
-		rep.Iterations += run.iters
-		linInfeasible = linInfeasible || run.linInfeasible
+		f.iters += run.iters
+		f.linInfeasible = f.linInfeasible || run.linInfeasible
 		if run.cur != nil {
-			last = run.cur
+			f.last = run.cur
 		}
-		if run.sol != nil && run.viol.max <= slpSFCTol && (best == nil || run.cost < best.cost-1e-9*(1+math.Abs(best.cost))) {
-			best = run
+		if run.sol != nil && run.viol.max <= slpSFCTol && (f.best == nil || run.cost < f.best.cost-1e-9*(1+math.Abs(f.best.cost))) {
+			f.best = run
 		}
 	}
+	best := f.best
 	if best == nil {
-		if r, ok, err := pm.demandInfeasible(eng, res, pm.freeLin()); ok || err != nil {
-			return r, err
-		}
-		if pm.demands() && diagnose {
-			if r, ok, err := pm.demandSearch(eng, res, cat, opt); ok || err != nil {
-				return r, err
-			}
-		}
-		why := ""
-		if linInfeasible {
-			why = "even the straight-line estimate of the predicted SFC admits no blend; "
-		}
-		res.Notes = append(res.Notes, fmt.Sprintf("no blend was found whose predicted SFC meets the limits (within %.2g %% solid) in %d trial blends", slpSFCTol, rep.Iterations))
-		return pm.infeasiblePredicted(eng, wb, res, base, last, why)
+		return f, nil
 	}
-	rep.Converged = best.converged
-	if !best.converged {
-		res.Notes = append(res.Notes, fmt.Sprintf("the search stopped at its cap of %d trial blends before the blend settled: this blend meets the limits but a slightly cheaper one may exist", slpMaxIter))
-	}
-	curM, curSol := best.m, best.sol
+	f.m, f.sol = best.m, best.sol
 	// Duals of the linearisation at the answer without the trust-region
 	// box, when that LP stays at the answer; otherwise those of the boxed LP.
 	if lin, err := wb.linearise(best.cur); err == nil {
@@ -179,17 +202,12 @@ func solveProcessDiag(eng *engine, pc *profileCache, buf *scratch, cat *catalogu
 			p := pm.point(s.x)
 			if pm.dist(p, best.cur) < 1e3*slpStepTol && fm.objective(s.x) <= best.cost+1e-7*(1+math.Abs(best.cost)) {
 				if v, err := pm.violation(wb, p); err == nil && v.max <= slpSFCTol {
-					curM, curSol = fm, s
+					f.m, f.sol = fm, s
 				}
 			}
 		}
 	}
-	if boxed(curM, pm) {
-		res.Notes = append(res.Notes, "the search ended with the blend held close to its last step, so the savings per unit shown for the limits are for small moves only")
-	}
-	return pm.finish(res, curM, curSol, opt, wb, "[process] sfc = \"predicted\": the SFC of the final blend is predicted by the TAG model for the whole blend "+
-		"(the stocks blended as they are and the interesterified fat together, so no stock needs a measured curve). The blend was found by "+
-		"trying blends step by step; the cheapest found that meets the limits is shown, and the savings per unit and price ranges hold near it.")
+	return f, nil
 }
 
 // slpRun is one successive-LP search from a start point.
@@ -459,11 +477,10 @@ type procModel struct {
 	sfcTemps []float64 // their temperatures
 	// The spec's demands on the reactor ([process] through, feed_ratio):
 	// through bounds Σ z (% of batch), nil when free; ratio[k] is feed
-	// stock k's fraction of the feed, nil when free. With free set the LP
-	// holds neither (for the diagnosis of an impossible demand).
+	// stock k's fraction of the feed, nil when free. Trials and diagnoses
+	// of other demands work on a copy (procModel.with).
 	through *catalogue.Bound
 	ratio   []float64
-	free    bool
 }
 
 // newProcModel checks the [process] step against the model (what build's
@@ -677,9 +694,6 @@ func (pm *procModel) lp(lin *sfcLin, at *procPoint, delta float64) *model {
 		coef[j], coef[n+k] = 1, -1
 		m.addRow("direct."+b.colName[j], coef, 0, math.Inf(1))
 	}
-	if pm.free {
-		return m
-	}
 	if t := pm.through; t != nil {
 		clear(coef)
 		for k := range pm.feed {
@@ -707,7 +721,7 @@ const throughKey = "process.through"
 // throughRow is the report row of the through bound in an LP of pm.lp:
 // after the base rows and the K "direct" rows.
 func (pm *procModel) throughRow() (extraRow, bool) {
-	if pm.through == nil || pm.free {
+	if pm.through == nil {
 		return extraRow{}, false
 	}
 	return extraRow{at: pm.base.nRows + len(pm.feed), info: rowInfo{
@@ -811,6 +825,27 @@ func reportTemps(spec *catalogue.Spec, opt Options) []float64 {
 // through it or a fixed feed.
 func (pm *procModel) demands() bool { return pm.through != nil || pm.ratio != nil }
 
+// with is pm with the reactor demands through and ratio (nil: none) in
+// place of the spec's: a copy sharing everything else, for the trials and
+// diagnoses of other demands.
+func (pm *procModel) with(through *catalogue.Bound, ratio []float64) *procModel {
+	q := *pm
+	q.through, q.ratio = through, ratio
+	return &q
+}
+
+// fed is the share of the batch that blend p sends through the reactor (the
+// feed stocks above usedTol), % of batch.
+func (pm *procModel) fed(p *procPoint) float64 {
+	var Z float64
+	for _, z := range p.z {
+		if z > usedTol {
+			Z += z
+		}
+	}
+	return Z
+}
+
 // demandInfeasible reports an impossible spec whose reactor demands are
 // the cause (ok true): the largest share of the batch that can pass
 // through the reactor under the limits of lin (every linear limit, and the
@@ -830,17 +865,12 @@ func (pm *procModel) demandInfeasible(eng *engine, res *Result, lin *sfcLin) (*R
 		}
 		return s, nil
 	}
-	pm.free = true
-	s, err := solve(pm.lp(lin, nil, 0))
-	pm.free = false
+	s, err := solve(pm.with(nil, nil).lp(lin, nil, 0))
 	if err != nil || s.status != solOptimal {
 		return nil, false, err // impossible without the demands: the plain diagnosis
 	}
 	// The most that can go through with the feed ratio: max Σ z.
-	save := pm.through
-	pm.through = nil
-	m := pm.lp(lin, nil, 0)
-	pm.through = save
+	m := pm.with(nil, pm.ratio).lp(lin, nil, 0)
 	clear(m.obj)
 	n := pm.lay.n()
 	for k := range pm.feed {
@@ -876,22 +906,21 @@ func (pm *procModel) demandInfeasible(eng *engine, res *Result, lin *sfcLin) (*R
 
 // demandSearch diagnoses a predicted-SFC spec that no blend was found for
 // when its reactor demands may be the cause (ok true when they are): the
-// spec is solved again without its through minimum (the feed ratio kept),
-// then without the feed ratio; when a blend is found, the largest
-// through minimum that still admits one is found by bisection between the
-// share that blend sends through the reactor and the spec's minimum, to
-// within demandTol % of the batch, and offered as the relaxation
-// process.through.min. Each trial is a search of its own (nil profile
-// cache and buffers: the caller's model stays intact).
-func (pm *procModel) demandSearch(eng *engine, res *Result, cat *catalogue.Catalogue, opt Options) (*Result, bool, error) {
+// search is run again without the through minimum (the feed ratio kept),
+// then without the feed ratio; when a blend is found, the largest through
+// minimum that still admits one is found by bisection between the share
+// that blend sends through the reactor and the spec's minimum, to within
+// demandTol % of the batch, and offered as the relaxation
+// process.through.min. Each trial is a search of its own on the same model
+// (procModel.with).
+func (pm *procModel) demandSearch(eng *engine, wb *wholeBlend, res *Result) (*Result, bool, error) {
 	spec := pm.lay.spec
-	try := func(through *catalogue.Bound, ratio bool) (*Result, error) {
-		s := spec.Clone()
-		s.Process.Through = through
-		if !ratio {
-			s.Process.FeedRatio = nil
+	try := func(through *catalogue.Bound, ratio []float64) (*slpFound, error) {
+		f, err := pm.with(through, ratio).search(eng, wb)
+		if err != nil {
+			return nil, fmt.Errorf("optimise %s: %w", specWhere(spec), err)
 		}
-		return solveProcessDiag(eng, nil, nil, cat, s, opt, false)
+		return f, nil
 	}
 	t := pm.through
 	if t != nil && t.HasMin() && t.Min > 0 {
@@ -901,21 +930,21 @@ func (pm *procModel) demandSearch(eng *engine, res *Result, cat *catalogue.Catal
 		if rest.HasMax() {
 			loose = &rest
 		}
-		r, err := try(loose, true)
+		f, err := try(loose, pm.ratio)
 		if err != nil {
 			return nil, false, err
 		}
-		if r.Status == Optimal {
-			lo, hi := r.Process.Tonnes*100/spec.Batch, t.Min // feasible, infeasible
+		if f.best != nil {
+			lo, hi := pm.fed(pm.point(f.sol.x)), t.Min // feasible, infeasible
 			for hi-lo > demandTol {
 				mid := (lo + hi) / 2
 				b := *t
 				b.Min = mid
-				r, err := try(&b, true)
+				f, err := try(&b, pm.ratio)
 				if err != nil {
 					return nil, false, err
 				}
-				if r.Status == Optimal {
+				if f.best != nil {
 					lo = mid
 				} else {
 					hi = mid
@@ -936,17 +965,17 @@ func (pm *procModel) demandSearch(eng *engine, res *Result, cat *catalogue.Catal
 	if pm.ratio == nil {
 		return nil, false, nil
 	}
-	r, err := try(t, false)
+	f, err := try(t, nil)
 	if err != nil {
 		return nil, false, err
 	}
-	if r.Status != Optimal {
+	if f.best == nil {
 		return nil, false, nil // impossible without the demands too
 	}
 	res.Process.Feed = nil
 	res.Status = Infeasible
 	res.Notes = append(res.Notes, fmt.Sprintf("with the reactor feed held at %s no blend's predicted SFC meets the limits, but with the feed left free one does (%.2f %s per tonne): change the parts or remove feed_ratio",
-		pm.ratioWords(), r.CostPerTonne, r.Currency))
+		pm.ratioWords(), pm.costOf(pm.point(f.sol.x)), res.Currency))
 	return res, true, nil
 }
 
@@ -965,15 +994,15 @@ func (pm *procModel) ratioWords() string {
 
 // infeasible reports an impossible process spec with the relaxation of the
 // plain model (no reactor, measured curves).
-func (pm *procModel) infeasible(eng *engine, res *Result, base *model, why string) (*Result, error) {
+func (pm *procModel) infeasible(eng *engine, res *Result) (*Result, error) {
 	res.Status = Infeasible
 	res.Process.Feed = nil
-	r, err := pm.lay.relaxation(eng, base)
+	r, err := pm.lay.relaxation(eng, pm.base)
 	if err != nil {
 		return nil, err
 	}
 	res.Relaxation = r
-	res.Notes = append(res.Notes, why+"the change shown is for the blend without the reactor, with SFC from the measured curves")
+	res.Notes = append(res.Notes, "the change shown is for the blend without the reactor, with SFC from the measured curves")
 	return res, nil
 }
 
@@ -981,7 +1010,7 @@ func (pm *procModel) infeasible(eng *engine, res *Result, base *model, why strin
 // relaxation of the blend model without the reactor whose SFC rows are the
 // TAG model linearised at the physical mix of last (the last blend the
 // search tried; an equal mix of the allowed stocks when there is none).
-func (pm *procModel) infeasiblePredicted(eng *engine, wb *wholeBlend, res *Result, base *model, last *procPoint, why string) (*Result, error) {
+func (pm *procModel) infeasiblePredicted(eng *engine, wb *wholeBlend, res *Result, last *procPoint, why string) (*Result, error) {
 	res.Status = Infeasible
 	res.Process.Feed = nil
 	at := pm.equalMix()
@@ -995,7 +1024,7 @@ func (pm *procModel) infeasiblePredicted(eng *engine, wb *wholeBlend, res *Resul
 	if err != nil {
 		return nil, fmt.Errorf("optimise %s: %w", specWhere(pm.lay.spec), err)
 	}
-	m := base.clone()
+	m := pm.base.clone()
 	n := pm.lay.n()
 	for r, i := range pm.sfcRows {
 		copy(m.row(i), lin.coef[r][:n])
@@ -1023,14 +1052,13 @@ func (pm *procModel) finish(res *Result, m *model, sol *solution, opt Options, w
 	p := pm.point(sol.x)
 	rep := res.Process
 	res.Status = Optimal
-	var Z float64
 	for k, j := range pm.feed {
 		if p.z[k] > usedTol {
 			s := lay.cols[j].stock
 			rep.Feed = append(rep.Feed, Line{Stock: s.ID, Name: s.Name, Pct: p.z[k], Tonnes: p.z[k] * batch / 100})
-			Z += p.z[k]
 		}
 	}
+	Z := pm.fed(p)
 	sort.SliceStable(rep.Feed, func(a, b int) bool { return rep.Feed[a].Pct > rep.Feed[b].Pct })
 	rep.Tonnes = Z * batch / 100
 	rep.Cost = rep.Tonnes * pm.cost

@@ -33,6 +33,7 @@ func CompareRoutes(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) 
 		return nil, catalogue.Badf("%s: comparing routes needs a [process] step naming the stocks that may be interesterified (interesterify, cost)", specWhere(spec))
 	}
 	s := NewSolver()
+	defer s.Close()
 	out := make([]Route, 0, len(RouteNames))
 	for _, name := range RouteNames {
 		rs := spec.Clone()
