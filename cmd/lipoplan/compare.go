@@ -134,6 +134,7 @@ func (c compared) savedDiff() []string {
 	return c.sc.Saved.Differences(c.res)
 }
 
+// blendJSON is a blend in JSON: each stock's share (%) and tonnes.
 func blendJSON(lines []optimise.Line) []map[string]any {
 	out := []map[string]any{}
 	for _, l := range lines {

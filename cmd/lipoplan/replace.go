@@ -260,11 +260,7 @@ func replaceJSON(res *optimise.ReplaceResult, model sle.Options) map[string]any 
 	}
 	out["cost_per_tonne"] = round(r.CostPerTonne, 4)
 	out["saving_per_tonne"] = round(res.Saving, 4)
-	bl := []map[string]any{}
-	for _, l := range r.Blend {
-		bl = append(bl, map[string]any{"stock": l.Stock, "pct": round(l.Pct, 6), "tonnes": round(l.Tonnes, 6)})
-	}
-	out["blend"] = bl
+	out["blend"] = blendJSON(r.Blend)
 	curve := map[string]any{}
 	for _, p := range res.Points {
 		c := map[string]any{"incumbent": round(p.Incumbent, 3), "predicted": round(p.Predicted, 3), "blend": nil}
