@@ -143,6 +143,16 @@ func blendJSON(lines []optimise.Line) []map[string]any {
 	return out
 }
 
+// relaxJSON is a smallest relaxation in JSON: each limit's name and how far
+// it moves.
+func relaxJSON(rs []optimise.Relax) []map[string]any {
+	out := []map[string]any{}
+	for _, x := range rs {
+		out = append(out, map[string]any{"name": x.Name, "by": round(x.By, 6)})
+	}
+	return out
+}
+
 // compareJSON is the JSON shape of compare (README, JSON output).
 func compareJSON(cols []compared) map[string]any {
 	var list []map[string]any
@@ -161,11 +171,7 @@ func compareJSON(cols []compared) map[string]any {
 				s["cost_change"] = round(r.CostPerTonne-base.CostPerTonne, 4)
 			}
 		} else {
-			relax := []map[string]any{}
-			for _, x := range r.Relaxation {
-				relax = append(relax, map[string]any{"name": x.Name, "by": round(x.By, 6)})
-			}
-			s["relaxation"] = relax
+			s["relaxation"] = relaxJSON(r.Relaxation)
 		}
 		if sv := c.sc.Saved; sv != nil {
 			diff := c.savedDiff()

@@ -108,11 +108,7 @@ func planJSON(r *optimise.PlanResult) map[string]any {
 		}
 	} else {
 		out["total_cost"] = nil
-		relax := []map[string]any{}
-		for _, x := range r.Relaxation {
-			relax = append(relax, map[string]any{"name": x.Name, "by": round(x.By, 6)})
-		}
-		out["relaxation"] = relax
+		out["relaxation"] = relaxJSON(r.Relaxation)
 	}
 	out["products"] = products
 	out["stocks"] = stocks

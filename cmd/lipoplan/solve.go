@@ -152,11 +152,7 @@ func solveJSON(r *optimise.Result) map[string]any {
 		out["cost_per_tonne"] = nil
 		out["batch_cost"] = nil
 		out["properties"] = nil
-		relax := []map[string]any{}
-		for _, x := range r.Relaxation {
-			relax = append(relax, map[string]any{"name": x.Name, "by": round(x.By, 6)})
-		}
-		out["relaxation"] = relax
+		out["relaxation"] = relaxJSON(r.Relaxation)
 	}
 	out["blend"] = blendJSON(r.Blend)
 	out["limits"] = limits
