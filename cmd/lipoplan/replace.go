@@ -281,7 +281,7 @@ func replaceJSON(res *optimise.ReplaceResult, model sle.Options) map[string]any 
 	}
 	if r.Process != nil {
 		out["process"] = processJSON(r.Process)
-		out["sfc_model"] = map[string]any{"method": sle.Describe(model), "measured_error": sle.MeasuredError}
+		out["sfc_model"] = sfcModelJSON(model)
 	}
 	inc := map[float64]float64{}
 	pred := map[float64]float64{}

@@ -279,6 +279,6 @@ func routesJSON(cols []routeColumn, spec *catalogue.Spec, model sle.Options) map
 		list = append(list, m)
 	}
 	return map[string]any{"spec": spec.Name, "currency": base.Currency, "batch": spec.Batch, "feed": spec.Process.Interesterify,
-		"process_cost": spec.Process.Cost, "routes": list, "sfc_model": map[string]any{"method": sle.Describe(model), "measured_error": sle.MeasuredError},
+		"process_cost": spec.Process.Cost, "routes": list, "sfc_model": sfcModelJSON(model),
 		"caution": cautionJSON + " " + strings.ReplaceAll(processCaution, "\n", " ")}
 }

@@ -10,7 +10,6 @@ import (
 	"strings"
 	"time"
 
-	"lipoplan/blend/sle"
 	"lipoplan/catalogue"
 	"lipoplan/optimise"
 )
@@ -100,7 +99,7 @@ func (a *app) solve(args []string) error {
 	case "json":
 		out := solveJSON(res)
 		if res.Process != nil && res.Process.SFCModel == "predicted" {
-			out["sfc_model"] = map[string]any{"method": sle.Describe(model), "measured_error": sle.MeasuredError}
+			out["sfc_model"] = sfcModelJSON(model)
 		}
 		err = writeJSON(report, out)
 	case "csv":
