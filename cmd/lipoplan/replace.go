@@ -182,7 +182,7 @@ func writeReplace(w io.Writer, res *optimise.ReplaceResult, model sle.Options) {
 	fmt.Fprintln(w, "                    (measured)  (measured   (TAG model)")
 	fmt.Fprintln(w, "                                 curves)")
 	for _, p := range res.Points {
-		fmt.Fprintf(w, "  %5s C %16.1f %11s %12.1f %+9.1f %10s\n", catalogue.TempKey(p.Temp), p.Incumbent, numOrNA(p.Linear), p.Predicted, p.By,
+		fmt.Fprintf(w, "  %5s C %16.1f %11s %12.1f %+9.1f %10s\n", catalogue.TempKey(p.Temp), p.Incumbent, strconv2(p.Linear, 1), p.Predicted, p.By,
 			fmt.Sprintf("±%.1f", p.Bound+res.Tolerance-res.Requested))
 	}
 	md := res.MaxDeviation
@@ -229,13 +229,6 @@ func slipWords(mp blend.MeltingPoints) string {
 		return "not within the curve's range"
 	}
 	return fmt.Sprintf("about %.1f C", mp.Slip)
-}
-
-func numOrNA(v float64) string {
-	if math.IsNaN(v) {
-		return "n/a"
-	}
-	return strconv.FormatFloat(v, 'f', 1, 64)
 }
 
 func writeClassRow(w io.Writer, label string, c randomise.Classes, err error) {

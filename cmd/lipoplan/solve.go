@@ -370,13 +370,10 @@ func writeStocks(w io.Writer, r *optimise.Result) {
 // quantity prints a limit's value by the rounding rule of its unit: tonnes
 // to 3 decimals, shares and % solid to 2, IV, SV and Cox to 2.
 func quantity(v float64, unit string) string {
-	if math.IsNaN(v) {
-		return "n/a"
-	}
 	if unit == " t" {
-		return strconv.FormatFloat(v, 'f', 3, 64)
+		return f3(v)
 	}
-	return strconv.FormatFloat(v, 'f', 2, 64)
+	return f2(v)
 }
 
 // priceFrom is a price range's lower end: below zero or unbounded is "no
