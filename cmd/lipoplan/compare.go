@@ -134,10 +134,21 @@ func (c compared) savedDiff() []string {
 	return c.sc.Saved.Differences(c.res)
 }
 
+// blendJSON is a blend in JSON: each stock's share (%) and tonnes.
 func blendJSON(lines []optimise.Line) []map[string]any {
 	out := []map[string]any{}
 	for _, l := range lines {
 		out = append(out, map[string]any{"stock": l.Stock, "pct": round(l.Pct, 6), "tonnes": round(l.Tonnes, 6)})
+	}
+	return out
+}
+
+// relaxJSON is a smallest relaxation in JSON: each limit's name and how far
+// it moves.
+func relaxJSON(rs []optimise.Relax) []map[string]any {
+	out := []map[string]any{}
+	for _, x := range rs {
+		out = append(out, map[string]any{"name": x.Name, "by": round(x.By, 6)})
 	}
 	return out
 }
@@ -160,11 +171,7 @@ func compareJSON(cols []compared) map[string]any {
 				s["cost_change"] = round(r.CostPerTonne-base.CostPerTonne, 4)
 			}
 		} else {
-			relax := []map[string]any{}
-			for _, x := range r.Relaxation {
-				relax = append(relax, map[string]any{"name": x.Name, "by": round(x.By, 6)})
-			}
-			s["relaxation"] = relax
+			s["relaxation"] = relaxJSON(r.Relaxation)
 		}
 		if sv := c.sc.Saved; sv != nil {
 			diff := c.savedDiff()
@@ -188,23 +195,11 @@ func compareJSON(cols []compared) map[string]any {
 // cost, change against the first, blend, IV, SAFA, trans and SFC at the
 // specs' limit temperatures; then each file's note and saved result.
 func writeCompareText(w io.Writer, cols []compared) {
-	const lw, cw = 24, 16
-	type cellFunc func(i int, c compared) string
-	row := func(label string, cell cellFunc) {
-		line := fmt.Sprintf("  %-*s", lw, clip(label, lw))
-		for i, c := range cols {
-			line += fmt.Sprintf("%*s", cw, clip(cell(i, c), cw-1))
-		}
-		fmt.Fprintln(w, strings.TrimRight(line, " "))
+	res := make([]*optimise.Result, len(cols))
+	for i, c := range cols {
+		res[i] = c.res
 	}
-	found := func(f func(c compared) string) cellFunc {
-		return func(_ int, c compared) string {
-			if !c.found() {
-				return "-"
-			}
-			return f(c)
-		}
-	}
+	tb := sideTable{w: w, lw: 24, cw: 16, res: res}
 	cur := cols[0].res.Currency
 	for _, c := range cols[1:] {
 		if c.res.Currency != cur {
@@ -213,13 +208,14 @@ func writeCompareText(w io.Writer, cols []compared) {
 	}
 	fmt.Fprintln(w, "Scenarios side by side (solved now; the first is the base)")
 	fmt.Fprintln(w)
-	row("", func(i int, _ compared) string { return fmt.Sprint(i + 1) })
-	row("file", func(_ int, c compared) string { return filepath.Base(c.file) })
+	tb.row("", func(i int) string { return fmt.Sprint(i + 1) })
+	tb.row("file", func(i int) string { return filepath.Base(cols[i].file) })
 	costLabel := "cost per tonne"
 	if cur != "" {
 		costLabel += ", " + cur
 	}
-	row(costLabel, func(_ int, c compared) string {
+	tb.row(costLabel, func(i int) string {
+		c := cols[i]
 		if !c.found() {
 			return "cannot be met"
 		}
@@ -228,22 +224,17 @@ func writeCompareText(w io.Writer, cols []compared) {
 		}
 		return fmt.Sprintf("%.2f", c.res.CostPerTonne)
 	})
-	row("  change against 1", func(i int, c compared) string {
+	tb.row("  change against 1", func(i int) string {
+		c := cols[i]
 		if i == 0 || !c.found() || !cols[0].found() {
 			return ""
 		}
 		return fmt.Sprintf("%+.2f", c.res.CostPerTonne-cols[0].res.CostPerTonne)
 	})
-	res := make([]*optimise.Result, len(cols))
-	for i, c := range cols {
-		res[i] = c.res
-	}
-	blendRows(w, func(label string, cell func(i int) string) {
-		row(label, func(i int, _ compared) string { return cell(i) })
-	}, res)
+	tb.blendRows()
 	for _, t := range limitTemps(cols) {
-		row("SFC "+catalogue.TempKey(t)+" C, % solid", found(func(c compared) string {
-			if v, ok := c.res.Properties.SFC[t]; ok {
+		tb.row("SFC "+catalogue.TempKey(t)+" C, % solid", tb.found(func(i int) string {
+			if v, ok := res[i].Properties.SFC[t]; ok {
 				return fmt.Sprintf("%.1f", v)
 			}
 			return "n/a"
@@ -276,27 +267,45 @@ func writeCompareText(w io.Writer, cols []compared) {
 	fmt.Fprintln(w, cautionLine)
 }
 
-// blendRows prints the rows side-by-side reports share, one column per
-// result: the blend (every stock any column uses, the largest shares
-// first; "." where a column does not use it), IV, SAFA and trans; "-" in a
-// column without a blend. row prints one labelled row of cells.
-func blendRows(w io.Writer, row func(label string, cell func(i int) string), res []*optimise.Result) {
-	found := func(f func(r *optimise.Result) string) func(i int) string {
-		return func(i int) string {
-			if len(res[i].Blend) == 0 {
-				return "-"
-			}
-			return f(res[i])
-		}
+// sideTable prints a side-by-side report (compare, routes): a label column
+// lw wide, then a column cw wide for each result.
+type sideTable struct {
+	w      io.Writer
+	lw, cw int
+	res    []*optimise.Result
+}
+
+// row prints one labelled row, cell(i) in column i.
+func (tb sideTable) row(label string, cell func(i int) string) {
+	line := fmt.Sprintf("  %-*s", tb.lw, clip(label, tb.lw))
+	for i := range tb.res {
+		line += fmt.Sprintf("%*s", tb.cw, clip(cell(i), tb.cw-1))
 	}
-	fmt.Fprintln(w, "  blend, % of batch")
-	blends := make([][]optimise.Line, len(res))
-	for i, r := range res {
+	fmt.Fprintln(tb.w, strings.TrimRight(line, " "))
+}
+
+// found is cell, with "-" in a column without a blend.
+func (tb sideTable) found(cell func(i int) string) func(i int) string {
+	return func(i int) string {
+		if len(tb.res[i].Blend) == 0 {
+			return "-"
+		}
+		return cell(i)
+	}
+}
+
+// blendRows prints the rows side-by-side reports share: the blend (every
+// stock any column uses, the largest shares first; "." where a column does
+// not use it), IV, SAFA and trans; "-" in a column without a blend.
+func (tb sideTable) blendRows() {
+	fmt.Fprintln(tb.w, "  blend, % of batch")
+	blends := make([][]optimise.Line, len(tb.res))
+	for i, r := range tb.res {
 		blends[i] = r.Blend
 	}
 	for _, id := range tui.StocksByShare(blends...) {
-		row("    "+id, found(func(r *optimise.Result) string {
-			for _, l := range r.Blend {
+		tb.row("    "+id, tb.found(func(i int) string {
+			for _, l := range tb.res[i].Blend {
 				if l.Stock == id && l.Pct > 1e-9 {
 					return fmt.Sprintf("%.2f", l.Pct)
 				}
@@ -304,9 +313,9 @@ func blendRows(w io.Writer, row func(label string, cell func(i int) string), res
 			return "."
 		}))
 	}
-	row("IV", found(func(r *optimise.Result) string { return fmt.Sprintf("%.1f", r.Properties.IV) }))
-	row("SAFA, %", found(func(r *optimise.Result) string { return fmt.Sprintf("%.1f", r.Properties.SAFA) }))
-	row("trans, %", found(func(r *optimise.Result) string { return fmt.Sprintf("%.2f", r.Properties.Trans) }))
+	tb.row("IV", tb.found(func(i int) string { return fmt.Sprintf("%.1f", tb.res[i].Properties.IV) }))
+	tb.row("SAFA, %", tb.found(func(i int) string { return fmt.Sprintf("%.1f", tb.res[i].Properties.SAFA) }))
+	tb.row("trans, %", tb.found(func(i int) string { return fmt.Sprintf("%.2f", tb.res[i].Properties.Trans) }))
 }
 
 // savedWords is a saved result in a few words.

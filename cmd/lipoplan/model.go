@@ -78,6 +78,12 @@ func worstSigned(f sle.Fit) float64 {
 	return f.Max
 }
 
+// sfcModelJSON names the TAG model behind predicted SFC and its error as
+// measured on typical curves, for a report's JSON.
+func sfcModelJSON(opt sle.Options) map[string]any {
+	return map[string]any{"method": sle.Describe(opt), "measured_error": sle.MeasuredError}
+}
+
 // fitJSON is the JSON shape of a model fit (check --sfc-fit, calibrate).
 func fitJSON(fits []sle.Fit, opt sle.Options) map[string]any {
 	stocks := make([]map[string]any, 0, len(fits))

@@ -100,11 +100,7 @@ func planJSON(r *optimise.PlanResult) map[string]any {
 	if r.Status == optimise.Optimal {
 		out["total_cost"] = round(r.TotalCost, 2)
 		for _, p := range r.Products {
-			lines := []map[string]any{}
-			for _, l := range p.Blend {
-				lines = append(lines, map[string]any{"stock": l.Stock, "pct": round(l.Pct, 6), "tonnes": round(l.Tonnes, 6)})
-			}
-			products = append(products, map[string]any{"spec": p.Spec, "tonnes": p.Tonnes, "cost_per_tonne": round(p.CostPerTonne, 4), "blend": lines})
+			products = append(products, map[string]any{"spec": p.Spec, "tonnes": p.Tonnes, "cost_per_tonne": round(p.CostPerTonne, 4), "blend": blendJSON(p.Blend)})
 		}
 		for _, s := range r.Stocks {
 			stocks = append(stocks, map[string]any{"stock": s.Stock, "used": round(s.Used, 6), "available": finiteOrNil(s.Available, 6),
@@ -112,11 +108,7 @@ func planJSON(r *optimise.PlanResult) map[string]any {
 		}
 	} else {
 		out["total_cost"] = nil
-		relax := []map[string]any{}
-		for _, x := range r.Relaxation {
-			relax = append(relax, map[string]any{"name": x.Name, "by": round(x.By, 6)})
-		}
-		out["relaxation"] = relax
+		out["relaxation"] = relaxJSON(r.Relaxation)
 	}
 	out["products"] = products
 	out["stocks"] = stocks

@@ -182,7 +182,7 @@ func writeReplace(w io.Writer, res *optimise.ReplaceResult, model sle.Options) {
 	fmt.Fprintln(w, "                    (measured)  (measured   (TAG model)")
 	fmt.Fprintln(w, "                                 curves)")
 	for _, p := range res.Points {
-		fmt.Fprintf(w, "  %5s C %16.1f %11s %12.1f %+9.1f %10s\n", catalogue.TempKey(p.Temp), p.Incumbent, numOrNA(p.Linear), p.Predicted, p.By,
+		fmt.Fprintf(w, "  %5s C %16.1f %11s %12.1f %+9.1f %10s\n", catalogue.TempKey(p.Temp), p.Incumbent, strconv2(p.Linear, 1), p.Predicted, p.By,
 			fmt.Sprintf("±%.1f", p.Bound+res.Tolerance-res.Requested))
 	}
 	md := res.MaxDeviation
@@ -231,13 +231,6 @@ func slipWords(mp blend.MeltingPoints) string {
 	return fmt.Sprintf("about %.1f C", mp.Slip)
 }
 
-func numOrNA(v float64) string {
-	if math.IsNaN(v) {
-		return "n/a"
-	}
-	return strconv.FormatFloat(v, 'f', 1, 64)
-}
-
 func writeClassRow(w io.Writer, label string, c randomise.Classes, err error) {
 	if err != nil {
 		fmt.Fprintf(w, "  %-16s (not formed: %v)\n", label, err)
@@ -260,11 +253,7 @@ func replaceJSON(res *optimise.ReplaceResult, model sle.Options) map[string]any 
 	}
 	out["cost_per_tonne"] = round(r.CostPerTonne, 4)
 	out["saving_per_tonne"] = round(res.Saving, 4)
-	bl := []map[string]any{}
-	for _, l := range r.Blend {
-		bl = append(bl, map[string]any{"stock": l.Stock, "pct": round(l.Pct, 6), "tonnes": round(l.Tonnes, 6)})
-	}
-	out["blend"] = bl
+	out["blend"] = blendJSON(r.Blend)
 	curve := map[string]any{}
 	for _, p := range res.Points {
 		c := map[string]any{"incumbent": round(p.Incumbent, 3), "predicted": round(p.Predicted, 3), "blend": nil}
@@ -285,7 +274,7 @@ func replaceJSON(res *optimise.ReplaceResult, model sle.Options) map[string]any 
 	}
 	if r.Process != nil {
 		out["process"] = processJSON(r.Process)
-		out["sfc_model"] = map[string]any{"method": sle.Describe(model), "measured_error": sle.MeasuredError}
+		out["sfc_model"] = sfcModelJSON(model)
 	}
 	inc := map[float64]float64{}
 	pred := map[float64]float64{}

@@ -133,21 +133,6 @@ const routeLabelWidth, routeColWidth = 26, 17
 // band, and the TAG classes; then the routes that cannot meet the spec
 // with their notes, and the cautions.
 func writeRoutesText(w io.Writer, cols []routeColumn, spec *catalogue.Spec, temps []float64) {
-	row := func(label string, cell func(c routeColumn) string) {
-		line := fmt.Sprintf("  %-*s", routeLabelWidth, clip(label, routeLabelWidth))
-		for _, c := range cols {
-			line += fmt.Sprintf("%*s", routeColWidth, clip(cell(c), routeColWidth-1))
-		}
-		fmt.Fprintln(w, strings.TrimRight(line, " "))
-	}
-	found := func(f func(c routeColumn) string) func(c routeColumn) string {
-		return func(c routeColumn) string {
-			if len(c.res.Blend) == 0 {
-				return "-"
-			}
-			return f(c)
-		}
-	}
 	p := spec.Process
 	fmt.Fprintf(w, "Spec: %s (%g t batch): three routes over the same stocks\n", spec.Name, spec.Batch)
 	fmt.Fprintf(w, "Reactor feed: %s; processing %s per tonne processed", strings.Join(p.Interesterify, ", "), money(p.Cost, cols[0].res.Currency))
@@ -162,7 +147,7 @@ func writeRoutesText(w io.Writer, cols []routeColumn, spec *catalogue.Spec, temp
 		anyFound = anyFound || len(c.res.Blend) > 0
 	}
 	if anyFound {
-		writeRouteTable(w, cols, spec, temps, row, found)
+		writeRouteTable(w, cols, spec, temps)
 	}
 	for _, c := range cols {
 		if len(c.res.Blend) > 0 {
@@ -184,17 +169,23 @@ func writeRoutesText(w io.Writer, cols []routeColumn, spec *catalogue.Spec, temp
 }
 
 // writeRouteTable is the side-by-side table of writeRoutesText.
-func writeRouteTable(w io.Writer, cols []routeColumn, spec *catalogue.Spec, temps []float64, row func(string, func(routeColumn) string), found func(func(routeColumn) string) func(routeColumn) string) {
-	row("", func(c routeColumn) string { return routeTitle(c.name) })
+func writeRouteTable(w io.Writer, cols []routeColumn, spec *catalogue.Spec, temps []float64) {
+	res := make([]*optimise.Result, len(cols))
+	for i, c := range cols {
+		res[i] = c.res
+	}
+	tb := sideTable{w: w, lw: routeLabelWidth, cw: routeColWidth, res: res}
+	tb.row("", func(i int) string { return routeTitle(cols[i].name) })
 	cur := cols[0].res.Currency
-	row("cost per tonne, "+cur, func(c routeColumn) string {
-		if len(c.res.Blend) == 0 {
+	tb.row("cost per tonne, "+cur, func(i int) string {
+		if len(res[i].Blend) == 0 {
 			return "cannot be met"
 		}
-		return fmt.Sprintf("%.2f", c.res.CostPerTonne)
+		return fmt.Sprintf("%.2f", res[i].CostPerTonne)
 	})
 	base := cols[0]
-	row("  change against physical", func(c routeColumn) string {
+	tb.row("  change against physical", func(i int) string {
+		c := cols[i]
 		if c.name == "physical" || len(c.res.Blend) == 0 || len(base.res.Blend) == 0 {
 			return ""
 		}
@@ -204,23 +195,13 @@ func writeRouteTable(w io.Writer, cols []routeColumn, spec *catalogue.Spec, temp
 		}
 		return fmt.Sprintf("%+.2f", d)
 	})
-	row("through the reactor, %", found(func(c routeColumn) string {
-		if c.name == "physical" {
+	tb.row("through the reactor, %", tb.found(func(i int) string {
+		if cols[i].name == "physical" {
 			return "-"
 		}
-		return fmt.Sprintf("%.2f", c.through)
+		return fmt.Sprintf("%.2f", cols[i].through)
 	}))
-	res := make([]*optimise.Result, len(cols))
-	for i, c := range cols {
-		res[i] = c.res
-	}
-	blendRows(w, func(label string, cell func(i int) string) {
-		line := fmt.Sprintf("  %-*s", routeLabelWidth, clip(label, routeLabelWidth))
-		for i := range cols {
-			line += fmt.Sprintf("%*s", routeColWidth, clip(cell(i), routeColWidth-1))
-		}
-		fmt.Fprintln(w, strings.TrimRight(line, " "))
-	}, res)
+	tb.blendRows()
 	fmt.Fprintln(w, "  SFC, % solid (spec band)")
 	for _, t := range temps {
 		label := "    " + catalogue.TempKey(t) + " C"
@@ -229,8 +210,8 @@ func writeRouteTable(w io.Writer, cols []routeColumn, spec *catalogue.Spec, temp
 				label += " (" + bandShort(l.Bound) + ")"
 			}
 		}
-		row(label, found(func(c routeColumn) string {
-			if v, ok := c.res.Properties.SFC[t]; ok {
+		tb.row(label, tb.found(func(i int) string {
+			if v, ok := res[i].Properties.SFC[t]; ok {
 				return fmt.Sprintf("%.1f", v)
 			}
 			return "n/a"
@@ -247,7 +228,7 @@ func writeRouteTable(w io.Writer, cols []routeColumn, spec *catalogue.Spec, temp
 		{"SU2", func(s randomise.Shares) float64 { return s.SU2 }},
 		{"U3", func(s randomise.Shares) float64 { return s.U3 }},
 	} {
-		row("    "+k.label, found(func(c routeColumn) string { return fmt.Sprintf("%.1f", k.v(c.classes)) }))
+		tb.row("    "+k.label, tb.found(func(i int) string { return fmt.Sprintf("%.1f", k.v(cols[i].classes)) }))
 	}
 	fmt.Fprintln(w)
 }
@@ -298,6 +279,6 @@ func routesJSON(cols []routeColumn, spec *catalogue.Spec, model sle.Options) map
 		list = append(list, m)
 	}
 	return map[string]any{"spec": spec.Name, "currency": base.Currency, "batch": spec.Batch, "feed": spec.Process.Interesterify,
-		"process_cost": spec.Process.Cost, "routes": list, "sfc_model": map[string]any{"method": sle.Describe(model), "measured_error": sle.MeasuredError},
+		"process_cost": spec.Process.Cost, "routes": list, "sfc_model": sfcModelJSON(model),
 		"caution": cautionJSON + " " + strings.ReplaceAll(processCaution, "\n", " ")}
 }

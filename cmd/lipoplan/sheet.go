@@ -203,6 +203,7 @@ func blendSheet(r *optimise.Result, spec *catalogue.Spec, cat *catalogue.Catalog
 func f2(v float64) string { return strconv2(v, 2) }
 func f3(v float64) string { return strconv2(v, 3) }
 
+// strconv2 prints v to digits decimals, NaN (no value) as "n/a".
 func strconv2(v float64, digits int) string {
 	if math.IsNaN(v) {
 		return "n/a"

@@ -10,7 +10,6 @@ import (
 	"strings"
 	"time"
 
-	"lipoplan/blend/sle"
 	"lipoplan/catalogue"
 	"lipoplan/optimise"
 )
@@ -100,7 +99,7 @@ func (a *app) solve(args []string) error {
 	case "json":
 		out := solveJSON(res)
 		if res.Process != nil && res.Process.SFCModel == "predicted" {
-			out["sfc_model"] = map[string]any{"method": sle.Describe(model), "measured_error": sle.MeasuredError}
+			out["sfc_model"] = sfcModelJSON(model)
 		}
 		err = writeJSON(report, out)
 	case "csv":
@@ -128,16 +127,12 @@ func finiteOrNil(v float64, digits int) any {
 // solveJSON is the stable JSON shape of a solve (README, JSON output).
 func solveJSON(r *optimise.Result) map[string]any {
 	out := map[string]any{"status": string(r.Status), "engine": r.Engine, "caution": cautionJSON}
-	blendOut := []map[string]any{}
 	limits := []map[string]any{}
 	ranging := []map[string]any{}
 	if len(r.Blend) > 0 {
 		out["cost_per_tonne"] = round(r.CostPerTonne, 4)
 		out["batch_cost"] = round(r.BatchCost, 2)
 		out["properties"] = propertiesJSON(r.Properties)
-		for _, l := range r.Blend {
-			blendOut = append(blendOut, map[string]any{"stock": l.Stock, "pct": round(l.Pct, 6), "tonnes": round(l.Tonnes, 6)})
-		}
 		for _, l := range r.Limits {
 			limits = append(limits, map[string]any{
 				"name": l.Name, "label": l.Label, "value": round(l.Value, 6), "bound": round(l.Bound, 6), "room": round(l.Room(), 6),
@@ -156,13 +151,9 @@ func solveJSON(r *optimise.Result) map[string]any {
 		out["cost_per_tonne"] = nil
 		out["batch_cost"] = nil
 		out["properties"] = nil
-		relax := []map[string]any{}
-		for _, x := range r.Relaxation {
-			relax = append(relax, map[string]any{"name": x.Name, "by": round(x.By, 6)})
-		}
-		out["relaxation"] = relax
+		out["relaxation"] = relaxJSON(r.Relaxation)
 	}
-	out["blend"] = blendOut
+	out["blend"] = blendJSON(r.Blend)
 	out["limits"] = limits
 	out["ranging"] = ranging
 	if r.Process != nil {
@@ -379,13 +370,10 @@ func writeStocks(w io.Writer, r *optimise.Result) {
 // quantity prints a limit's value by the rounding rule of its unit: tonnes
 // to 3 decimals, shares and % solid to 2, IV, SV and Cox to 2.
 func quantity(v float64, unit string) string {
-	if math.IsNaN(v) {
-		return "n/a"
-	}
 	if unit == " t" {
-		return strconv.FormatFloat(v, 'f', 3, 64)
+		return f3(v)
 	}
-	return strconv.FormatFloat(v, 'f', 2, 64)
+	return f2(v)
 }
 
 // priceFrom is a price range's lower end: below zero or unbounded is "no
@@ -586,15 +574,11 @@ func demandWords(p *optimise.ProcessReport) string {
 
 // processJSON is the reactor step in JSON (additive to the README's JSON output).
 func processJSON(p *optimise.ProcessReport) map[string]any {
-	feed := []map[string]any{}
-	for _, l := range p.Feed {
-		feed = append(feed, map[string]any{"stock": l.Stock, "pct": round(l.Pct, 6), "tonnes": round(l.Tonnes, 6)})
-	}
 	sfc := map[string]float64{}
 	for t, v := range p.SFC {
 		sfc[catalogue.TempKey(t)] = round(v, 3)
 	}
-	out := map[string]any{"method": p.Method, "sfc_model": p.SFCModel, "feed": feed, "tonnes": round(p.Tonnes, 6),
+	out := map[string]any{"method": p.Method, "sfc_model": p.SFCModel, "feed": blendJSON(p.Feed), "tonnes": round(p.Tonnes, 6),
 		"cost": round(p.Cost, 4), "iterations": p.Iterations, "converged": p.Converged, "sfc": sfc, "through": nil, "feed_ratio": nil}
 	if t := p.Through; t != nil {
 		b := map[string]any{}

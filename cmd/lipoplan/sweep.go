@@ -129,14 +129,6 @@ func signed(v float64) string {
 	return fmt.Sprintf("%+.2f", v)
 }
 
-// nanOrNil writes NaN as JSON null.
-func nanOrNil(v float64, digits int) any {
-	if math.IsNaN(v) {
-		return nil
-	}
-	return round(v, digits)
-}
-
 func sweepJSON(r *optimise.SweepResult) map[string]any {
 	points := []map[string]any{}
 	for _, p := range r.Points {
@@ -145,7 +137,7 @@ func sweepJSON(r *optimise.SweepResult) map[string]any {
 			prices[id] = round(p.Prices[k], 4)
 		}
 		pt := map[string]any{"value": round(p.Value, 6), "status": string(p.Status), "blend": blendJSON(p.Blend), "prices": prices,
-			"change_per_tonne": nanOrNil(p.ChangePerTonne, 4)}
+			"change_per_tonne": finiteOrNil(p.ChangePerTonne, 4)}
 		if p.Status == optimise.Optimal {
 			pt["cost_per_tonne"] = round(p.CostPerTonne, 4)
 		} else {
@@ -163,7 +155,7 @@ func sweepJSON(r *optimise.SweepResult) map[string]any {
 		for _, x := range c.Shifts() {
 			shifts = append(shifts, map[string]any{"stock": x.Stock, "pct_before": round(x.Before, 6), "pct_after": round(x.After, 6)})
 		}
-		changes = append(changes, map[string]any{"value": round(c.At, 4), "cost_per_tonne": nanOrNil(r.BreakpointCosts[i], 4),
+		changes = append(changes, map[string]any{"value": round(c.At, 4), "cost_per_tonne": finiteOrNil(r.BreakpointCosts[i], 4),
 			"before": blendJSON(c.Before), "after": blendJSON(c.After), "shifts": shifts})
 	}
 	base := map[string]any{}
