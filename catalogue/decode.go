@@ -261,6 +261,8 @@ func syntaxHint(msg string) string {
 func (c *collector) structureError(err error) {
 	msg := strings.TrimPrefix(err.Error(), "toml: ")
 	where, key := "", ""
+	// the line and key in the decoder's type errors
+	lastKeyPattern := regexp.MustCompile(`^(?:line (\d+) )?\(last key "([^"]*)"\)`)
 	if m := lastKeyPattern.FindStringSubmatch(msg); m != nil {
 		if m[1] != "" {
 			where = "line " + m[1]
@@ -277,8 +279,6 @@ func (c *collector) structureError(err error) {
 	}
 }
 
-// lastKeyPattern picks line and key out of the decoder's type errors.
-var lastKeyPattern = regexp.MustCompile(`^(?:line (\d+) )?\(last key "([^"]*)"\)`)
 
 // keyLabel writes a key path for messages.
 func keyLabel(k toml.Key) string { return strings.Join(k, ".") }

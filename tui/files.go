@@ -4,7 +4,6 @@ import (
 	"errors"
 	"fmt"
 	"path/filepath"
-	"regexp"
 	"strings"
 )
 
@@ -27,8 +26,6 @@ type Files struct {
 // ErrReadOnly is returned for a write on a read-only workspace.
 var ErrReadOnly = errors.New("read-only server: nothing can be saved (it was started without --writable)")
 
-var plainName = regexp.MustCompile(`^[A-Za-z0-9][A-Za-z0-9._-]{0,63}$`)
-
 // ScenarioPath resolves what the user typed into the file to read or write.
 // A confined workspace accepts plain names only ("laminating-2", with or
 // without ".toml") and never leaves Dir.
@@ -46,7 +43,7 @@ func (f Files) ScenarioPath(name string) (string, error) {
 		}
 		return name, nil
 	}
-	if !plainName.MatchString(name) || strings.Contains(name, "..") {
+	if !plainScenarioName(name) {
 		return "", fmt.Errorf("scenario name %q: letters, digits, . - _ only (no folders)", name)
 	}
 	if !strings.HasSuffix(name, ".toml") {
@@ -65,4 +62,20 @@ func (f Files) CanWriteBack() error {
 		return fmt.Errorf("nothing to write back: no --stocks/--spec files were given (save with s)")
 	}
 	return nil
+}
+
+// plainScenarioName reports a name of 1 to 64 letters, digits, '.', '-' and
+// '_', starting with a letter or digit, and without "..".
+func plainScenarioName(name string) bool {
+	if name == "" || len(name) > 64 || strings.Contains(name, "..") {
+		return false
+	}
+	for i := 0; i < len(name); i++ {
+		b := name[i]
+		alnum := b >= 'A' && b <= 'Z' || b >= 'a' && b <= 'z' || b >= '0' && b <= '9'
+		if !alnum && (i == 0 || (b != '.' && b != '_' && b != '-')) {
+			return false
+		}
+	}
+	return true
 }

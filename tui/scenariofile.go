@@ -55,13 +55,14 @@ import (
 
 const scenarioFormat = 2
 
-// headerLine matches a TOML table or array-of-tables header line.
-var headerLine = regexp.MustCompile(`^(\s*)(\[\[?)\s*([^\[\]]+?)\s*(\]\]?)(.*)$`)
-
 // nest moves every table header of a TOML document under section: "[[stock]]"
 // becomes "[[stocks.stock]]"; the document's top-level keys follow a new
 // "[section]" header.
 func nest(section string, doc []byte) string {
+	// headerLine matches a TOML table or array-of-tables header line;
+	// compiled here, not at start-up, as nest runs only when a scenario is
+	// saved.
+	headerLine := regexp.MustCompile(`^(\s*)(\[\[?)\s*([^\[\]]+?)\s*(\]\]?)(.*)$`)
 	var b strings.Builder
 	b.WriteString("[" + section + "]\n")
 	for _, line := range strings.Split(strings.TrimRight(string(doc), "\n"), "\n") {

@@ -194,7 +194,13 @@ func blendSheet(r *optimise.Result, spec *catalogue.Spec, cat *catalogue.Catalog
 		d.Cautions = append(d.Cautions, strings.ReplaceAll(processCaution, "\n", " "))
 	}
 	var b bytes.Buffer
-	if err := sheetTemplate.Execute(&b, d); err != nil {
+	// The template is parsed here, when a sheet is asked for, rather than
+	// at start-up, where every command would pay for it.
+	t, err := template.New("sheet").Parse(sheetTemplate)
+	if err != nil {
+		return nil, fmt.Errorf("--sheet: %w", err)
+	}
+	if err := t.Execute(&b, d); err != nil {
 		return nil, fmt.Errorf("--sheet: %w", err)
 	}
 	return b.Bytes(), nil
@@ -413,7 +419,7 @@ func sheetChart(sfc map[float64]float64, spec *catalogue.Spec) (string, error) {
 	return svg, nil
 }
 
-var sheetTemplate = template.Must(template.New("sheet").Parse(`<!DOCTYPE html>
+const sheetTemplate = `<!DOCTYPE html>
 <html lang="en">
 <head>
 <meta charset="utf-8">
@@ -512,4 +518,4 @@ code { font-size: 0.85em; word-break: break-all; }
 </div>
 </body>
 </html>
-`))
+`
