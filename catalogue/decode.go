@@ -279,7 +279,6 @@ func (c *collector) structureError(err error) {
 	}
 }
 
-
 // keyLabel writes a key path for messages.
 func keyLabel(k toml.Key) string { return strings.Join(k, ".") }
 
