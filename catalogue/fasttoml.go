@@ -53,6 +53,9 @@ type fastParser struct {
 	// arrays of tables are kept as []*fastTable while parsing and written
 	// into their parent's map as []map[string]any when the document ends.
 	owners []*fastTable
+	// keys holds one copy of each bare key read, so that the same key in
+	// every stock ("C16:0", "price") is one string, not one each.
+	keys map[string]string
 }
 
 // maxFastDepth bounds the nesting the fast reader follows (header parts,
@@ -65,7 +68,7 @@ func fastTOML(src []byte) (map[string]any, bool) {
 	if !utf8.Valid(src) || bytes.HasPrefix(src, []byte("\xef\xbb\xbf")) {
 		return nil, false
 	}
-	p := &fastParser{src: src, root: newFastTable(true)}
+	p := &fastParser{src: src, root: newFastTable(true), keys: map[string]string{}}
 	p.cur = p.root
 	for {
 		p.ws()
@@ -257,19 +260,48 @@ func (p *fastParser) key() (string, bool) {
 	if p.pos >= len(p.src) {
 		return "", false
 	}
+	start := p.pos
 	switch p.src[p.pos] {
 	case '"':
+		if end := p.plainQuoted(); end > 0 {
+			return p.intern(p.src[start+1 : end-1]), end-start > 2
+		}
 		s, ok := p.basicString()
 		return s, ok && s != ""
 	case '\'':
 		s, ok := p.literalString()
 		return s, ok && s != ""
 	}
-	start := p.pos
 	for p.pos < len(p.src) && bareKeyByte(p.src[p.pos]) {
 		p.pos++
 	}
-	return string(p.src[start:p.pos]), p.pos > start
+	return p.intern(p.src[start:p.pos]), p.pos > start
+}
+
+// plainQuoted reads a "..." key with no escape and no control character
+// (most quoted keys: "C16:0", "20") and returns the end of it, closing
+// quote included; 0 (nothing read) for any other.
+func (p *fastParser) plainQuoted() int {
+	for i := p.pos + 1; i < len(p.src); i++ {
+		switch b := p.src[i]; {
+		case b == '"':
+			p.pos = i + 1
+			return p.pos
+		case b == '\\' || control(b):
+			return 0
+		}
+	}
+	return 0
+}
+
+// intern returns the key b as a string, one copy per distinct key.
+func (p *fastParser) intern(b []byte) string {
+	if s, ok := p.keys[string(b)]; ok {
+		return s
+	}
+	s := string(b)
+	p.keys[s] = s
+	return s
 }
 
 // value reads one value; depth counts the inline tables around it.
