@@ -260,7 +260,12 @@ func TempKey(t float64) string {
 // with nothing in it.
 func MolFractions(fa map[string]float64) (acids []FattyAcid, x []float64, err error) {
 	// one rank look-up per key, then a walk in table order
-	ranked := make([]float64, len(reference))
+	var stack [32]float64 // the reference table fits; no allocation
+	ranked := stack[:]
+	if len(reference) > len(stack) {
+		ranked = make([]float64, len(reference))
+	}
+	ranked = ranked[:len(reference)]
 	for k, w := range fa {
 		r := Rank(k)
 		if r < 0 || !(w >= 0) || math.IsInf(w, 1) {
@@ -269,6 +274,7 @@ func MolFractions(fa map[string]float64) (acids []FattyAcid, x []float64, err er
 		ranked[r] += w
 	}
 	var total float64
+	acids, x = make([]FattyAcid, 0, len(fa)), make([]float64, 0, len(fa))
 	for r, f := range reference {
 		if ranked[r] <= 0 {
 			continue

@@ -699,17 +699,27 @@ func (c *collector) checkSum(where, table, unit string, m map[string]float64, wa
 // 1,3-random-2-random relation x13 = (3x - x2)/2 (Vander Wal; Coleman), with
 // x the acid's mol% in the whole fat, should not be negative.
 func (c *collector) checkSN2(where string, fa, sn2 map[string]float64) {
-	mol := MolPercent(fa)
+	acids, x, _ := MolFractions(fa)
 	clean := true
 	for k, x2 := range sn2 {
-		if x2 > 0 && (fa[k] <= 0 || (3*mol[k]-x2)/2 < sn13Floor) {
+		if x2 <= 0 {
+			continue
+		}
+		mol := 0.0 // mol% of k in the whole fat, as MolPercent gives it
+		for i, f := range acids {
+			if f.Key == k {
+				mol = 100 * x[i]
+			}
+		}
+		if fa[k] <= 0 || (3*mol-x2)/2 < sn13Floor {
 			clean = false
 			break
 		}
 	}
-	if clean { // the common case, without a sort
+	if clean { // the common case, without a sort or a map
 		return
 	}
+	mol := MolPercent(fa)
 	for _, k := range SortedKeys(sn2) {
 		x2 := sn2[k]
 		if x2 <= 0 {
