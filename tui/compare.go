@@ -310,7 +310,7 @@ func (m *Model) compareFigures(cols []column, w, h, lw, cw int) []string {
 			})
 		}))
 	}
-	tail = append(tail, st.muted.Render(row("note", func(c column) string { return oneLine(c.sc.Note) })))
+	tail = append(tail, st.muted.Render(row("note", func(c column) string { return OneLine(c.sc.Note) })))
 	// the blend gets what room is left, largest shares first
 	ids, share := blendUnion(cols)
 	room := h - len(out) - len(tail) - 2
@@ -334,7 +334,7 @@ func (m *Model) compareFigures(cols []column, w, h, lw, cw int) []string {
 	}
 	out = append(out, tail...)
 	if c := cols[m.benchCol]; c.sc.Note != "" && len(out) < h {
-		out = append(out, st.muted.Render(fit(" "+strings.TrimSuffix(c.name, " ✎")+": "+oneLine(c.sc.Note), w)))
+		out = append(out, st.muted.Render(fit(" "+strings.TrimSuffix(c.name, " ✎")+": "+OneLine(c.sc.Note), w)))
 	}
 	return out
 }
@@ -381,9 +381,9 @@ func StocksByShare(blends ...[]optimise.Line) []string {
 	return ids
 }
 
-// oneLine flattens a note for a table cell: control characters and line
+// OneLine flattens a note for a table cell: control characters and line
 // breaks become spaces, so a note from a file cannot move the cursor.
-func oneLine(s string) string {
+func OneLine(s string) string {
 	s = strings.Map(func(r rune) rune {
 		if r < ' ' || r == 0x7f || r >= 0x80 && r < 0xa0 {
 			return ' '

@@ -348,7 +348,7 @@ func (m *Model) key(k tea.KeyPressMsg) tea.Cmd {
 	case key.Matches(k, ks.Base):
 		return m.makeBase()
 	case key.Matches(k, ks.Note):
-		return m.ask(prompt{kind: promptNote}, "note (saved with the scenario): ", oneLine(m.sc.Note))
+		return m.ask(prompt{kind: promptNote}, "note (saved with the scenario): ", OneLine(m.sc.Note))
 	default:
 		for i, b := range ks.Panel {
 			if key.Matches(k, b) {

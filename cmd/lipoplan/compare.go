@@ -243,9 +243,12 @@ func writeCompareText(w io.Writer, cols []compared) {
 	fmt.Fprintln(w)
 	fmt.Fprintln(w, "Notes and saved results")
 	for i, c := range cols {
-		fmt.Fprintf(w, "  %d %s: %s\n", i+1, c.file, c.sc.Spec.Name)
-		if c.sc.Note != "" {
-			fmt.Fprintf(w, "      note: %s\n", wrapText(c.sc.Note, 88, "            "))
+		// The note and the spec's name are shown as the workspace shows
+		// them (tui.OneLine): a control character in a saved file would
+		// otherwise act on the terminal instead of showing.
+		fmt.Fprintf(w, "  %d %s: %s\n", i+1, c.file, tui.OneLine(c.sc.Spec.Name))
+		if note := tui.OneLine(c.sc.Note); note != "" {
+			fmt.Fprintf(w, "      note: %s\n", wrapText(note, 88, "            "))
 		}
 		sv := c.sc.Saved
 		switch diff := c.savedDiff(); {

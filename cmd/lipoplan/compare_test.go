@@ -148,6 +148,19 @@ func TestCompareText(t *testing.T) {
 	}
 }
 
+// A note carrying a terminal escape sequence (ECMA-48 CSI, ESC [ 31 m)
+// and a line break is printed as one line of plain text, as the
+// workspace shows it: nothing in a saved file may act on the terminal.
+func TestCompareTextNoteControl(t *testing.T) {
+	dir := t.TempDir()
+	base, dear := savedPair(t, "shortening", "red \x1b[31malert\nsecond line", 1200)
+	a, b := saveScenario(t, dir, "a.toml", base), saveScenario(t, dir, "b.toml", dear)
+	code, out, errs := run(t, "compare", a, b)
+	require.Equal(t, 0, code, errs)
+	assert.NotContains(t, out, "\x1b")
+	assert.Contains(t, out, "note: red [31malert second line")
+}
+
 // A scenario that cannot be met is shown as such, with its relaxation in
 // JSON, and compare exits 3 as solve does.
 func TestCompareImpossible(t *testing.T) {
