@@ -56,10 +56,25 @@ func (a *app) sweep(args []string) error {
 		}
 	}
 	if in.json() {
-		return writeJSON(report, sweepJSON(r))
+		err = writeJSON(report, sweepJSON(r))
+	} else {
+		writeSweepText(report, r, spec)
 	}
-	writeSweepText(report, r, spec)
-	return nil
+	if err == nil && !sweepMet(r) {
+		return errInfeasible // exit 3, as solve: no price of the range meets the spec
+	}
+	return err
+}
+
+// sweepMet reports whether the spec is met at some price of the sweep (a
+// blend found, proven cheapest or not).
+func sweepMet(r *optimise.SweepResult) bool {
+	for _, p := range r.Points {
+		if p.Status == optimise.Optimal || p.Status == optimise.NotProven {
+			return true
+		}
+	}
+	return false
 }
 
 // parsePriceRange reads "id[,id...]=FROM:TO:STEPS"; FROM and TO are prices

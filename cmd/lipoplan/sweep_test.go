@@ -203,3 +203,18 @@ func TestSweepRelativeBadInput(t *testing.T) {
 		assert.Contains(t, errs, "--price", p)
 	}
 }
+
+// A sweep whose spec is met at no price of the range exits 3, as solve
+// does on that spec (README, exit codes); one met at some price exits 0.
+// testdata/impossible-laminating.toml is a spec the demo stocks cannot
+// meet (its header says why).
+func TestSweepImpossibleExit3(t *testing.T) {
+	spec := filepath.Join("..", "..", "testdata", "impossible-laminating.toml")
+	code, out, _ := run(t, "sweep", "--spec", spec, "--price", "palm=800:1400:3")
+	require.Equal(t, 3, code)
+	assert.Contains(t, out, "spec cannot be met")
+	code, _, _ = run(t, "solve", "--spec", spec)
+	require.Equal(t, 3, code, "solve and sweep must agree")
+	code, _, errs := run(t, "sweep", "--price", "palm=800:1400:3")
+	require.Equal(t, 0, code, errs)
+}
