@@ -267,11 +267,7 @@ func routesJSON(cols []routeColumn, spec *catalogue.Spec, model sle.Options) map
 				"SSU": round(c.classes.SSU, 4), "SU2": round(c.classes.SU2, 4), "U3": round(c.classes.U3, 4)}
 		}
 		if len(r.Relaxation) > 0 {
-			var rel []map[string]any
-			for _, x := range r.Relaxation {
-				rel = append(rel, map[string]any{"name": x.Name, "by": x.By})
-			}
-			m["relaxation"] = rel
+			m["relaxation"] = relaxJSON(r.Relaxation)
 		}
 		if len(r.Notes) > 0 {
 			m["notes"] = r.Notes
