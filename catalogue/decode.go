@@ -374,12 +374,13 @@ func readProblem(path string, err error, what string) Problems {
 	if errors.As(err, &r) {
 		fix = "give the path of a TOML file"
 	}
-	msg := fmt.Sprintf("cannot read the %s: %v; %s", what, unwrapPath(err), fix)
+	msg := fmt.Sprintf("cannot read the %s: %v; %s", what, UnwrapPath(err), fix)
 	return Problems{{File: path, Msg: msg}}
 }
 
-// unwrapPath drops the repeated path from an *os.PathError.
-func unwrapPath(err error) error {
+// UnwrapPath drops the repeated path from an *os.PathError, for a message
+// that names the file itself.
+func UnwrapPath(err error) error {
 	var pe *os.PathError
 	if errors.As(err, &pe) {
 		return pe.Err

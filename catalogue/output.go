@@ -90,18 +90,18 @@ func (o Output) resolve() (string, fs.FileInfo, error) {
 		}
 		return target, nil, nil
 	case err != nil:
-		return "", nil, &BadInput{Err: fmt.Errorf("cannot write %s: %w", target, unwrapPath(err))}
+		return "", nil, &BadInput{Err: fmt.Errorf("cannot write %s: %w", target, UnwrapPath(err))}
 	case lst.Mode()&fs.ModeSymlink != 0:
 		resolved, err := filepath.EvalSymlinks(target)
 		if err != nil {
 			dest, _ := os.Readlink(target)
-			return "", nil, Badf("%s is a symlink to %s, which cannot be reached (%v); point it at a file or give another path", target, dest, unwrapPath(err))
+			return "", nil, Badf("%s is a symlink to %s, which cannot be reached (%v); point it at a file or give another path", target, dest, UnwrapPath(err))
 		}
 		target = resolved
 	}
 	st, err := os.Stat(target)
 	if err != nil {
-		return "", nil, &BadInput{Err: fmt.Errorf("cannot write %s: %w", target, unwrapPath(err))}
+		return "", nil, &BadInput{Err: fmt.Errorf("cannot write %s: %w", target, UnwrapPath(err))}
 	}
 	if st.IsDir() {
 		return "", nil, Badf("%s is a folder; give the name of a file to write", o.Path)
@@ -137,7 +137,7 @@ func (o Output) backup(target string, st fs.FileInfo, data []byte) (string, erro
 	}
 	old, err := os.ReadFile(target)
 	if err != nil {
-		return "", &BadInput{Err: fmt.Errorf("reading %s to keep a backup before replacing it: %w", target, unwrapPath(err))}
+		return "", &BadInput{Err: fmt.Errorf("reading %s to keep a backup before replacing it: %w", target, UnwrapPath(err))}
 	}
 	if err := WriteFileAtomic(bak, old, st.Mode().Perm()); err != nil {
 		return "", &BadInput{Err: fmt.Errorf("keeping a backup of %s: %w", target, err)}
@@ -156,14 +156,14 @@ func writeInPlace(path string, mode fs.FileMode, data []byte) error {
 		return Badf("cannot write to %s: it is %s that takes no writes", path, kindOf(mode))
 	}
 	if err != nil {
-		return &BadInput{Err: fmt.Errorf("cannot write to %s: %w", path, unwrapPath(err))}
+		return &BadInput{Err: fmt.Errorf("cannot write to %s: %w", path, UnwrapPath(err))}
 	}
 	if _, err := f.Write(data); err != nil {
 		_ = f.Close()
-		return &BadInput{Err: fmt.Errorf("writing to %s: %w", path, unwrapPath(err))}
+		return &BadInput{Err: fmt.Errorf("writing to %s: %w", path, UnwrapPath(err))}
 	}
 	if err := f.Close(); err != nil {
-		return &BadInput{Err: fmt.Errorf("writing to %s: %w", path, unwrapPath(err))}
+		return &BadInput{Err: fmt.Errorf("writing to %s: %w", path, UnwrapPath(err))}
 	}
 	return nil
 }

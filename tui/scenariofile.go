@@ -3,7 +3,6 @@ package tui
 import (
 	"bytes"
 	"fmt"
-	"os"
 	"regexp"
 	"sort"
 	"strings"
@@ -212,14 +211,9 @@ func reencode(m map[string]any) ([]byte, error) {
 func LoadScenario(path string) (*Scenario, error) {
 	data, err := catalogue.ReadInput(path)
 	if err != nil {
-		return nil, catalogue.Badf("cannot read scenario %s: %v", path, unwrapPathErr(err))
+		return nil, catalogue.Badf("cannot read scenario %s: %v", path, catalogue.UnwrapPath(err))
 	}
 	return DecodeScenario(path, data)
 }
 
-func unwrapPathErr(err error) error {
-	if pe, ok := err.(*os.PathError); ok {
-		return pe.Err
-	}
-	return err
-}
+

@@ -84,7 +84,7 @@ func (m *Model) planWrite() (*writePlan, error) {
 		}
 		orig, err := catalogue.ReadInput(f.path)
 		if err != nil && !errors.Is(err, fs.ErrNotExist) {
-			return nil, fmt.Errorf("cannot read %s to write it back: %w", m.shownPath(f.path), unwrapPathErr(err))
+			return nil, fmt.Errorf("cannot read %s to write it back: %w", m.shownPath(f.path), catalogue.UnwrapPath(err))
 		}
 		p, err := f.patch(orig)
 		if err != nil {

@@ -168,7 +168,7 @@ func New(cfg Config) (*Server, error) {
 func LoadAuthorizedKeys(path string) ([]gossh.PublicKey, error) {
 	data, err := catalogue.ReadInput(path)
 	if err != nil {
-		return nil, catalogue.Badf("serve: cannot read authorized keys %s: %v", path, pathErr(err))
+		return nil, catalogue.Badf("serve: cannot read authorized keys %s: %v", path, catalogue.UnwrapPath(err))
 	}
 	var keys []gossh.PublicKey
 	sc := bufio.NewScanner(bytes.NewReader(data))
@@ -214,26 +214,18 @@ func HostKey(path string) ([]byte, error) {
 		}
 		return data, nil
 	case err != nil:
-		return nil, catalogue.Badf("serve: cannot read host key %s: %v", path, pathErr(err))
+		return nil, catalogue.Badf("serve: cannot read host key %s: %v", path, catalogue.UnwrapPath(err))
 	case st.Mode().Perm()&0o077 != 0:
 		return nil, catalogue.Badf("serve: host key %s can be read by others (mode %04o); run chmod 600 %s", path, st.Mode().Perm(), path)
 	}
 	data, err := catalogue.ReadInput(path)
 	if err != nil {
-		return nil, catalogue.Badf("serve: cannot read host key %s: %v", path, pathErr(err))
+		return nil, catalogue.Badf("serve: cannot read host key %s: %v", path, catalogue.UnwrapPath(err))
 	}
 	if _, err := gossh.ParsePrivateKey(data); err != nil {
 		return nil, catalogue.Badf("serve: host key %s is not an unencrypted private key (%v); move it away to have a new one made", path, err)
 	}
 	return data, nil
-}
-
-func pathErr(err error) error {
-	var pe *fs.PathError
-	if errors.As(err, &pe) {
-		return pe.Err
-	}
-	return err
 }
 
 // allowed is the public-key check: the offered key must equal one of the
