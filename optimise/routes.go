@@ -13,8 +13,8 @@ type Route struct {
 	Result *Result
 }
 
-// RouteNames are the routes CompareRoutes solves, in its order.
-var RouteNames = [...]string{"physical", "chemical", "enzymatic"}
+// routeNames are the routes CompareRoutes solves, in its order.
+func routeNames() [3]string { return [3]string{"physical", "chemical", "enzymatic"} }
 
 // CompareRoutes solves a spec with a [process] step three ways over the
 // same stocks and limits: blended as they are (physical: nothing through
@@ -34,8 +34,8 @@ func CompareRoutes(cat *catalogue.Catalogue, spec *catalogue.Spec, opt Options) 
 	}
 	s := NewSolver()
 	defer s.Close()
-	out := make([]Route, 0, len(RouteNames))
-	for _, name := range RouteNames {
+	out := make([]Route, 0, len(routeNames()))
+	for _, name := range routeNames() {
 		rs := spec.Clone()
 		p := rs.Process
 		p.SFC = "predicted"
