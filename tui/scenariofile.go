@@ -215,5 +215,3 @@ func LoadScenario(path string) (*Scenario, error) {
 	}
 	return DecodeScenario(path, data)
 }
-
-
