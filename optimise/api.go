@@ -2,6 +2,7 @@ package optimise
 
 import (
 	"math"
+	"sort"
 	"time"
 
 	"lipoplan/blend"
@@ -57,6 +58,7 @@ type Line struct {
 // LimitReport is one row of the model as the user wrote it.
 type LimitReport struct {
 	Name        string  // "iv.max", "sfc.20.min", "use.pko-r.max", "avail.pko-r", ...
+	Stock       string  // the stock a use.<id> or avail.<id> limit is about; "" for the others
 	Label       string  // the limit in words, e.g. "SFC at 20 °C, at least", "pko-r on hand"
 	Unit        string  // of Value and Bound, e.g. " % solid", " t", "" (IV)
 	Value       float64 // the blend's value of the limited quantity
@@ -72,6 +74,32 @@ type LimitReport struct {
 	// reports list once as such rather than as a cost.
 	Excluded bool
 	Explain  string // plain trade words, e.g. "raising the IV maximum by 1 saves 3.10 EUR/t, up to 52.5"
+}
+
+// Holding are the limits that hold the blend, dearest first (by the size
+// of their shadow price; equal ones in report order), stocks left out by
+// the spec not among them.
+func (r *Result) Holding() []LimitReport {
+	var out []LimitReport
+	for _, l := range r.Limits {
+		if l.Binding && !l.Excluded {
+			out = append(out, l)
+		}
+	}
+	sort.SliceStable(out, func(i, j int) bool { return math.Abs(out[i].ShadowPrice) > math.Abs(out[j].ShadowPrice) })
+	return out
+}
+
+// LeftOut are the stocks the spec leaves out (a [use] cap of 0), in
+// report order.
+func (r *Result) LeftOut() []string {
+	var out []string
+	for _, l := range r.Limits {
+		if l.Excluded {
+			out = append(out, l.Stock)
+		}
+	}
+	return out
 }
 
 // Room is how far the blend is from the bound, in the limit's own unit (0

@@ -115,3 +115,34 @@ func TestShadowPriceRangesByResolving(t *testing.T) {
 	t.Logf("%d range ends checked inside, %d beyond", checked, beyond)
 	assert.Greater(t, checked, 10)
 }
+
+// Holding lists the binding limits by falling size of shadow price, and a
+// stock capped at 0 (left out: ph-soy in the demo shortening) appears in LeftOut and nowhere in Holding;
+// every use.<id> and avail.<id> limit names its stock. The shadow prices
+// themselves are checked against re-solves in TestShadowPriceRangesByResolving.
+func TestHoldingAndLeftOut(t *testing.T) {
+	cat := catalogue.DemoStocks()
+	spec, ok := catalogue.DemoSpec("shortening")
+	require.True(t, ok)
+	r, err := Solve(cat, spec, Options{})
+	require.NoError(t, err)
+	require.Equal(t, Optimal, r.Status)
+	assert.Equal(t, []string{"ph-soy"}, r.LeftOut(), "the demo shortening caps ph-soy at 0")
+	h := r.Holding()
+	require.NotEmpty(t, h)
+	for i, l := range h {
+		assert.True(t, l.Binding && !l.Excluded, l.Name)
+		if i > 0 {
+			assert.GreaterOrEqual(t, math.Abs(h[i-1].ShadowPrice), math.Abs(l.ShadowPrice), "dearest first")
+		}
+	}
+	for _, l := range r.Limits {
+		if id, ok := strings.CutPrefix(l.Name, "use."); ok {
+			assert.Equal(t, id[:strings.LastIndex(id, ".")], l.Stock, l.Name)
+		} else if id, ok := strings.CutPrefix(l.Name, "avail."); ok {
+			assert.Equal(t, id, l.Stock, l.Name)
+		} else {
+			assert.Empty(t, l.Stock, l.Name)
+		}
+	}
+}

@@ -314,7 +314,7 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 			}
 		}
 		if c.use.HasMin() {
-			lr := LimitReport{Label: id + ", share at least", Unit: " %", Value: x, Bound: c.use.Min, Binding: near(x, c.use.Min), HoldsFrom: nan, HoldsTo: nan}
+			lr := LimitReport{Stock: id, Label: id + ", share at least", Unit: " %", Value: x, Bound: c.use.Min, Binding: near(x, c.use.Min), HoldsFrom: nan, HoldsTo: nan}
 			if atLo && !ruleLo && m.colLo[j] == c.use.Min {
 				lr.ShadowPrice = -d
 				lo, hi := rg.ColBoundRange(j, false)
@@ -328,7 +328,7 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 		}
 		useTight := c.use.HasMax() && c.use.Max <= c.availPct
 		if c.use.HasMax() {
-			lr := LimitReport{Label: id + ", share at most", Unit: " %", Value: x, Bound: c.use.Max, Binding: near(x, c.use.Max), HoldsFrom: nan, HoldsTo: nan, Excluded: c.use.Max <= 0}
+			lr := LimitReport{Stock: id, Label: id + ", share at most", Unit: " %", Value: x, Bound: c.use.Max, Binding: near(x, c.use.Max), HoldsFrom: nan, HoldsTo: nan, Excluded: c.use.Max <= 0}
 			if atUp && useTight && m.colUp[j] == c.use.Max {
 				lr.ShadowPrice = -d
 				lo, hi := rg.ColBoundRange(j, true)
@@ -341,7 +341,7 @@ func (l *layout) report(res *Result, m *model, sol *solution, choice []bool, opt
 			add(lr)
 		}
 		if c.stock.Limited() {
-			lr := LimitReport{Label: id + " on hand", Unit: " t", Value: x * batch / 100, Bound: c.stock.Available, Binding: near(x, c.availPct), HoldsFrom: nan, HoldsTo: nan}
+			lr := LimitReport{Stock: id, Label: id + " on hand", Unit: " t", Value: x * batch / 100, Bound: c.stock.Available, Binding: near(x, c.availPct), HoldsFrom: nan, HoldsTo: nan}
 			if atUp && !useTight && m.colUp[j] == c.availPct {
 				lr.ShadowPrice = -d * 100 / batch
 				lo, hi := rg.ColBoundRange(j, true)

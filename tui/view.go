@@ -306,17 +306,7 @@ func (m *Model) blendPanel(w, h int) []string {
 		}
 		out = append(out, wrapped(w, st.head.Render("SFC %")+"       ", keepTogether(items...))...)
 	}
-	var holding []optimise.LimitReport
-	var left []string
-	for _, l := range r.Limits {
-		switch {
-		case l.Excluded:
-			left = append(left, strings.TrimSuffix(strings.TrimPrefix(l.Name, "use."), ".max"))
-		case l.Binding:
-			holding = append(holding, l)
-		}
-	}
-	sort.SliceStable(holding, func(i, j int) bool { return math.Abs(holding[i].ShadowPrice) > math.Abs(holding[j].ShadowPrice) })
+	holding, left := r.Holding(), r.LeftOut()
 	out = append(out, "", " "+st.head.Render("What holds the blend")+st.muted.Render("  (dearest first: what moving each bound saves, and how far)"))
 	if len(holding) == 0 {
 		out = append(out, st.muted.Render("   nothing: the blend is simply the cheapest mix of the stocks allowed"))

@@ -286,31 +286,22 @@ func writeSolveText(w io.Writer, r *optimise.Result, spec *catalogue.Spec, temps
 // its bound that holds; then the others with the room they leave. Stocks
 // the spec leaves out (a [use] cap of 0) are named once.
 func writeLimits(w io.Writer, r *optimise.Result) {
-	var holding, others []optimise.LimitReport
-	var out []string
+	out := r.LeftOut()
 	gone := map[string]bool{}
-	for _, l := range r.Limits {
-		if l.Excluded {
-			id := strings.TrimSuffix(l.Name[len("use."):], ".max")
-			out, gone[id] = append(out, id), true
-		}
+	for _, id := range out {
+		gone[id] = true
 	}
-	for _, l := range r.Limits {
-		if id, ok := strings.CutPrefix(l.Name, "avail."); ok && gone[id] {
-			continue // its amount on hand is moot
-		}
-		if strings.HasPrefix(l.Name, "use.") && gone[strings.TrimSuffix(strings.TrimSuffix(l.Name[len("use."):], ".max"), ".min")] {
-			continue
-		}
-		switch {
-		case l.Excluded:
-		case l.Binding:
+	var holding, others []optimise.LimitReport
+	for _, l := range r.Holding() {
+		if !gone[l.Stock] {
 			holding = append(holding, l)
-		default:
-			others = append(others, l)
 		}
 	}
-	sort.SliceStable(holding, func(i, j int) bool { return math.Abs(holding[i].ShadowPrice) > math.Abs(holding[j].ShadowPrice) })
+	for _, l := range r.Limits {
+		if !l.Excluded && !l.Binding && !gone[l.Stock] {
+			others = append(others, l) // a left-out stock's other limits are moot
+		}
+	}
 	fmt.Fprintln(w, "What holds the blend (dearest first)")
 	if len(holding) == 0 {
 		fmt.Fprintln(w, "  nothing: the blend is simply the cheapest mix of the stocks allowed")
@@ -342,10 +333,8 @@ func writeStocks(w io.Writer, r *optimise.Result) {
 		share[l.Stock] = l.Pct
 	}
 	excluded := map[string]bool{}
-	for _, l := range r.Limits {
-		if l.Excluded {
-			excluded[strings.TrimSuffix(l.Name[len("use."):], ".max")] = true
-		}
+	for _, id := range r.LeftOut() {
+		excluded[id] = true
 	}
 	fmt.Fprintln(w, "Stocks and their prices (the blend keeps its make-up while a price stays in its range)")
 	fmt.Fprintf(w, "  %-14s %9s %11s   %s\n", "stock", "share %", "price/t", "keeps the blend / would come in")
