@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"sync"
 	"time"
 
 	"lipoplan/blend"
@@ -86,7 +87,11 @@ func (s *Snapshot) Range(id string) (optimise.Range, bool) {
 // Evaluate solves sc and derives every panel's data. It never panics: a
 // fault inside a stage is returned in Snapshot.Err so the workspace keeps
 // drawing.
-func Evaluate(sc *Scenario, rev int) (snap *Snapshot) {
+func Evaluate(sc *Scenario, rev int) *Snapshot { return evaluateWith(nil, sc, rev) }
+
+// evaluateWith is Evaluate through solver s (nil: a fresh solve), which
+// warm-starts from the last solve of the same model.
+func evaluateWith(s *sessionSolver, sc *Scenario, rev int) (snap *Snapshot) {
 	start := time.Now()
 	snap = &Snapshot{Rev: rev, Scenario: sc, At: start}
 	defer func() {
@@ -102,7 +107,7 @@ func Evaluate(sc *Scenario, rev int) (snap *Snapshot) {
 	// temperatures), so the chart shows exactly what the optimiser saw,
 	// including a reactor step's predicted SFC.
 	grid := gridTemps(spec, lo, hi)
-	res, err := optimise.Solve(cat, spec, optimise.Options{Temps: grid, Model: sc.Model})
+	res, err := s.solve(cat, spec, optimise.Options{Temps: grid, Model: sc.Model})
 	if err != nil {
 		snap.Err = err
 		return snap
@@ -170,4 +175,48 @@ func pointsOf(vals map[float64]float64) []catalogue.Point {
 	}
 	sort.Slice(out, func(i, j int) bool { return out[i].Temp < out[j].Temp })
 	return out
+}
+
+// sessionSolver is a workspace's own optimise.Solver: the edit after
+// edit of one session re-solves the same model warm, from the basis the
+// last solve ended with (a few dual or primal simplex pivots after a price
+// or limit edit, instead of a solve from scratch). The lock keeps it to
+// one solve at a time, and Close (the session's end) from racing a solve
+// still running.
+type sessionSolver struct {
+	mu sync.Mutex
+	s  *optimise.Solver
+}
+
+func newSessionSolver() *sessionSolver { return &sessionSolver{s: optimise.NewSolver()} }
+
+// solve is optimise.Solve through the session's Solver; after Close, or on
+// a nil sessionSolver, a fresh solve.
+func (ss *sessionSolver) solve(cat *catalogue.Catalogue, spec *catalogue.Spec, opt optimise.Options) (*optimise.Result, error) {
+	if ss == nil {
+		return optimise.Solve(cat, spec, opt)
+	}
+	ss.mu.Lock()
+	defer ss.mu.Unlock()
+	if ss.s == nil {
+		return optimise.Solve(cat, spec, opt)
+	}
+	defer func() {
+		if r := recover(); r != nil {
+			ss.s = nil // a fault left its state unknown: solve afresh from now on
+			panic(r)
+		}
+	}()
+	return ss.s.Solve(cat, spec, opt)
+}
+
+// close frees the Solver; later solves are fresh ones.
+func (ss *sessionSolver) close() {
+	if ss == nil {
+		return
+	}
+	ss.mu.Lock()
+	defer ss.mu.Unlock()
+	ss.s.Close()
+	ss.s = nil
 }

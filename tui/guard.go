@@ -25,6 +25,14 @@ type faultMsg struct{ err error }
 // NewGuard wraps m.
 func NewGuard(m tea.Model) *Guard { return &Guard{inner: m} }
 
+// Close closes the wrapped workspace (Model.Close) at the end of its
+// session, if it has one to close.
+func (g *Guard) Close() {
+	if c, ok := g.inner.(interface{ Close() }); ok {
+		c.Close()
+	}
+}
+
 // Fault returns the fault that stopped the workspace, or nil.
 func (g *Guard) Fault() error {
 	g.mu.Lock()

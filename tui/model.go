@@ -111,6 +111,8 @@ type Model struct {
 	keys   keyMap
 	help   help.Model
 	styles styles
+
+	solver *sessionSolver // the session's warm-starting solver (main evaluations only)
 }
 
 // New makes a workspace on copies of cat and spec. source names where they
@@ -132,6 +134,7 @@ func NewWithScenario(sc *Scenario, source string, files Files) *Model {
 		keys:   newKeyMap(),
 		help:   h,
 		styles: newStyles(),
+		solver: newSessionSolver(),
 	}
 	m.input = lineEdit{limit: 200, cursor: m.styles.cell, label: m.styles.key}
 	m.bench = []kept{m.newKept("base", sc, nil)}
@@ -167,8 +170,13 @@ func (m *Model) evaluate() tea.Cmd {
 	}
 	m.inflight = true
 	sc, rev := m.sc, m.rev
-	return func() tea.Msg { return snapshotMsg{Evaluate(sc, rev)} }
+	s := m.solver
+	return func() tea.Msg { return snapshotMsg{evaluateWith(s, sc, rev)} }
 }
+
+// Close frees the workspace's solver at the end of its session; the
+// workspace stays usable, solving afresh.
+func (m *Model) Close() { m.solver.close() }
 
 // apply makes next the current scenario, keeps the old one for undo and
 // starts its evaluation.

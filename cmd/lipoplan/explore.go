@@ -94,6 +94,7 @@ func (a *app) explore(args []string) error {
 	g := tui.NewGuard(tui.NewWithScenario(sc, src, files))
 	p := tea.NewProgram(g, tea.WithOutput(a.stdout))
 	_, err = p.Run()
+	g.Close()
 	return exploreEnd(g, err)
 }
 

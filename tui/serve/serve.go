@@ -376,8 +376,12 @@ func (s *Server) recovered(next ssh.Handler) ssh.Handler {
 	return func(sess ssh.Session) {
 		defer func() {
 			s.mu.Lock()
+			g := s.guards[sess]
 			delete(s.guards, sess)
 			s.mu.Unlock()
+			if g != nil {
+				g.Close() // the session's solver, once its last solve is done
+			}
 			if r := recover(); r != nil {
 				s.endOnFault(sess, fmt.Errorf("%v", r))
 			}
