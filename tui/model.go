@@ -648,7 +648,7 @@ func num(v float64) string {
 // nudgeStep is the step of [ and ] for a row or stock field.
 func nudgeStep(r Row) float64 {
 	switch r.Kind {
-	case RowBatch, RowMaxStocks, RowSFC, RowUse:
+	case RowBatch, RowMaxStocks, RowSFC, RowUse, RowThrough:
 		return 1
 	case RowSmallestShare:
 		return 0.5
@@ -704,7 +704,7 @@ func (m *Model) nudge(dir float64) tea.Cmd {
 			return nil
 		}
 		v := cur + dir*nudgeStep(r)
-		if r.Kind == RowUse || r.Kind == RowSFC || r.Kind == RowSmallestShare || r.Kind == RowMaxStocks {
+		if r.Kind == RowUse || r.Kind == RowSFC || r.Kind == RowSmallestShare || r.Kind == RowMaxStocks || r.Kind == RowThrough {
 			v = math.Max(0, v)
 		}
 		next, err := m.sc.WithBound(r, side, v)

@@ -120,6 +120,7 @@ const (
 	RowUse                          // inclusion of one stock, % of batch
 	RowMaxStocks                    // integer rule: at most this many stocks
 	RowSmallestShare                // integer rule: a used stock is used at no less than this %
+	RowThrough                      // [process] through: share of the batch through the reactor, %
 )
 
 // Row is one editable line of the spec. Key is the stem of the optimiser's
@@ -158,6 +159,14 @@ func (s *Scenario) Rows() []Row {
 		Row{Kind: RowMaxStocks, Key: "rules.max_stocks", Label: "max stocks", Unit: "stocks", Bound: catalogue.Bound{Min: math.Inf(-1), Max: float64(sp.Rules.MaxStocks)}},
 		Row{Kind: RowSmallestShare, Key: "rules.smallest_share", Label: "smallest share if used", Unit: "% batch", Bound: catalogue.Bound{Min: math.Inf(-1), Max: sp.Rules.SmallestShare}},
 	)
+	if sp.Process != nil {
+		b := catalogue.Bound{Min: math.Inf(-1), Max: math.Inf(1)}
+		if sp.Process.Through != nil {
+			b = *sp.Process.Through
+		}
+		// Key is the stem of the report's "process.through.min" and ".max".
+		rows = append(rows, Row{Kind: RowThrough, Key: "process.through", Label: "reactor throughput", Unit: "% batch", Bound: b})
+	}
 	return rows
 }
 
@@ -254,6 +263,19 @@ func (s *Scenario) WithBound(r Row, side Side, v float64) (*Scenario, error) {
 			return nil, fmt.Errorf("limit %s is gone", r.Key)
 		}
 		set(&sp.Use[r.index].Bound)
+	case RowThrough:
+		if sp.Process == nil {
+			return nil, fmt.Errorf("the spec has no [process] step any more")
+		}
+		b := catalogue.Bound{Min: math.Inf(-1), Max: math.Inf(1)}
+		if sp.Process.Through != nil {
+			b = *sp.Process.Through
+		}
+		set(&b)
+		sp.Process.Through = &b
+		if !b.HasMin() && !b.HasMax() {
+			sp.Process.Through = nil // no demand left: as a spec without through
+		}
 	}
 	if err := sp.Check(out.Catalogue).Err(); err != nil {
 		return nil, err
@@ -276,6 +298,10 @@ func (s *Scenario) WithoutRow(r Row) (*Scenario, error) {
 		sp.Rules.MaxStocks = 0
 	case RowSmallestShare:
 		sp.Rules.SmallestShare = 0
+	case RowThrough:
+		if sp.Process != nil {
+			sp.Process.Through = nil
+		}
 	case RowLimit:
 		sp.Limits = append(sp.Limits[:r.index:r.index], sp.Limits[r.index+1:]...)
 	case RowSFC:
@@ -467,7 +493,7 @@ func (s *Scenario) WithRelaxation(rs []optimise.Relax) (out *Scenario, skipped [
 		side, v := Max, row.Bound.Max+r.By
 		if sideName == "min" {
 			side, v = Min, row.Bound.Min-r.By
-			if row.Kind == RowSFC || row.Kind == RowUse {
+			if row.Kind == RowSFC || row.Kind == RowUse || row.Kind == RowThrough {
 				v = math.Max(v, 0)
 			}
 		}

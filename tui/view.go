@@ -642,6 +642,14 @@ func (m *Model) rowValue(r Row) (val, binds, worth string) {
 			} else {
 				val = "0.00"
 			}
+		case RowThrough:
+			if p := res.Process; p != nil {
+				fed := 0.0
+				for _, l := range p.Feed {
+					fed += l.Pct
+				}
+				val = f2(fed)
+			}
 		}
 	}
 	return val, binds, worth

@@ -71,3 +71,56 @@ func TestWarmEvaluationsMatchFresh(t *testing.T) {
 		})
 	}
 }
+
+// The reactor's throughput ([process] through, % of batch) is a row of
+// the limits panel when the spec has a [process] step: set, relaxed by R's
+// name for it (process.through.min) and dropped like any other limit row,
+// and the solve then reports the demand as the limit process.through.min.
+// The share through the reactor is checked against the feed the report
+// lists (the reactor's feed is the share of the batch it processes).
+func TestThroughRow(t *testing.T) {
+	process, ps := catalogue.LoadSpec(filepath.Join("..", "testdata", "process-margarine.toml"), catalogue.DemoStocks())
+	require.Empty(t, ps.Errors())
+	process.Process.SFC = "measured" // one LP per solve: the row's plumbing, not the TAG model, is under test
+	process.Process.Through = nil
+	sc := NewScenario(catalogue.DemoStocks(), process)
+	row := func(s *Scenario) Row {
+		for _, r := range s.Rows() {
+			if r.Kind == RowThrough {
+				return r
+			}
+		}
+		t.Fatal("no throughput row")
+		return Row{}
+	}
+	r := row(sc)
+	require.Equal(t, "process.through", r.Key)
+	require.False(t, r.Bound.HasMin() || r.Bound.HasMax(), "no demand yet")
+
+	with, err := sc.WithBound(r, Min, 40)
+	require.NoError(t, err)
+	require.NotNil(t, with.Spec.Process.Through)
+	require.Equal(t, 40.0, with.Spec.Process.Through.Min)
+	snap := Evaluate(with, 1)
+	require.NoError(t, snap.Err)
+	require.True(t, snap.Feasible())
+	lim, ok := snap.Limit("process.through.min")
+	require.True(t, ok, "the demand is reported as a limit")
+	fed := 0.0
+	for _, l := range snap.Result.Process.Feed {
+		fed += l.Pct
+	}
+	require.GreaterOrEqual(t, fed, 40-1e-6, "at least 40 % of the batch goes through")
+	require.InDelta(t, fed, lim.Value, 1e-6)
+
+	relaxed, skipped, err := with.WithRelaxation([]optimise.Relax{{Name: "process.through.min", By: 15}})
+	require.NoError(t, err)
+	require.Empty(t, skipped, "R can place the throughput demand")
+	require.Equal(t, 25.0, relaxed.Spec.Process.Through.Min)
+
+	dropped, err := relaxed.WithoutRow(row(relaxed))
+	require.NoError(t, err)
+	require.Nil(t, dropped.Spec.Process.Through)
+	_, err = sc.WithBound(r, Min, 120)
+	require.Error(t, err, "more than the whole batch is refused in the loader's words")
+}
