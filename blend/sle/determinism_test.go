@@ -48,3 +48,21 @@ func TestBlendModelSameBitsEveryBuild(t *testing.T) {
 		}
 	}
 }
+
+// A calibration's shifts are read in key order: the same file gets the
+// same verdict every run, and two spellings of one class are refused
+// rather than one of them winning at random.
+func TestOptionsFromShiftOrder(t *testing.T) {
+	bad := &catalogue.Calibration{Polymorph: "beta'", Shift: map[string]float64{"XXX": 1, "YYY": 2, "ZZZ": 3, "S3": 1}}
+	_, err := sle.OptionsFrom(bad)
+	require.Error(t, err)
+	for i := 0; i < 50; i++ {
+		_, e := sle.OptionsFrom(bad)
+		require.EqualError(t, e, err.Error())
+	}
+	require.Contains(t, err.Error(), "[shift] XXX is not a TAG class")
+	twice := &catalogue.Calibration{Polymorph: "beta'", Shift: map[string]float64{"SUS": 1, "sus": -1}}
+	_, err = sle.OptionsFrom(twice)
+	require.ErrorContains(t, err, "[shift] SUS and sus both name the class SUS")
+	require.True(t, catalogue.IsBadInput(err))
+}
