@@ -75,30 +75,51 @@ type acidConst struct {
 	acid     float64 // free acid molar mass
 }
 
-var acidConsts = func() map[string]acidConst {
-	m := map[string]acidConst{}
-	for _, f := range catalogue.FattyAcids() {
-		m[f.Key] = acidConst{fa: f, ivFactor: IVFactor(f), ester: f.EsterMolarMass(), acid: f.MolarMass()}
+// maxAcids bounds the reference table, so that Profile can lay a profile
+// out by table position in an array on the stack.
+const maxAcids = 32
+
+// acidConsts are the constants in reference-table order, acidRank the
+// position of each key in it; both read-only.
+var acidConsts, acidRank = func() ([]acidConst, map[string]int) {
+	table := catalogue.FattyAcids()
+	if len(table) > maxAcids {
+		panic(fmt.Sprintf("blend: %d fatty acids in the reference table, more than maxAcids = %d", len(table), maxAcids))
 	}
-	return m
+	cs := make([]acidConst, len(table))
+	rank := make(map[string]int, len(table))
+	for i, f := range table {
+		cs[i] = acidConst{fa: f, ivFactor: IVFactor(f), ester: f.EsterMolarMass(), acid: f.MolarMass()}
+		rank[f.Key] = i
+	}
+	return cs, rank
 }()
 
 // Profile computes the properties of one fatty-acid profile (wt% FAME). The
 // SV and mean molar mass treat the profile as the fat it came from: the FAME
 // weight fractions are turned into mole fractions with the methyl ester molar
-// masses, and the mean TAG is glycerol + 3 mean acids - 3 water.
+// masses, and the mean TAG is glycerol + 3 mean acids - 3 water. The sums run
+// in reference-table order, not the map's random one, so that the same
+// profile gives bit-identical properties every time.
 func Profile(fa map[string]float64) Properties {
 	p := Properties{FattyAcids: make(map[string]float64, len(fa))}
-	var moles, acidMass float64
+	var byRank [maxAcids]float64
 	for k, w := range fa {
 		if w == 0 {
 			continue
 		}
 		p.FattyAcids[k] = w
-		c, ok := acidConsts[k]
-		if !ok {
+		if r, ok := acidRank[k]; ok {
+			byRank[r] = w
+		}
+	}
+	var moles, acidMass float64
+	for r := range acidConsts {
+		w := byRank[r]
+		if w == 0 {
 			continue
 		}
+		c := &acidConsts[r]
 		f := c.fa
 		p.IV += w * c.ivFactor
 		switch {

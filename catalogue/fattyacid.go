@@ -3,6 +3,7 @@ package catalogue
 import (
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -170,14 +171,43 @@ func Rank(key string) int {
 	return -1
 }
 
-// SortedKeys returns the keys of a profile in reference-table order.
+// SortedKeys returns the keys of a profile in reference-table order; keys
+// outside the table come first, in byte order, so that the order never
+// depends on Go's random map iteration.
 func SortedKeys(m map[string]float64) []string {
 	keys := make([]string, 0, len(m))
 	for k := range m {
 		keys = append(keys, k)
 	}
-	sort.Slice(keys, func(i, j int) bool { return Rank(keys[i]) < Rank(keys[j]) })
+	sort.Slice(keys, func(i, j int) bool {
+		ri, rj := Rank(keys[i]), Rank(keys[j])
+		if ri != rj {
+			return ri < rj
+		}
+		return keys[i] < keys[j]
+	})
 	return keys
+}
+
+// SumValues adds the values of m in ascending order of value. Go ranges
+// over a map in a random order and floating-point addition is not
+// associative, so a plain range would give totals that differ in the last
+// bits from run to run; sorting the values first makes the total depend
+// on the values alone, whatever their keys. For values of one sign,
+// increasing order also has the smaller error bound (Higham, Accuracy and
+// Stability of Numerical Algorithms, 2nd ed., ch. 4; from memory).
+func SumValues(m map[string]float64) float64 {
+	var buf [32]float64 // a profile's entries fit without an allocation
+	vals := buf[:0]
+	for _, v := range m {
+		vals = append(vals, v)
+	}
+	slices.Sort(vals)
+	var sum float64
+	for _, v := range vals {
+		sum += v
+	}
+	return sum
 }
 
 // ParseTAGCode splits a letter-code TAG name such as "POP" or "LaLaM" into its

@@ -681,10 +681,7 @@ func curveClean(m map[string]any) (Curve, bool) {
 // checkSum reports a profile that does not sum to 100: an error outside
 // +-1, a warning outside +-0.3 when warn is set.
 func (c *collector) checkSum(where, table, unit string, m map[string]float64, warn bool) {
-	var sum float64
-	for _, v := range m {
-		sum += v
-	}
+	sum := SumValues(m) // in a fixed order: the same file gets the same verdict every run
 	d := math.Abs(sum - 100)
 	switch {
 	case d > sumTolerance:

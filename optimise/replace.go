@@ -2,7 +2,9 @@ package optimise
 
 import (
 	"fmt"
+	"maps"
 	"math"
+	"slices"
 	"sort"
 	"strings"
 
@@ -105,8 +107,8 @@ func (r Replacement) target(cat *catalogue.Catalogue) (*catalogue.Stock, []float
 	if math.IsNaN(r.Tolerance) || r.Tolerance < 0 || r.Tolerance > 100 {
 		return nil, nil, nil, catalogue.Badf("tolerance %v %% solid is outside 0..100; give e.g. 3", r.Tolerance)
 	}
-	for t, v := range r.PerTemp {
-		if math.IsNaN(v) || v < 0 || v > 100 {
+	for _, t := range slices.Sorted(maps.Keys(r.PerTemp)) { // the coldest bad one, every run
+		if v := r.PerTemp[t]; math.IsNaN(v) || v < 0 || v > 100 {
 			return nil, nil, nil, catalogue.Badf("tolerance at %s °C = %v %% solid is outside 0..100", catalogue.TempKey(t), v)
 		}
 	}

@@ -137,6 +137,20 @@ func TestReplaceBadInput(t *testing.T) {
 	}
 }
 
+// Of several bad per-temperature tolerances the coldest is named, on every
+// call: the same command gives the same message each run (reproducible
+// reports, common practice), not whichever Go's random map order met first.
+func TestReplaceBadPerTempSameMessage(t *testing.T) {
+	cat := catalogue.DemoStocks()
+	r := Replacement{Incumbent: "ph-soy", Tolerance: 3, PerTemp: map[float64]float64{10: -1, 20: 101, 30: -2, 35: 200, 40: math.NaN()}, TransMax: 1, Batch: 20}
+	for i := 0; i < 20; i++ {
+		_, err := Replace(cat, r, Options{})
+		require.Error(t, err)
+		require.True(t, catalogue.IsBadInput(err))
+		require.Contains(t, err.Error(), "tolerance at 10 °C = -1 % solid", "call %d", i)
+	}
+}
+
 // BenchmarkReplaceWithReactor is a replacement with the reactor and the
 // TAG model's SFC (target: under 300 ms) on the demo data.
 func BenchmarkReplaceWithReactor(b *testing.B) {

@@ -198,13 +198,19 @@ func (wb *wholeBlend) report(p *procPoint, temps []float64) (whole, product map[
 // typical curves (sle.MeasuredError).
 func (wb *wholeBlend) notes(used []blend.Part) []string {
 	var out []string
-	inModel := map[string]bool{}
+	// the model's notes once each, in the model's order (not a map's
+	// random one, which shuffled the report's notes from run to run)
+	var inModel []string
+	seen := map[string]bool{}
 	for _, n := range wb.model.Notes() {
-		inModel[n] = true
+		if !seen[n] {
+			seen[n] = true
+			inModel = append(inModel, n)
+		}
 	}
 	var fits []string
 	for _, pt := range used {
-		for n := range inModel {
+		for _, n := range inModel {
 			if strings.Contains(n, fmt.Sprintf("%q", pt.Stock.ID)) {
 				out = append(out, n)
 			}

@@ -2,6 +2,7 @@ package randomise
 
 import (
 	"fmt"
+	"slices"
 	"strings"
 
 	"lipoplan/catalogue"
@@ -43,20 +44,23 @@ func Harden(s catalogue.Stock) (catalogue.Stock, error) {
 	out.Name = s.Name + ", fully hardened"
 	out.SFC = nil
 	if len(s.FattyAcids) > 0 {
+		// in table order throughout: several acids harden to one (C18:1,
+		// C18:2, C18:3 to C18:0), and sums in Go's random map order would
+		// differ in the last bits from run to run
 		moles := map[string]float64{}
-		for k, w := range s.FattyAcids {
+		for _, k := range catalogue.SortedKeys(s.FattyAcids) {
 			f, _ := catalogue.Lookup(k) // CheckProfiles: every key is in the table
 			h, err := Saturated(f)
 			if err != nil {
 				return catalogue.Stock{}, fmt.Errorf("stock %q: %w", s.ID, err)
 			}
-			moles[h.Key] += w / f.EsterMolarMass()
+			moles[h.Key] += s.FattyAcids[k] / f.EsterMolarMass()
 		}
 		var total float64
 		fa := make(map[string]float64, len(moles))
-		for k, n := range moles {
+		for _, k := range catalogue.SortedKeys(moles) {
 			f, _ := catalogue.Lookup(k)
-			fa[k] = n * f.EsterMolarMass()
+			fa[k] = moles[k] * f.EsterMolarMass()
 			total += fa[k]
 		}
 		if total > 0 {
@@ -68,7 +72,8 @@ func Harden(s catalogue.Stock) (catalogue.Stock, error) {
 	}
 	if s.SN2 != nil {
 		sn2 := map[string]float64{}
-		for k, v := range s.SN2 {
+		for _, k := range catalogue.SortedKeys(s.SN2) {
+			v := s.SN2[k]
 			f, _ := catalogue.Lookup(k)
 			h, err := Saturated(f)
 			if err != nil {
@@ -80,7 +85,13 @@ func Harden(s catalogue.Stock) (catalogue.Stock, error) {
 	}
 	if s.TAGs != nil {
 		tags := map[string]float64{}
-		for code, v := range s.TAGs {
+		codes := make([]string, 0, len(s.TAGs))
+		for code := range s.TAGs {
+			codes = append(codes, code)
+		}
+		slices.Sort(codes) // several codes harden to one: sum in a fixed order
+		for _, code := range codes {
+			v := s.TAGs[code]
 			fs, err := catalogue.ParseTAGCode(code)
 			if err != nil { // CheckProfiles refuses it first
 				return catalogue.Stock{}, fmt.Errorf("randomise: stock %q: %w", s.ID, err)

@@ -400,12 +400,14 @@ func stockSource(st *catalogue.Stock, acids []catalogue.FattyAcid, needSN2 bool)
 		}
 	} else {
 		x2 = make([]float64, n)
-		var sum float64
 		for k, v := range st.SN2 {
 			if v > 0 {
 				x2[indexOf(acids, k)] = v
-				sum += v
 			}
+		}
+		var sum float64 // in acid order, not the map's random one
+		for _, v := range x2 {
+			sum += v
 		}
 		if sum <= 0 {
 			return source{}, nil, catalogue.Badf("stock %q: the sn-2 profile adds up to 0; give mol%% at sn-2 or leave [stock.sn2] out", st.ID)
@@ -439,12 +441,19 @@ func stockSource(st *catalogue.Stock, acids []catalogue.FattyAcid, needSN2 bool)
 func measuredSource(st *catalogue.Stock, acids []catalogue.FattyAcid) (source, []string, error) {
 	n := len(acids)
 	ma := acidMasses(acids)
+	// codes in byte order: a code and its mirror image (PPO, OPP) add to
+	// the same species, and the sums must not follow Go's random map order
+	codes := make([]string, 0, len(st.TAGs))
+	for code, v := range st.TAGs {
+		if v != 0 {
+			codes = append(codes, code)
+		}
+	}
+	slices.Sort(codes)
 	acc := map[int]float64{}
 	var sum float64
-	for code, v := range st.TAGs {
-		if v == 0 {
-			continue
-		}
+	for _, code := range codes {
+		v := st.TAGs[code]
 		fs, err := catalogue.ParseTAGCode(code)
 		if err != nil { // Stock.CheckProfiles refuses it first
 			return source{}, nil, fmt.Errorf("randomise: stock %q: %w", st.ID, err)

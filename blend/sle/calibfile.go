@@ -3,6 +3,7 @@ package sle
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 
 	"lipoplan/catalogue"
@@ -21,7 +22,17 @@ func OptionsFrom(cal *catalogue.Calibration) (Options, error) {
 		return Options{}, catalogue.Badf("%w", err)
 	}
 	opt := Options{Polymorph: p, Solids: sm}
-	for k, v := range cal.Shift {
+	// keys in byte order, not Go's random map order: the first problem
+	// reported, and which of two spellings of one class wins, must be the
+	// same on every run
+	keys := make([]string, 0, len(cal.Shift))
+	for k := range cal.Shift {
+		keys = append(keys, k)
+	}
+	slices.Sort(keys)
+	given := make([]string, len(opt.Shift))
+	for _, k := range keys {
+		v := cal.Shift[k]
 		c := -1
 		for i := range opt.Shift {
 			if strings.EqualFold(k, ClassName(i)) {
@@ -38,6 +49,10 @@ func OptionsFrom(cal *catalogue.Calibration) (Options, error) {
 		if math.Abs(v) > MaxShift {
 			return Options{}, catalogue.Badf("[shift] %s = %v K is beyond the model's bound of %v K; refit with lipoplan calibrate", k, v, MaxShift)
 		}
+		if given[c] != "" {
+			return Options{}, catalogue.Badf("[shift] %s and %s both name the class %s; keep one of them", given[c], k, ClassName(c))
+		}
+		given[c] = k
 		opt.Shift[c] = v
 	}
 	return opt, nil
