@@ -165,7 +165,7 @@ func (s *Scenario) Rows() []Row {
 			b = *sp.Process.Through
 		}
 		// Key is the stem of the report's "process.through.min" and ".max".
-		rows = append(rows, Row{Kind: RowThrough, Key: "process.through", Label: "reactor throughput", Unit: "% batch", Bound: b})
+		rows = append(rows, Row{Kind: RowThrough, Key: "process.through", Label: "reactor share", Unit: "% batch", Bound: b})
 	}
 	return rows
 }
