@@ -521,7 +521,10 @@ func (m *Model) limitsPanel(w, h int) []string {
 	st := m.styles
 	rows := m.sc.Rows()
 	cur := m.currency()
-	out := []string{st.muted.Render("   " + fit("limit", 14) + rfit("min", 9) + rfit("max", 9) + rfit("blend", 9) + "  " +
+	// The label column grows on a wide window, up to the longest label
+	// ("smallest share if used"); the other columns take 70 cells.
+	lw := max(14, min(24, w-70))
+	out := []string{st.muted.Render("   " + fit("limit", lw) + rfit("min", 9) + rfit("max", 9) + rfit("blend", 9) + "  " +
 		fit("binds", 7) + rfit("saves "+cur+"/t per 1", 17) + "  unit")}
 	n := max(1, h-4)
 	off := m.window(panelLimits, len(rows), n)
@@ -570,7 +573,7 @@ func (m *Model) limitsPanel(w, h int) []string {
 				worth = fmt.Sprintf("by %s", f2(x.By))
 			}
 		}
-		out = append(out, mark+" "+fit(r.Label, 14)+minC+maxC+rfit(val, 9)+"  "+bindC+rfit(worth, 17)+"  "+st.muted.Render(r.Unit))
+		out = append(out, mark+" "+fit(r.Label, lw)+minC+maxC+rfit(val, 9)+"  "+bindC+rfit(worth, 17)+"  "+st.muted.Render(r.Unit))
 	}
 	for len(out) < h-2 {
 		out = append(out, "")
