@@ -420,13 +420,8 @@ func (c *collector) num(where, label string, x val) (float64, bool) {
 	if !x.set {
 		return 0, false
 	}
-	var f float64
-	switch v := x.v.(type) {
-	case int64:
-		f = float64(v)
-	case float64:
-		f = v
-	default:
+	f, ok := number(x.v)
+	if !ok {
 		c.errf(where, "%s must be a number, not %s; write a plain number without quotes", label, describe(x.v))
 		return 0, false
 	}
@@ -434,6 +429,17 @@ func (c *collector) num(where, label string, x val) (float64, bool) {
 		return 0, false
 	}
 	return f, true
+}
+
+// number reads a TOML integer or float as a float64.
+func number(v any) (float64, bool) {
+	switch x := v.(type) {
+	case int64:
+		return float64(x), true
+	case float64:
+		return x, true
+	}
+	return 0, false
 }
 
 // finite reports a value that is NaN or infinite, naming label.

@@ -625,16 +625,8 @@ func (c *collector) faMap(where, table string, lm leafMap) (map[string]float64, 
 // messages.
 func leavesClean(m map[string]any, keyOK func(string) bool, out map[string]float64) bool {
 	for k, v := range m {
-		var f float64
-		switch x := v.(type) {
-		case int64:
-			f = float64(x)
-		case float64:
-			f = x
-		default:
-			return false
-		}
-		if !(f >= 0) || math.IsInf(f, 1) || !keyOK(k) {
+		f, ok := number(v)
+		if !ok || !(f >= 0) || math.IsInf(f, 1) || !keyOK(k) {
 			return false
 		}
 		out[k] = f
@@ -652,16 +644,8 @@ func curveClean(m map[string]any) (Curve, bool) {
 		if err != nil || !(t >= MinTemp && t <= MaxTemp) {
 			return nil, false
 		}
-		var f float64
-		switch x := v.(type) {
-		case int64:
-			f = float64(x)
-		case float64:
-			f = x
-		default:
-			return nil, false
-		}
-		if !(f >= 0 && f <= 100) {
+		f, ok := number(v)
+		if !ok || !(f >= 0 && f <= 100) {
 			return nil, false
 		}
 		out = append(out, Point{Temp: t, Solid: f})
