@@ -22,17 +22,10 @@ func scaleFactors(p *Problem, rs, cs []float64, work *[]float64) {
 	if len(p.Value) == 0 {
 		return
 	}
-	// |a_ij| once; every pass reads it with the current factors.
-	w := resize(*work, len(p.Value)+3*p.Rows+p.Cols)
+	w := resize(*work, 3*p.Rows+p.Cols)
 	*work = w
-	abs, w := w[:len(p.Value)], w[len(p.Value):]
 	rmin, rmax, saveR, saveC := w[:p.Rows], w[p.Rows:2*p.Rows], w[2*p.Rows:3*p.Rows], w[3*p.Rows:]
-	for k, v := range p.Value {
-		if v < 0 {
-			v = -v
-		}
-		abs[k] = v
-	}
+	val := p.Value // every pass reads |a_ij| with the current factors
 	prev := math.Inf(1)
 	for pass := 0; pass < 8; pass++ {
 		copy(saveR, rs)
@@ -44,7 +37,7 @@ func scaleFactors(p *Problem, rs, cs []float64, work *[]float64) {
 			c := cs[j]
 			for k := p.Start[j]; k < p.Start[j+1]; k++ {
 				i := p.Index[k]
-				a := abs[k] * c
+				a := math.Abs(val[k]) * c
 				if a < rmin[i] {
 					rmin[i] = a
 				}
@@ -74,7 +67,7 @@ func scaleFactors(p *Problem, rs, cs []float64, work *[]float64) {
 		for j := 0; j < p.Cols; j++ {
 			cmin, cmax := math.Inf(1), 0.0
 			for k := p.Start[j]; k < p.Start[j+1]; k++ {
-				a := abs[k] * rs[p.Index[k]]
+				a := math.Abs(val[k]) * rs[p.Index[k]]
 				if a < cmin {
 					cmin = a
 				}
@@ -104,7 +97,7 @@ func scaleFactors(p *Problem, rs, cs []float64, work *[]float64) {
 	for j := 0; j < p.Cols; j++ {
 		hi := 0.0
 		for k := p.Start[j]; k < p.Start[j+1]; k++ {
-			hi = max(hi, abs[k]*rs[p.Index[k]])
+			hi = max(hi, math.Abs(val[k])*rs[p.Index[k]])
 		}
 		if hi > 0 {
 			cs[j] = pow2(1 / hi)

@@ -180,18 +180,23 @@ func (s *Simplex) Close() {}
 // basis is kept as the start of the next Solve (and the factorisation and
 // weights with it when the matrix is the same too).
 func (s *Simplex) Load(p *Problem) error {
+	if !s.loaded && len(p.RowLo) == p.Rows && len(p.Obj) == p.Cols && len(p.Index) == len(p.Value) {
+		// A fresh engine has nothing to keep: lay everything out before
+		// the check, whose scratch is part of the block.
+		s.allocShape(p.Rows, p.Cols, len(p.Value))
+	}
 	if err := p.check(&s.seen); err != nil {
 		return err
 	}
 	sameMatrix := s.loaded && s.prob.sameMatrix(p)
 	sameShape := s.loaded && s.m == p.Rows && s.n == p.Cols
+	if s.loaded && !sameShape {
+		s.allocShape(p.Rows, p.Cols, len(p.Value))
+	}
 	p.copyInto(&s.prob)
 	s.loaded = true
 	s.fresh = false
 	s.m, s.n = p.Rows, p.Cols
-	if !sameShape {
-		s.allocShape()
-	}
 	if !sameMatrix {
 		s.setMatrix()
 		s.luOK, s.dseOK = false, false
@@ -210,9 +215,12 @@ func (s *Simplex) Load(p *Problem) error {
 }
 
 // setMatrix scales the loaded matrix and lays it out by columns and rows.
+// Unscaled (Options.NoScaling), the matrix by columns is the problem's
+// own copy.
 func (s *Simplex) setMatrix() {
 	p := &s.prob
 	m, n := s.m, s.n
+	s.cStart, s.cIdx = p.Start, p.Index // the own copy of the problem
 	if s.opt.NoScaling {
 		for i := range s.rs {
 			s.rs[i] = 1
@@ -220,15 +228,15 @@ func (s *Simplex) setMatrix() {
 		for j := range s.cs {
 			s.cs[j] = 1
 		}
+		s.cVal = p.Value
 	} else {
 		scaleFactors(p, s.rs, s.cs, &s.scaleWork)
-	}
-	nz := len(p.Value)
-	s.cStart, s.cIdx = p.Start, p.Index // the own copy of the problem
-	s.cVal = resize(s.cVal, nz)
-	for j := 0; j < n; j++ {
-		for k := p.Start[j]; k < p.Start[j+1]; k++ {
-			s.cVal[k] = s.rs[p.Index[k]] * p.Value[k] * s.cs[j]
+		s.cVal = resize(s.cVal, len(p.Value))
+		for j := 0; j < n; j++ {
+			c := s.cs[j]
+			for k := p.Start[j]; k < p.Start[j+1]; k++ {
+				s.cVal[k] = s.rs[p.Index[k]] * p.Value[k] * c
+			}
 		}
 	}
 	s.rStart, s.rIdx, s.rVal = byRows(m, s.cStart, s.cIdx, s.cVal, s.rStart, s.rIdx, s.rVal)
@@ -326,13 +334,22 @@ func (s *Simplex) Basis() []VarStatus {
 	return append([]VarStatus(nil), s.stat...)
 }
 
-// allocShape lays out every array whose size depends only on the shape,
-// floats in one block and integers in another.
-func (s *Simplex) allocShape() {
-	m, n := s.m, s.n
+// allocShape lays out every array of an m x n problem with nz nonzeros
+// that a load and a solve need (the shape's arrays, the problem's copy,
+// the scaled matrix by columns and by rows, the scaling's and the check's
+// scratch): floats in one block and integers in another, so that a cold
+// solve makes few allocations for the garbage collector to follow.
+func (s *Simplex) allocShape(m, n, nz int) {
 	nm := n + m
 	const perVar, perRow = 10, 8
-	f := make([]float64, perVar*nm+perRow*m+n)
+	scaled := 2*nz + 3*m + n // scaled by columns, the scaling's scratch
+	if s.opt.NoScaling {
+		scaled = 0 // setMatrix uses the problem's copy
+	}
+	nf := perVar*nm + perRow*m + n + // the shape's
+		nz + 3*n + 2*m + // the problem's copy
+		nz + scaled // by rows, and the scaled
+	f := make([]float64, nf)
 	take := func(k int) []float64 {
 		v := f[:k:k]
 		f = f[k:]
@@ -343,13 +360,26 @@ func (s *Simplex) allocShape() {
 	s.y, s.dse, s.wRow, s.wPos = take(m), take(m), take(m), take(m)
 	s.rho, s.tau, s.alphaQ, s.rs = take(m), take(m), take(m), take(m)
 	s.cs = take(n)
-	ints := make([]int, nm+m)
-	s.pos, s.head = ints[:nm:nm], ints[nm:]
+	// Empty with room: copyInto, byRows and scaleFactors fill them.
+	s.prob.Value, s.prob.Obj, s.prob.ColLo, s.prob.ColUp = take(nz)[:0], take(n)[:0], take(n)[:0], take(n)[:0]
+	s.prob.RowLo, s.prob.RowUp = take(m)[:0], take(m)[:0]
+	s.rVal = take(nz)[:0]
+	if !s.opt.NoScaling {
+		s.cVal, s.scaleWork = take(nz)[:0], take(3*m + n)[:0]
+	}
+	ints := make([]int, 3*nm+m+(n+1)+nz+(m+1)+nz+m)
+	takeInt := func(k int) []int {
+		v := ints[:k:k]
+		ints = ints[k:]
+		return v
+	}
+	s.pos, s.head = takeInt(nm), takeInt(m)
+	s.nzR, s.flips = takeInt(nm)[:0], takeInt(nm)[:0]
+	s.prob.Start, s.prob.Index = takeInt(n + 1)[:0], takeInt(nz)[:0]
+	s.rStart, s.rIdx, s.seen = takeInt(m + 1)[:0], takeInt(nz)[:0], takeInt(m)[:0]
 	s.stat = make([]VarStatus, nm)
 	s.inR = make([]bool, nm)
-	s.nzR = make([]int, 0, nm)
 	s.cand = make([]candidate, 0, nm)
-	s.flips = make([]int, 0, 16)
 }
 
 // slackBasis makes every logical basic and puts each column at a bound:
