@@ -241,44 +241,60 @@ func (f *factor) factorize(m int, bStart, bIdx []int, bVal []float64) (bad, free
 }
 
 // ftran solves B z = a. a is indexed by row and is overwritten; z, indexed
-// by basis position, receives the solution.
+// by basis position, receives the solution. (The loops run on local
+// slices, one column's at a time, so that bounds are checked once per
+// column rather than once per entry.)
 func (f *factor) ftran(a, z []float64) {
+	m := f.m
+	prow, pcol, diag := f.prow[:m], f.pcol[:m], f.diag[:m]
+	lStart, lIdx, lVal := f.lStart, f.lIdx, f.lVal
 	for _, t := range f.lSteps {
-		v := a[f.prow[t]]
+		v := a[prow[t]]
 		if v == 0 {
 			continue
 		}
-		for k := f.lStart[t]; k < f.lStart[t+1]; k++ {
-			a[f.lIdx[k]] -= f.lVal[k] * v
+		idx := lIdx[lStart[t]:lStart[t+1]]
+		val := lVal[lStart[t]:lStart[t+1]]
+		val = val[:len(idx)]
+		for k, i := range idx {
+			a[i] -= val[k] * v
 		}
 	}
-	y := f.work
-	for t := 0; t < f.m; t++ {
-		y[t] = a[f.prow[t]]
+	y := f.work[:m]
+	for t, i := range prow {
+		y[t] = a[i]
 	}
-	for t := f.m - 1; t >= 0; t-- {
+	uStart, uIdx, uVal := f.uStart, f.uIdx, f.uVal
+	for t := m - 1; t >= 0; t-- {
 		v := y[t]
 		if v == 0 {
 			continue
 		}
-		v /= f.diag[t]
+		v /= diag[t]
 		y[t] = v
-		for k := f.uStart[t]; k < f.uStart[t+1]; k++ {
-			y[f.uIdx[k]] -= f.uVal[k] * v
+		idx := uIdx[uStart[t]:uStart[t+1]]
+		val := uVal[uStart[t]:uStart[t+1]]
+		val = val[:len(idx)]
+		for k, s := range idx {
+			y[s] -= val[k] * v
 		}
 	}
-	for t := 0; t < f.m; t++ {
-		z[f.pcol[t]] = y[t]
+	for t, p := range pcol {
+		z[p] = y[t]
 	}
+	eStart, eIdx, eVal, ePiv := f.eStart, f.eIdx, f.eVal, f.ePiv
 	for e, r := range f.ePos {
 		v := z[r]
 		if v == 0 {
 			continue
 		}
-		v /= f.ePiv[e]
+		v /= ePiv[e]
 		z[r] = v
-		for k := f.eStart[e]; k < f.eStart[e+1]; k++ {
-			z[f.eIdx[k]] -= f.eVal[k] * v
+		idx := eIdx[eStart[e]:eStart[e+1]]
+		val := eVal[eStart[e]:eStart[e+1]]
+		val = val[:len(idx)]
+		for k, i := range idx {
+			z[i] -= val[k] * v
 		}
 	}
 }
@@ -286,28 +302,42 @@ func (f *factor) ftran(a, z []float64) {
 // btran solves Bᵀ π = e. e is indexed by basis position and is
 // overwritten; π, indexed by row, receives the solution.
 func (f *factor) btran(e, pi []float64) {
+	m := f.m
+	eStart, eIdx, eVal, ePiv := f.eStart, f.eIdx, f.eVal, f.ePiv
 	for k := len(f.ePos) - 1; k >= 0; k-- {
 		r := f.ePos[k]
 		s := e[r]
-		for q := f.eStart[k]; q < f.eStart[k+1]; q++ {
-			s -= f.eVal[q] * e[f.eIdx[q]]
+		idx := eIdx[eStart[k]:eStart[k+1]]
+		val := eVal[eStart[k]:eStart[k+1]]
+		val = val[:len(idx)]
+		for q, i := range idx {
+			s -= val[q] * e[i]
 		}
-		e[r] = s / f.ePiv[k]
+		e[r] = s / ePiv[k]
 	}
-	y := f.work
-	for t := 0; t < f.m; t++ {
-		s := e[f.pcol[t]]
-		for k := f.uStart[t]; k < f.uStart[t+1]; k++ {
-			s -= f.uVal[k] * y[f.uIdx[k]]
+	prow, pcol, diag := f.prow[:m], f.pcol[:m], f.diag[:m]
+	y := f.work[:m]
+	uStart, uIdx, uVal := f.uStart, f.uIdx, f.uVal
+	for t, p := range pcol {
+		s := e[p]
+		idx := uIdx[uStart[t]:uStart[t+1]]
+		val := uVal[uStart[t]:uStart[t+1]]
+		val = val[:len(idx)]
+		for k, u := range idx {
+			s -= val[k] * y[u]
 		}
-		y[t] = s / f.diag[t]
+		y[t] = s / diag[t]
 	}
-	for t := f.m - 1; t >= 0; t-- {
+	lStart, lIdx, lVal := f.lStart, f.lIdx, f.lVal
+	for t := m - 1; t >= 0; t-- {
 		s := y[t]
-		for k := f.lStart[t]; k < f.lStart[t+1]; k++ {
-			s -= f.lVal[k] * pi[f.lIdx[k]]
+		idx := lIdx[lStart[t]:lStart[t+1]]
+		val := lVal[lStart[t]:lStart[t+1]]
+		val = val[:len(idx)]
+		for k, i := range idx {
+			s -= val[k] * pi[i]
 		}
-		pi[f.prow[t]] = s
+		pi[prow[t]] = s
 	}
 }
 

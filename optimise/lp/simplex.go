@@ -232,10 +232,13 @@ func (s *Simplex) setMatrix() {
 	} else {
 		scaleFactors(p, s.rs, s.cs, &s.scaleWork)
 		s.cVal = resize(s.cVal, len(p.Value))
-		for j := 0; j < n; j++ {
-			c := s.cs[j]
-			for k := p.Start[j]; k < p.Start[j+1]; k++ {
-				s.cVal[k] = s.rs[p.Index[k]] * p.Value[k] * c
+		rs, start, index, value := s.rs, p.Start[:n+1], p.Index, p.Value
+		for j, c := range s.cs[:n] {
+			lo, hi := start[j], start[j+1]
+			idx, val, out := index[lo:hi], value[lo:hi], s.cVal[lo:hi]
+			val, out = val[:len(idx)], out[:len(idx)]
+			for k, i := range idx {
+				out[k] = rs[i] * val[k] * c
 			}
 		}
 	}
@@ -458,8 +461,11 @@ func (s *Simplex) addCol(k int, v float64, w []float64) {
 		w[k-s.n] -= v
 		return
 	}
-	for q := s.cStart[k]; q < s.cStart[k+1]; q++ {
-		w[s.cIdx[q]] += v * s.cVal[q]
+	idx := s.cIdx[s.cStart[k]:s.cStart[k+1]]
+	val := s.cVal[s.cStart[k]:s.cStart[k+1]]
+	val = val[:len(idx)]
+	for q, i := range idx {
+		w[i] += v * val[q]
 	}
 }
 
@@ -514,16 +520,22 @@ func (s *Simplex) computeD() {
 		e[r] = s.cost[k] + s.shift[k]
 	}
 	s.lu.btran(e, s.y)
-	for j := 0; j < s.n; j++ {
-		if s.stat[j] == Basic {
-			s.d[j] = 0
+	n := s.n
+	stat, cost, shift, d, y := s.stat[:n], s.cost[:n], s.shift[:n], s.d[:n], s.y
+	cStart, cIdx, cVal := s.cStart[:n+1], s.cIdx, s.cVal
+	for j, st := range stat {
+		if st == Basic {
+			d[j] = 0
 			continue
 		}
-		v := s.cost[j] + s.shift[j]
-		for q := s.cStart[j]; q < s.cStart[j+1]; q++ {
-			v -= s.cVal[q] * s.y[s.cIdx[q]]
+		v := cost[j] + shift[j]
+		idx := cIdx[cStart[j]:cStart[j+1]]
+		val := cVal[cStart[j]:cStart[j+1]]
+		val = val[:len(idx)]
+		for q, i := range idx {
+			v -= val[q] * y[i]
 		}
-		s.d[j] = v
+		d[j] = v
 	}
 	for i := 0; i < s.m; i++ {
 		k := s.n + i
