@@ -65,20 +65,52 @@ const (
 // are reused when large enough.
 func basisMatrix(head []int, n int, start, index []int, value []float64, bStart, bIdx []int, bVal []float64) ([]int, []int, []float64) {
 	bStart = resize(bStart, len(head)+1)
-	bIdx, bVal = bIdx[:0], bVal[:0]
+	nz := 0
 	for r, k := range head {
-		bStart[r] = len(bIdx)
+		bStart[r] = nz
 		if k >= n {
-			bIdx = append(bIdx, k-n)
-			bVal = append(bVal, -1)
+			nz++
+		} else {
+			nz += start[k+1] - start[k]
+		}
+	}
+	bStart[len(head)] = nz
+	bIdx, bVal = resize(bIdx, nz), resize(bVal, nz)
+	for r, k := range head {
+		q := bStart[r]
+		if k >= n {
+			bIdx[q], bVal[q] = k-n, -1
 			continue
 		}
-		bIdx = append(bIdx, index[start[k]:start[k+1]]...)
-		bVal = append(bVal, value[start[k]:start[k+1]]...)
+		copy(bIdx[q:], index[start[k]:start[k+1]])
+		copy(bVal[q:], value[start[k]:start[k+1]])
 	}
-	bStart[len(head)] = len(bIdx)
 	return bStart, bIdx, bVal
 }
+
+// reserve gives f its arrays for bases of m rows, the fixed ones and an
+// update file for etaReserve dense updates and L̃ and Ũ for the slack
+// basis, carved by takeInt and takeFloat from
+// the caller's blocks; factorize then allocates only what a basis
+// denser than the slack basis needs.
+func (f *factor) reserve(m int, takeInt func(int) []int, takeFloat func(int) []float64, mark []bool) {
+	ints := takeInt(9*m + 4)
+	f.prow, f.pcol, f.rowStep = ints[:m:m], ints[m:2*m:2*m], ints[2*m:3*m:3*m]
+	f.lStart, f.uStart = ints[3*m:3*m:4*m+1], ints[4*m+1:4*m+1:5*m+2]
+	f.order, f.rc, f.count = ints[5*m+2:6*m+2:6*m+2], ints[6*m+2:7*m+2:7*m+2], ints[7*m+2:8*m+4:8*m+4]
+	f.touched = ints[8*m+4 : 8*m+4 : 9*m+4]
+	fl := takeFloat(2 * m)
+	f.diag, f.work = fl[:m:m], fl[m:]
+	f.mark = mark[:m:m]
+	f.eIdx, f.eVal = takeInt(etaReserve * m)[:0], takeFloat(etaReserve * m)[:0]
+	f.eStart, f.ePos, f.ePiv = takeInt(maxEtas + 1)[:0], takeInt(maxEtas)[:0], takeFloat(maxEtas)[:0]
+	nz := m/2 + m // what factorize asks for the slack basis
+	f.lIdx, f.uIdx, f.lVal, f.uVal = takeInt(nz)[:0], takeInt(nz)[:0], takeFloat(nz)[:0], takeFloat(nz)[:0]
+}
+
+// etaReserve is the update file's first size, in dense updates of the
+// basis's rows (a cold solve of a blend makes a dozen or two).
+const etaReserve = 16
 
 // factorize computes the LU factors of the m x m matrix whose column p is
 // given in compressed sparse column form (bStart, bIdx, bVal). It returns
@@ -113,8 +145,8 @@ func (f *factor) factorize(m int, bStart, bIdx []int, bVal []float64) (bad, free
 	}
 	f.lIdx, f.lVal, f.uIdx, f.uVal = f.lIdx[:0], f.lVal[:0], f.uIdx[:0], f.uVal[:0]
 	f.lSteps = f.lSteps[:0]
-	if cap(f.eIdx) < 8*m {
-		f.eIdx, f.eVal = make([]int, 0, 8*m), make([]float64, 0, 8*m)
+	if cap(f.eIdx) < 8*m || cap(f.eStart) < maxEtas+1 {
+		f.eIdx, f.eVal = make([]int, 0, etaReserve*m), make([]float64, 0, etaReserve*m)
 		f.eStart, f.ePos, f.ePiv = make([]int, 0, maxEtas+1), make([]int, 0, maxEtas), make([]float64, 0, maxEtas)
 	}
 	f.eStart = append(f.eStart[:0], 0)

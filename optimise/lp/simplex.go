@@ -351,7 +351,9 @@ func (s *Simplex) allocShape(m, n, nz int) {
 	}
 	nf := perVar*nm + perRow*m + n + // the shape's
 		nz + 3*n + 2*m + // the problem's copy
-		nz + scaled // by rows, and the scaled
+		nz + scaled + // by rows, and the scaled
+		2*m + etaReserve*m + maxEtas + 2*(m/2+m) + // the factors'
+		2*m // the basis matrix's first columns
 	f := make([]float64, nf)
 	take := func(k int) []float64 {
 		v := f[:k:k]
@@ -370,7 +372,9 @@ func (s *Simplex) allocShape(m, n, nz int) {
 	if !s.opt.NoScaling {
 		s.cVal, s.scaleWork = take(nz)[:0], take(3*m + n)[:0]
 	}
-	ints := make([]int, 3*nm+m+(n+1)+nz+(m+1)+nz+m)
+	ints := make([]int, 3*nm+m+(n+1)+nz+(m+1)+nz+m+
+		9*m+4+etaReserve*m+2*maxEtas+1+2*(m/2+m)+ // the factors'
+		m+1+2*m) // the basis matrix's
 	takeInt := func(k int) []int {
 		v := ints[:k:k]
 		ints = ints[k:]
@@ -380,8 +384,11 @@ func (s *Simplex) allocShape(m, n, nz int) {
 	s.nzR, s.flips = takeInt(nm)[:0], takeInt(nm)[:0]
 	s.prob.Start, s.prob.Index = takeInt(n + 1)[:0], takeInt(nz)[:0]
 	s.rStart, s.rIdx, s.seen = takeInt(m + 1)[:0], takeInt(nz)[:0], takeInt(m)[:0]
+	s.bStart, s.bIdx, s.bVal = takeInt(m + 1)[:0], takeInt(2 * m)[:0], take(2 * m)[:0]
+	bools := make([]bool, nm+m)
+	s.inR = bools[:nm:nm]
+	s.lu.reserve(m, takeInt, take, bools[nm:])
 	s.stat = make([]VarStatus, nm)
-	s.inR = make([]bool, nm)
 	s.cand = make([]candidate, 0, nm)
 }
 
