@@ -292,27 +292,39 @@ func (f *factor) ftran(a, z []float64) {
 			a[i] -= val[k] * v
 		}
 	}
-	y := f.work[:m]
-	for t, i := range prow {
-		y[t] = a[i]
-	}
-	uStart, uIdx, uVal := f.uStart, f.uIdx, f.uVal
-	for t := m - 1; t >= 0; t-- {
-		v := y[t]
-		if v == 0 {
-			continue
+	if len(f.uIdx) == 0 {
+		// Ũ is diagonal (the slack basis and other triangular ones
+		// whose columns are singletons): one pass, same operations.
+		for t, i := range prow {
+			v := a[i]
+			if v != 0 {
+				v /= diag[t]
+			}
+			z[pcol[t]] = v
 		}
-		v /= diag[t]
-		y[t] = v
-		idx := uIdx[uStart[t]:uStart[t+1]]
-		val := uVal[uStart[t]:uStart[t+1]]
-		val = val[:len(idx)]
-		for k, s := range idx {
-			y[s] -= val[k] * v
+	} else {
+		y := f.work[:m]
+		for t, i := range prow {
+			y[t] = a[i]
 		}
-	}
-	for t, p := range pcol {
-		z[p] = y[t]
+		uStart, uIdx, uVal := f.uStart, f.uIdx, f.uVal
+		for t := m - 1; t >= 0; t-- {
+			v := y[t]
+			if v == 0 {
+				continue
+			}
+			v /= diag[t]
+			y[t] = v
+			idx := uIdx[uStart[t]:uStart[t+1]]
+			val := uVal[uStart[t]:uStart[t+1]]
+			val = val[:len(idx)]
+			for k, s := range idx {
+				y[s] -= val[k] * v
+			}
+		}
+		for t, p := range pcol {
+			z[p] = y[t]
+		}
 	}
 	eStart, eIdx, eVal, ePiv := f.eStart, f.eIdx, f.eVal, f.ePiv
 	for e, r := range f.ePos {
@@ -348,6 +360,13 @@ func (f *factor) btran(e, pi []float64) {
 		e[r] = s / ePiv[k]
 	}
 	prow, pcol, diag := f.prow[:m], f.pcol[:m], f.diag[:m]
+	if len(f.uIdx) == 0 && len(f.lIdx) == 0 {
+		// L̃ and Ũ are diagonal: one pass, same operations.
+		for t, p := range pcol {
+			pi[prow[t]] = e[p] / diag[t]
+		}
+		return
+	}
 	y := f.work[:m]
 	uStart, uIdx, uVal := f.uStart, f.uIdx, f.uVal
 	for t, p := range pcol {

@@ -25,6 +25,7 @@ func scaleFactors(p *Problem, rs, cs []float64, work *[]float64) {
 	w := resize(*work, 3*p.Rows+p.Cols)
 	*work = w
 	rmin, rmax, saveR, saveC := w[:p.Rows], w[p.Rows:2*p.Rows], w[2*p.Rows:3*p.Rows], w[3*p.Rows:]
+	rmax = rmax[:len(rmin)] // one bounds check serves both
 	// Every pass reads |a_ij| with the current factors. The loops run on
 	// local slices, column by column, so that the compiler keeps the
 	// bounds in registers and checks each column's once.
