@@ -31,19 +31,25 @@ import "math"
 // 2003, ch. 8). The basis is factorised afresh after maxEtas updates or
 // when the eta file outgrows the factors.
 type factor struct {
-	m                  int
-	prow, pcol         []int
-	rowStep            []int // step of each row, -1 before it is pivoted
-	diag               []float64
-	lStart, lIdx       []int
-	lVal               []float64
-	lSteps             []int // steps whose L̃ column has multipliers, in order
-	uStart, uIdx       []int
-	uVal               []float64
-	nnz                int // nonzeros of L̃ and Ũ (off the diagonal)
-	eStart, eIdx, ePos []int
-	eVal, ePiv         []float64
-	work               []float64
+	m            int
+	prow, pcol   []int
+	rowStep      []int // step of each row, -1 before it is pivoted
+	diag         []float64
+	lStart, lIdx []int
+	lVal         []float64
+	lSteps       []int // steps whose L̃ column has multipliers, in order
+	uStart, uIdx []int
+	uVal         []float64
+	nnz          int // nonzeros of L̃ and Ũ (off the diagonal)
+	// The update file: eta e pivots on position ePos[e] (pivot ePiv[e]);
+	// its other entries are eVal[eStart[e]:eStart[e+1]], at the positions
+	// eIdx[eIdxAt[e]:] when eIdxAt[e] >= 0 (sparse) and at every position,
+	// the pivot's and dropped ones zero, when eIdxAt[e] < 0 (dense). eNZ
+	// counts the nonzeros the etas hold.
+	eStart, eIdx, eIdxAt, ePos []int
+	eVal, ePiv                 []float64
+	eNZ                        int
+	work                       []float64
 	// factorisation scratch
 	count, order, touched, rc []int
 	mark                      []bool
@@ -102,8 +108,9 @@ func (f *factor) reserve(m int, takeInt func(int) []int, takeFloat func(int) []f
 	fl := takeFloat(2 * m)
 	f.diag, f.work = fl[:m:m], fl[m:]
 	f.mark = mark[:m:m]
-	f.eIdx, f.eVal = takeInt(etaReserve * m)[:0], takeFloat(etaReserve * m)[:0]
+	f.eIdx, f.eVal = takeInt(etaReserve * m / 2)[:0], takeFloat(etaReserve * m)[:0]
 	f.eStart, f.ePos, f.ePiv = takeInt(maxEtas + 1)[:0], takeInt(maxEtas)[:0], takeFloat(maxEtas)[:0]
+	f.eIdxAt = takeInt(maxEtas)[:0]
 	nz := m/2 + m // what factorize asks for the slack basis
 	f.lIdx, f.uIdx, f.lVal, f.uVal = takeInt(nz)[:0], takeInt(nz)[:0], takeFloat(nz)[:0], takeFloat(nz)[:0]
 }
@@ -145,12 +152,14 @@ func (f *factor) factorize(m int, bStart, bIdx []int, bVal []float64) (bad, free
 	}
 	f.lIdx, f.lVal, f.uIdx, f.uVal = f.lIdx[:0], f.lVal[:0], f.uIdx[:0], f.uVal[:0]
 	f.lSteps = f.lSteps[:0]
-	if cap(f.eIdx) < 8*m || cap(f.eStart) < maxEtas+1 {
-		f.eIdx, f.eVal = make([]int, 0, etaReserve*m), make([]float64, 0, etaReserve*m)
+	if cap(f.eVal) < 8*m || cap(f.eStart) < maxEtas+1 {
+		f.eIdx, f.eVal = make([]int, 0, etaReserve*m/2), make([]float64, 0, etaReserve*m)
 		f.eStart, f.ePos, f.ePiv = make([]int, 0, maxEtas+1), make([]int, 0, maxEtas), make([]float64, 0, maxEtas)
+		f.eIdxAt = make([]int, 0, maxEtas)
 	}
 	f.eStart = append(f.eStart[:0], 0)
 	f.eIdx, f.eVal, f.ePos, f.ePiv = f.eIdx[:0], f.eVal[:0], f.ePos[:0], f.ePiv[:0]
+	f.eIdxAt, f.eNZ = f.eIdxAt[:0], 0
 	f.work = resize(f.work, m)
 	f.mark = resize(f.mark, m)
 	clear(f.work)
@@ -326,7 +335,7 @@ func (f *factor) ftran(a, z []float64) {
 			z[p] = y[t]
 		}
 	}
-	eStart, eIdx, eVal, ePiv := f.eStart, f.eIdx, f.eVal, f.ePiv
+	eStart, eIdx, eIdxAt, eVal, ePiv := f.eStart, f.eIdx, f.eIdxAt, f.eVal, f.ePiv
 	for e, r := range f.ePos {
 		v := z[r]
 		if v == 0 {
@@ -334,11 +343,14 @@ func (f *factor) ftran(a, z []float64) {
 		}
 		v /= ePiv[e]
 		z[r] = v
-		idx := eIdx[eStart[e]:eStart[e+1]]
 		val := eVal[eStart[e]:eStart[e+1]]
-		val = val[:len(idx)]
-		for k, i := range idx {
-			z[i] -= val[k] * v
+		if at := eIdxAt[e]; at < 0 {
+			axpy(z[:len(val)], val, -v)
+		} else {
+			idx := eIdx[at : at+len(val)]
+			for k, i := range idx {
+				z[i] -= val[k] * v
+			}
 		}
 	}
 }
@@ -347,15 +359,18 @@ func (f *factor) ftran(a, z []float64) {
 // overwritten; π, indexed by row, receives the solution.
 func (f *factor) btran(e, pi []float64) {
 	m := f.m
-	eStart, eIdx, eVal, ePiv := f.eStart, f.eIdx, f.eVal, f.ePiv
+	eStart, eIdx, eIdxAt, eVal, ePiv := f.eStart, f.eIdx, f.eIdxAt, f.eVal, f.ePiv
 	for k := len(f.ePos) - 1; k >= 0; k-- {
 		r := f.ePos[k]
 		s := e[r]
-		idx := eIdx[eStart[k]:eStart[k+1]]
 		val := eVal[eStart[k]:eStart[k+1]]
-		val = val[:len(idx)]
-		for q, i := range idx {
-			s -= val[q] * e[i]
+		if at := eIdxAt[k]; at < 0 {
+			s = subDot(s, val, e)
+		} else {
+			idx := eIdx[at : at+len(val)]
+			for q, i := range idx {
+				s -= val[q] * e[i]
+			}
 		}
 		e[r] = s / ePiv[k]
 	}
@@ -393,17 +408,41 @@ func (f *factor) btran(e, pi []float64) {
 }
 
 // update records the basis change at position r whose entering column is
-// alpha = B⁻¹a_q (indexed by position).
+// alpha = B⁻¹a_q (indexed by position). An eta with nonzeros in more than
+// half the positions is kept dense: FTRAN and BTRAN then run over it
+// without indices, which costs less than reading them (the choice of
+// storage by density, as for the hypersparse and dense solves of
+// Koberstein 2005, ch. 6). Entries at most luDrop are zero either way.
 func (f *factor) update(r int, alpha []float64) {
 	f.ePos = append(f.ePos, r)
 	f.ePiv = append(f.ePiv, alpha[r])
+	nz := 0
 	for i, v := range alpha {
 		if i != r && math.Abs(v) > luDrop {
-			f.eIdx = append(f.eIdx, i)
-			f.eVal = append(f.eVal, v)
+			nz++
 		}
 	}
-	f.eStart = append(f.eStart, len(f.eIdx))
+	f.eNZ += nz
+	if 2*nz > len(alpha) {
+		f.eIdxAt = append(f.eIdxAt, -1)
+		at := len(f.eVal)
+		f.eVal = append(f.eVal, alpha...)
+		ev := f.eVal[at:]
+		for i, v := range ev {
+			if i == r || math.Abs(v) <= luDrop {
+				ev[i] = 0
+			}
+		}
+	} else {
+		f.eIdxAt = append(f.eIdxAt, len(f.eIdx))
+		for i, v := range alpha {
+			if i != r && math.Abs(v) > luDrop {
+				f.eIdx = append(f.eIdx, i)
+				f.eVal = append(f.eVal, v)
+			}
+		}
+	}
+	f.eStart = append(f.eStart, len(f.eVal))
 }
 
 // updates is the number of updates since the last factorisation.
@@ -413,5 +452,40 @@ func (f *factor) updates() int { return len(f.ePos) }
 // updates, or once the eta file holds several times the nonzeros of the
 // factors (solves then cost more than a new factorisation saves).
 func (f *factor) due() bool {
-	return len(f.ePos) >= maxEtas || len(f.eIdx) > max(8*(f.nnz+f.m), 32*f.m)
+	return len(f.ePos) >= maxEtas || f.eNZ > max(8*(f.nnz+f.m), 32*f.m)
+}
+
+// axpy adds a·x to y (len(y) >= len(x)), unrolled by four; each entry
+// gets y_i + a·x_i, i.e. y_i - v·x_i for a = -v exactly as written out.
+func axpy(y, x []float64, a float64) {
+	y = y[:len(x)]
+	i := 0
+	for ; i+4 <= len(x); i += 4 {
+		xs, ys := x[i:i+4:i+4], y[i:i+4:i+4]
+		ys[0] += a * xs[0]
+		ys[1] += a * xs[1]
+		ys[2] += a * xs[2]
+		ys[3] += a * xs[3]
+	}
+	for ; i < len(x); i++ {
+		y[i] += a * x[i]
+	}
+}
+
+// subDot is s - x_0·y_0 - x_1·y_1 - ..., subtracted in that order
+// (len(y) >= len(x)), unrolled by four.
+func subDot(s float64, x, y []float64) float64 {
+	y = y[:len(x)]
+	i := 0
+	for ; i+4 <= len(x); i += 4 {
+		xs, ys := x[i:i+4:i+4], y[i:i+4:i+4]
+		s -= xs[0] * ys[0]
+		s -= xs[1] * ys[1]
+		s -= xs[2] * ys[2]
+		s -= xs[3] * ys[3]
+	}
+	for ; i < len(x); i++ {
+		s -= x[i] * y[i]
+	}
+	return s
 }

@@ -373,7 +373,7 @@ func (s *Simplex) allocShape(m, n, nz int) {
 		s.cVal, s.scaleWork = take(nz)[:0], take(3*m + n)[:0]
 	}
 	ints := make([]int, 3*nm+m+(n+1)+nz+(m+1)+nz+m+
-		9*m+4+etaReserve*m+2*maxEtas+1+2*(m/2+m)+ // the factors'
+		9*m+4+etaReserve*m/2+3*maxEtas+1+2*(m/2+m)+ // the factors'
 		m+1+2*m) // the basis matrix's
 	takeInt := func(k int) []int {
 		v := ints[:k:k]
