@@ -108,14 +108,15 @@ func (f *factor) reserve(m int, takeInt func(int) []int, takeFloat func(int) []f
 	fl := takeFloat(2 * m)
 	f.diag, f.work = fl[:m:m], fl[m:]
 	f.mark = mark[:m:m]
-	f.eIdx, f.eVal = takeInt(etaReserve * m / 2)[:0], takeFloat(etaReserve * m)[:0]
-	f.eStart, f.ePos, f.ePiv = takeInt(maxEtas + 1)[:0], takeInt(maxEtas)[:0], takeFloat(maxEtas)[:0]
-	f.eIdxAt = takeInt(maxEtas)[:0]
+	f.eIdx, f.eVal = takeInt(etaReserve * m / 4)[:0], takeFloat(etaReserve * m)[:0]
+	f.eStart, f.ePos, f.ePiv = takeInt(etaReserve + 1)[:0], takeInt(etaReserve)[:0], takeFloat(etaReserve)[:0]
+	f.eIdxAt = takeInt(etaReserve)[:0]
 	nz := m/2 + m // what factorize asks for the slack basis
 	f.lIdx, f.uIdx, f.lVal, f.uVal = takeInt(nz)[:0], takeInt(nz)[:0], takeFloat(nz)[:0], takeFloat(nz)[:0]
 }
 
-// etaReserve is the update file's first size, in dense updates of the
+// etaReserve is the update file's first size, in dense updates (or four
+// times as many sparse ones, of at most half the positions each) of the
 // basis's rows (a cold solve of a blend makes a dozen or two).
 const etaReserve = 16
 
@@ -152,10 +153,10 @@ func (f *factor) factorize(m int, bStart, bIdx []int, bVal []float64) (bad, free
 	}
 	f.lIdx, f.lVal, f.uIdx, f.uVal = f.lIdx[:0], f.lVal[:0], f.uIdx[:0], f.uVal[:0]
 	f.lSteps = f.lSteps[:0]
-	if cap(f.eVal) < 8*m || cap(f.eStart) < maxEtas+1 {
-		f.eIdx, f.eVal = make([]int, 0, etaReserve*m/2), make([]float64, 0, etaReserve*m)
-		f.eStart, f.ePos, f.ePiv = make([]int, 0, maxEtas+1), make([]int, 0, maxEtas), make([]float64, 0, maxEtas)
-		f.eIdxAt = make([]int, 0, maxEtas)
+	if cap(f.eVal) < 8*m || cap(f.eStart) < etaReserve+1 {
+		f.eIdx, f.eVal = make([]int, 0, etaReserve*m/4), make([]float64, 0, etaReserve*m)
+		f.eStart, f.ePos, f.ePiv = make([]int, 0, etaReserve+1), make([]int, 0, etaReserve), make([]float64, 0, etaReserve)
+		f.eIdxAt = make([]int, 0, etaReserve)
 	}
 	f.eStart = append(f.eStart[:0], 0)
 	f.eIdx, f.eVal, f.ePos, f.ePiv = f.eIdx[:0], f.eVal[:0], f.ePos[:0], f.ePiv[:0]

@@ -70,7 +70,7 @@ type Simplex struct {
 	head     []int     // variable at each basis position
 	y        []float64 // row duals of the last pricing (scaled)
 	dse      []float64 // dual steepest-edge weights by position
-	devex    []float64 // primal Devex weights by variable
+	devex    []float64 // primal Devex weights by variable (made by primal)
 
 	lu                   factor
 	haveBasis, luOK      bool
@@ -344,7 +344,7 @@ func (s *Simplex) Basis() []VarStatus {
 // solve makes few allocations for the garbage collector to follow.
 func (s *Simplex) allocShape(m, n, nz int) {
 	nm := n + m
-	const perVar, perRow = 10, 8
+	const perVar, perRow = 9, 8
 	scaled := 2*nz + 3*m + n // scaled by columns, the scaling's scratch
 	if s.opt.NoScaling {
 		scaled = 0 // setMatrix uses the problem's copy
@@ -352,7 +352,7 @@ func (s *Simplex) allocShape(m, n, nz int) {
 	nf := perVar*nm + perRow*m + n + // the shape's
 		nz + 3*n + 2*m + // the problem's copy
 		nz + scaled + // by rows, and the scaled
-		2*m + etaReserve*m + maxEtas + 2*(m/2+m) + // the factors'
+		2*m + etaReserve*m + etaReserve + 2*(m/2+m) + // the factors'
 		2*m // the basis matrix's first columns
 	f := make([]float64, nf)
 	take := func(k int) []float64 {
@@ -361,7 +361,8 @@ func (s *Simplex) allocShape(m, n, nz int) {
 		return v
 	}
 	s.cost, s.shift, s.lo0, s.up0, s.lo = take(nm), take(nm), take(nm), take(nm), take(nm)
-	s.up, s.x, s.d, s.devex, s.alphaR = take(nm), take(nm), take(nm), take(nm), take(nm)
+	s.up, s.x, s.d, s.alphaR = take(nm), take(nm), take(nm), take(nm)
+	s.devex = nil // the primal simplex's, made by its first run
 	s.y, s.dse, s.wRow, s.wPos = take(m), take(m), take(m), take(m)
 	s.rho, s.tau, s.alphaQ, s.rs = take(m), take(m), take(m), take(m)
 	s.cs = take(n)
@@ -373,7 +374,7 @@ func (s *Simplex) allocShape(m, n, nz int) {
 		s.cVal, s.scaleWork = take(nz)[:0], take(3*m + n)[:0]
 	}
 	ints := make([]int, 3*nm+m+(n+1)+nz+(m+1)+nz+m+
-		9*m+4+etaReserve*m/2+3*maxEtas+1+2*(m/2+m)+ // the factors'
+		9*m+4+etaReserve*m/4+3*etaReserve+1+2*(m/2+m)+ // the factors'
 		m+1+2*m) // the basis matrix's
 	takeInt := func(k int) []int {
 		v := ints[:k:k]
