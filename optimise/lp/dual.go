@@ -252,14 +252,15 @@ func (s *Simplex) perturbCosts() {
 // the lower bound), or -1.
 func (s *Simplex) dualPricing() (int, float64) {
 	best, bestScore, bestDelta := -1, 0.0, 0.0
+	x, lo, up, dse := s.x, s.lo, s.up, s.dse[:len(s.head)]
 	for r, k := range s.head {
-		v := s.x[k]
+		v := x[k]
 		var delta float64
 		switch {
-		case v < s.lo[k]-tolPrimal:
-			delta = v - s.lo[k]
-		case v > s.up[k]+tolPrimal:
-			delta = v - s.up[k]
+		case v < lo[k]-tolPrimal:
+			delta = v - lo[k]
+		case v > up[k]+tolPrimal:
+			delta = v - up[k]
 		default:
 			continue
 		}
@@ -271,7 +272,7 @@ func (s *Simplex) dualPricing() (int, float64) {
 		}
 		score := delta * delta
 		if !s.opt.Dantzig {
-			score /= s.dse[r]
+			score /= dse[r]
 		}
 		if score > bestScore {
 			best, bestScore, bestDelta = r, score, delta
@@ -301,19 +302,22 @@ func (s *Simplex) pivotRow(rho []float64) {
 		a[k], mark[k] = 0, false
 	}
 	nz := s.nzR[:0]
+	rStart, rIdx, rVal := s.rStart[:len(rho)+1], s.rIdx, s.rVal
 	for i, v := range rho {
 		if v == 0 {
 			continue
 		}
 		a[n+i], mark[n+i] = -v, true
 		nz = append(nz, n+i)
-		for q := s.rStart[i]; q < s.rStart[i+1]; q++ {
-			j := s.rIdx[q]
+		idx := rIdx[rStart[i]:rStart[i+1]]
+		val := rVal[rStart[i]:rStart[i+1]]
+		val = val[:len(idx)]
+		for q, j := range idx {
 			if !mark[j] {
 				mark[j] = true
 				nz = append(nz, j)
 			}
-			a[j] += v * s.rVal[q]
+			a[j] += v * val[q]
 		}
 	}
 	s.nzR = nz

@@ -186,20 +186,24 @@ func (p *Problem) check(buf *[]int) error {
 	for i := range seen {
 		seen[i] = -1
 	}
+	start, index, value := p.Start, p.Index, p.Value
 	for j := 0; j < p.Cols; j++ {
-		if p.Start[j] > p.Start[j+1] {
+		if start[j] > start[j+1] {
 			return bad("column starts decrease at column %d", j)
 		}
-		for k := p.Start[j]; k < p.Start[j+1]; k++ {
-			i := p.Index[k]
-			if i < 0 || i >= p.Rows {
+		if start[j+1] > nz {
+			return bad("column %d ends at %d after the %d nonzeros", j, start[j+1], nz)
+		}
+		idx, val := index[start[j]:start[j+1]], value[start[j]:start[j+1]]
+		for k, i := range idx {
+			if uint(i) >= uint(len(seen)) {
 				return bad("column %d has row %d outside 0..%d", j, i, p.Rows-1)
 			}
 			if seen[i] == j {
 				return bad("column %d lists row %d twice", j, i)
 			}
 			seen[i] = j
-			if v := p.Value[k]; math.IsNaN(v) || math.IsInf(v, 0) {
+			if v := val[k]; math.IsNaN(v) || math.IsInf(v, 0) {
 				return bad("coefficient (%d, %d) is %v", i, j, v)
 			}
 		}
@@ -324,10 +328,12 @@ func byRows(rows int, start, index []int, value []float64, rStart, rIdx []int, r
 	// rStart[i] is row i's next free place while the entries are filled
 	// in, and is moved back to row i's start after.
 	for j := 0; j+1 < len(start); j++ {
-		for k := start[j]; k < start[j+1]; k++ {
-			q := rStart[index[k]]
-			rIdx[q], rVal[q] = j, value[k]
-			rStart[index[k]]++
+		idx, val := index[start[j]:start[j+1]], value[start[j]:start[j+1]]
+		val = val[:len(idx)]
+		for k, i := range idx {
+			q := rStart[i]
+			rIdx[q], rVal[q] = j, val[k]
+			rStart[i] = q + 1
 		}
 	}
 	copy(rStart[1:], rStart[:rows])

@@ -31,19 +31,25 @@ import "math"
 // 2003, ch. 8). The basis is factorised afresh after maxEtas updates or
 // when the eta file outgrows the factors.
 type factor struct {
-	m                  int
-	prow, pcol         []int
-	rowStep            []int // step of each row, -1 before it is pivoted
-	diag               []float64
-	lStart, lIdx       []int
-	lVal               []float64
-	lSteps             []int // steps whose L̃ column has multipliers, in order
-	uStart, uIdx       []int
-	uVal               []float64
-	nnz                int // nonzeros of L̃ and Ũ (off the diagonal)
-	eStart, eIdx, ePos []int
-	eVal, ePiv         []float64
-	work               []float64
+	m            int
+	prow, pcol   []int
+	rowStep      []int // step of each row, -1 before it is pivoted
+	diag         []float64
+	lStart, lIdx []int
+	lVal         []float64
+	lSteps       []int // steps whose L̃ column has multipliers, in order
+	uStart, uIdx []int
+	uVal         []float64
+	nnz          int // nonzeros of L̃ and Ũ (off the diagonal)
+	// The update file: eta e pivots on position ePos[e] (pivot ePiv[e]);
+	// its other entries are eVal[eStart[e]:eStart[e+1]], at the positions
+	// eIdx[eIdxAt[e]:] when eIdxAt[e] >= 0 (sparse) and at every position,
+	// the pivot's and dropped ones zero, when eIdxAt[e] < 0 (dense). eNZ
+	// counts the nonzeros the etas hold.
+	eStart, eIdx, eIdxAt, ePos []int
+	eVal, ePiv                 []float64
+	eNZ                        int
+	work                       []float64
 	// factorisation scratch
 	count, order, touched, rc []int
 	mark                      []bool
@@ -65,20 +71,54 @@ const (
 // are reused when large enough.
 func basisMatrix(head []int, n int, start, index []int, value []float64, bStart, bIdx []int, bVal []float64) ([]int, []int, []float64) {
 	bStart = resize(bStart, len(head)+1)
-	bIdx, bVal = bIdx[:0], bVal[:0]
+	nz := 0
 	for r, k := range head {
-		bStart[r] = len(bIdx)
+		bStart[r] = nz
 		if k >= n {
-			bIdx = append(bIdx, k-n)
-			bVal = append(bVal, -1)
+			nz++
+		} else {
+			nz += start[k+1] - start[k]
+		}
+	}
+	bStart[len(head)] = nz
+	bIdx, bVal = resize(bIdx, nz), resize(bVal, nz)
+	for r, k := range head {
+		q := bStart[r]
+		if k >= n {
+			bIdx[q], bVal[q] = k-n, -1
 			continue
 		}
-		bIdx = append(bIdx, index[start[k]:start[k+1]]...)
-		bVal = append(bVal, value[start[k]:start[k+1]]...)
+		copy(bIdx[q:], index[start[k]:start[k+1]])
+		copy(bVal[q:], value[start[k]:start[k+1]])
 	}
-	bStart[len(head)] = len(bIdx)
 	return bStart, bIdx, bVal
 }
+
+// reserve gives f its arrays for bases of m rows, the fixed ones and an
+// update file for etaReserve dense updates and L̃ and Ũ for the slack
+// basis, carved by takeInt and takeFloat from
+// the caller's blocks; factorize then allocates only what a basis
+// denser than the slack basis needs.
+func (f *factor) reserve(m int, takeInt func(int) []int, takeFloat func(int) []float64, mark []bool) {
+	ints := takeInt(9*m + 4)
+	f.prow, f.pcol, f.rowStep = ints[:m:m], ints[m:2*m:2*m], ints[2*m:3*m:3*m]
+	f.lStart, f.uStart = ints[3*m:3*m:4*m+1], ints[4*m+1:4*m+1:5*m+2]
+	f.order, f.rc, f.count = ints[5*m+2:6*m+2:6*m+2], ints[6*m+2:7*m+2:7*m+2], ints[7*m+2:8*m+4:8*m+4]
+	f.touched = ints[8*m+4 : 8*m+4 : 9*m+4]
+	fl := takeFloat(2 * m)
+	f.diag, f.work = fl[:m:m], fl[m:]
+	f.mark = mark[:m:m]
+	f.eIdx, f.eVal = takeInt(etaReserve * m / 4)[:0], takeFloat(etaReserve * m)[:0]
+	f.eStart, f.ePos, f.ePiv = takeInt(etaReserve + 1)[:0], takeInt(etaReserve)[:0], takeFloat(etaReserve)[:0]
+	f.eIdxAt = takeInt(etaReserve)[:0]
+	nz := m/2 + m // what factorize asks for the slack basis
+	f.lIdx, f.uIdx, f.lVal, f.uVal = takeInt(nz)[:0], takeInt(nz)[:0], takeFloat(nz)[:0], takeFloat(nz)[:0]
+}
+
+// etaReserve is the update file's first size, in dense updates (or four
+// times as many sparse ones, of at most half the positions each) of the
+// basis's rows (a cold solve of a blend makes a dozen or two).
+const etaReserve = 16
 
 // factorize computes the LU factors of the m x m matrix whose column p is
 // given in compressed sparse column form (bStart, bIdx, bVal). It returns
@@ -113,12 +153,14 @@ func (f *factor) factorize(m int, bStart, bIdx []int, bVal []float64) (bad, free
 	}
 	f.lIdx, f.lVal, f.uIdx, f.uVal = f.lIdx[:0], f.lVal[:0], f.uIdx[:0], f.uVal[:0]
 	f.lSteps = f.lSteps[:0]
-	if cap(f.eIdx) < 8*m {
-		f.eIdx, f.eVal = make([]int, 0, 8*m), make([]float64, 0, 8*m)
-		f.eStart, f.ePos, f.ePiv = make([]int, 0, maxEtas+1), make([]int, 0, maxEtas), make([]float64, 0, maxEtas)
+	if cap(f.eVal) < 8*m || cap(f.eStart) < etaReserve+1 {
+		f.eIdx, f.eVal = make([]int, 0, etaReserve*m/4), make([]float64, 0, etaReserve*m)
+		f.eStart, f.ePos, f.ePiv = make([]int, 0, etaReserve+1), make([]int, 0, etaReserve), make([]float64, 0, etaReserve)
+		f.eIdxAt = make([]int, 0, etaReserve)
 	}
 	f.eStart = append(f.eStart[:0], 0)
 	f.eIdx, f.eVal, f.ePos, f.ePiv = f.eIdx[:0], f.eVal[:0], f.ePos[:0], f.ePiv[:0]
+	f.eIdxAt, f.eNZ = f.eIdxAt[:0], 0
 	f.work = resize(f.work, m)
 	f.mark = resize(f.mark, m)
 	clear(f.work)
@@ -241,44 +283,75 @@ func (f *factor) factorize(m int, bStart, bIdx []int, bVal []float64) (bad, free
 }
 
 // ftran solves B z = a. a is indexed by row and is overwritten; z, indexed
-// by basis position, receives the solution.
+// by basis position, receives the solution. (The loops run on local
+// slices, one column's at a time, so that bounds are checked once per
+// column rather than once per entry.)
 func (f *factor) ftran(a, z []float64) {
+	m := f.m
+	prow, pcol, diag := f.prow[:m], f.pcol[:m], f.diag[:m]
+	lStart, lIdx, lVal := f.lStart, f.lIdx, f.lVal
 	for _, t := range f.lSteps {
-		v := a[f.prow[t]]
+		v := a[prow[t]]
 		if v == 0 {
 			continue
 		}
-		for k := f.lStart[t]; k < f.lStart[t+1]; k++ {
-			a[f.lIdx[k]] -= f.lVal[k] * v
+		idx := lIdx[lStart[t]:lStart[t+1]]
+		val := lVal[lStart[t]:lStart[t+1]]
+		val = val[:len(idx)]
+		for k, i := range idx {
+			a[i] -= val[k] * v
 		}
 	}
-	y := f.work
-	for t := 0; t < f.m; t++ {
-		y[t] = a[f.prow[t]]
-	}
-	for t := f.m - 1; t >= 0; t-- {
-		v := y[t]
-		if v == 0 {
-			continue
+	if len(f.uIdx) == 0 {
+		// Ũ is diagonal (the slack basis and other triangular ones
+		// whose columns are singletons): one pass, same operations.
+		for t, i := range prow {
+			v := a[i]
+			if v != 0 {
+				v /= diag[t]
+			}
+			z[pcol[t]] = v
 		}
-		v /= f.diag[t]
-		y[t] = v
-		for k := f.uStart[t]; k < f.uStart[t+1]; k++ {
-			y[f.uIdx[k]] -= f.uVal[k] * v
+	} else {
+		y := f.work[:m]
+		for t, i := range prow {
+			y[t] = a[i]
+		}
+		uStart, uIdx, uVal := f.uStart, f.uIdx, f.uVal
+		for t := m - 1; t >= 0; t-- {
+			v := y[t]
+			if v == 0 {
+				continue
+			}
+			v /= diag[t]
+			y[t] = v
+			idx := uIdx[uStart[t]:uStart[t+1]]
+			val := uVal[uStart[t]:uStart[t+1]]
+			val = val[:len(idx)]
+			for k, s := range idx {
+				y[s] -= val[k] * v
+			}
+		}
+		for t, p := range pcol {
+			z[p] = y[t]
 		}
 	}
-	for t := 0; t < f.m; t++ {
-		z[f.pcol[t]] = y[t]
-	}
+	eStart, eIdx, eIdxAt, eVal, ePiv := f.eStart, f.eIdx, f.eIdxAt, f.eVal, f.ePiv
 	for e, r := range f.ePos {
 		v := z[r]
 		if v == 0 {
 			continue
 		}
-		v /= f.ePiv[e]
+		v /= ePiv[e]
 		z[r] = v
-		for k := f.eStart[e]; k < f.eStart[e+1]; k++ {
-			z[f.eIdx[k]] -= f.eVal[k] * v
+		val := eVal[eStart[e]:eStart[e+1]]
+		if at := eIdxAt[e]; at < 0 {
+			axpy(z[:len(val)], val, -v)
+		} else {
+			idx := eIdx[at : at+len(val)]
+			for k, i := range idx {
+				z[i] -= val[k] * v
+			}
 		}
 	}
 }
@@ -286,43 +359,91 @@ func (f *factor) ftran(a, z []float64) {
 // btran solves Bᵀ π = e. e is indexed by basis position and is
 // overwritten; π, indexed by row, receives the solution.
 func (f *factor) btran(e, pi []float64) {
+	m := f.m
+	eStart, eIdx, eIdxAt, eVal, ePiv := f.eStart, f.eIdx, f.eIdxAt, f.eVal, f.ePiv
 	for k := len(f.ePos) - 1; k >= 0; k-- {
 		r := f.ePos[k]
 		s := e[r]
-		for q := f.eStart[k]; q < f.eStart[k+1]; q++ {
-			s -= f.eVal[q] * e[f.eIdx[q]]
+		val := eVal[eStart[k]:eStart[k+1]]
+		if at := eIdxAt[k]; at < 0 {
+			s = subDot(s, val, e)
+		} else {
+			idx := eIdx[at : at+len(val)]
+			for q, i := range idx {
+				s -= val[q] * e[i]
+			}
 		}
-		e[r] = s / f.ePiv[k]
+		e[r] = s / ePiv[k]
 	}
-	y := f.work
-	for t := 0; t < f.m; t++ {
-		s := e[f.pcol[t]]
-		for k := f.uStart[t]; k < f.uStart[t+1]; k++ {
-			s -= f.uVal[k] * y[f.uIdx[k]]
+	prow, pcol, diag := f.prow[:m], f.pcol[:m], f.diag[:m]
+	if len(f.uIdx) == 0 && len(f.lIdx) == 0 {
+		// L̃ and Ũ are diagonal: one pass, same operations.
+		for t, p := range pcol {
+			pi[prow[t]] = e[p] / diag[t]
 		}
-		y[t] = s / f.diag[t]
+		return
 	}
-	for t := f.m - 1; t >= 0; t-- {
+	y := f.work[:m]
+	uStart, uIdx, uVal := f.uStart, f.uIdx, f.uVal
+	for t, p := range pcol {
+		s := e[p]
+		idx := uIdx[uStart[t]:uStart[t+1]]
+		val := uVal[uStart[t]:uStart[t+1]]
+		val = val[:len(idx)]
+		for k, u := range idx {
+			s -= val[k] * y[u]
+		}
+		y[t] = s / diag[t]
+	}
+	lStart, lIdx, lVal := f.lStart, f.lIdx, f.lVal
+	for t := m - 1; t >= 0; t-- {
 		s := y[t]
-		for k := f.lStart[t]; k < f.lStart[t+1]; k++ {
-			s -= f.lVal[k] * pi[f.lIdx[k]]
+		idx := lIdx[lStart[t]:lStart[t+1]]
+		val := lVal[lStart[t]:lStart[t+1]]
+		val = val[:len(idx)]
+		for k, i := range idx {
+			s -= val[k] * pi[i]
 		}
-		pi[f.prow[t]] = s
+		pi[prow[t]] = s
 	}
 }
 
 // update records the basis change at position r whose entering column is
-// alpha = B⁻¹a_q (indexed by position).
+// alpha = B⁻¹a_q (indexed by position). An eta with nonzeros in more than
+// half the positions is kept dense: FTRAN and BTRAN then run over it
+// without indices, which costs less than reading them (the choice of
+// storage by density, as for the hypersparse and dense solves of
+// Koberstein 2005, ch. 6). Entries at most luDrop are zero either way.
 func (f *factor) update(r int, alpha []float64) {
 	f.ePos = append(f.ePos, r)
 	f.ePiv = append(f.ePiv, alpha[r])
+	nz := 0
 	for i, v := range alpha {
 		if i != r && math.Abs(v) > luDrop {
-			f.eIdx = append(f.eIdx, i)
-			f.eVal = append(f.eVal, v)
+			nz++
 		}
 	}
-	f.eStart = append(f.eStart, len(f.eIdx))
+	f.eNZ += nz
+	if 2*nz > len(alpha) {
+		f.eIdxAt = append(f.eIdxAt, -1)
+		at := len(f.eVal)
+		f.eVal = append(f.eVal, alpha...)
+		ev := f.eVal[at:]
+		for i, v := range ev {
+			if i == r || math.Abs(v) <= luDrop {
+				ev[i] = 0
+			}
+		}
+	} else {
+		f.eIdxAt = append(f.eIdxAt, len(f.eIdx))
+		for i, v := range alpha {
+			if i != r && math.Abs(v) > luDrop {
+				f.eIdx = append(f.eIdx, i)
+				f.eVal = append(f.eVal, v)
+			}
+		}
+	}
+	f.eStart = append(f.eStart, len(f.eVal))
 }
 
 // updates is the number of updates since the last factorisation.
@@ -332,5 +453,40 @@ func (f *factor) updates() int { return len(f.ePos) }
 // updates, or once the eta file holds several times the nonzeros of the
 // factors (solves then cost more than a new factorisation saves).
 func (f *factor) due() bool {
-	return len(f.ePos) >= maxEtas || len(f.eIdx) > max(8*(f.nnz+f.m), 32*f.m)
+	return len(f.ePos) >= maxEtas || f.eNZ > max(8*(f.nnz+f.m), 32*f.m)
+}
+
+// axpy adds a·x to y (len(y) >= len(x)), unrolled by four; each entry
+// gets y_i + a·x_i, i.e. y_i - v·x_i for a = -v exactly as written out.
+func axpy(y, x []float64, a float64) {
+	y = y[:len(x)]
+	i := 0
+	for ; i+4 <= len(x); i += 4 {
+		xs, ys := x[i:i+4:i+4], y[i:i+4:i+4]
+		ys[0] += a * xs[0]
+		ys[1] += a * xs[1]
+		ys[2] += a * xs[2]
+		ys[3] += a * xs[3]
+	}
+	for ; i < len(x); i++ {
+		y[i] += a * x[i]
+	}
+}
+
+// subDot is s - x_0·y_0 - x_1·y_1 - ..., subtracted in that order
+// (len(y) >= len(x)), unrolled by four.
+func subDot(s float64, x, y []float64) float64 {
+	y = y[:len(x)]
+	i := 0
+	for ; i+4 <= len(x); i += 4 {
+		xs, ys := x[i:i+4:i+4], y[i:i+4:i+4]
+		s -= xs[0] * ys[0]
+		s -= xs[1] * ys[1]
+		s -= xs[2] * ys[2]
+		s -= xs[3] * ys[3]
+	}
+	for ; i < len(x); i++ {
+		s -= x[i] * y[i]
+	}
+	return s
 }

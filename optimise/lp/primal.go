@@ -8,6 +8,7 @@ import "math"
 // cost prices a variable in (Optimal), a ray proves the objective
 // unbounded, or phase 1 ends with infeasibility left (Infeasible).
 func (s *Simplex) primal() (Status, error) {
+	s.devex = resize(s.devex, s.n+s.m)
 	for k := range s.devex {
 		s.devex[k] = 1
 	}

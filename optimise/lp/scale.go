@@ -22,17 +22,14 @@ func scaleFactors(p *Problem, rs, cs []float64, work *[]float64) {
 	if len(p.Value) == 0 {
 		return
 	}
-	// |a_ij| once; every pass reads it with the current factors.
-	w := resize(*work, len(p.Value)+3*p.Rows+p.Cols)
+	w := resize(*work, 3*p.Rows+p.Cols)
 	*work = w
-	abs, w := w[:len(p.Value)], w[len(p.Value):]
 	rmin, rmax, saveR, saveC := w[:p.Rows], w[p.Rows:2*p.Rows], w[2*p.Rows:3*p.Rows], w[3*p.Rows:]
-	for k, v := range p.Value {
-		if v < 0 {
-			v = -v
-		}
-		abs[k] = v
-	}
+	rmax = rmax[:len(rmin)] // one bounds check serves both
+	// Every pass reads |a_ij| with the current factors. The loops run on
+	// local slices, column by column, so that the compiler keeps the
+	// bounds in registers and checks each column's once.
+	start, index, val := p.Start[:p.Cols+1], p.Index, p.Value
 	prev := math.Inf(1)
 	for pass := 0; pass < 8; pass++ {
 		copy(saveR, rs)
@@ -40,11 +37,12 @@ func scaleFactors(p *Problem, rs, cs []float64, work *[]float64) {
 		for i := range rmin {
 			rmin[i], rmax[i] = math.Inf(1), 0
 		}
-		for j := 0; j < p.Cols; j++ {
-			c := cs[j]
-			for k := p.Start[j]; k < p.Start[j+1]; k++ {
-				i := p.Index[k]
-				a := abs[k] * c
+		for j, c := range cs {
+			idx := index[start[j]:start[j+1]]
+			v := val[start[j]:start[j+1]]
+			v = v[:len(idx)]
+			for k, i := range idx {
+				a := math.Abs(v[k]) * c
 				if a < rmin[i] {
 					rmin[i] = a
 				}
@@ -71,10 +69,13 @@ func scaleFactors(p *Problem, rs, cs []float64, work *[]float64) {
 		}
 		// Columns: scale, and the spread after this pass.
 		lo, hi := math.Inf(1), 0.0
-		for j := 0; j < p.Cols; j++ {
+		for j := range cs {
+			idx := index[start[j]:start[j+1]]
+			v := val[start[j]:start[j+1]]
+			v = v[:len(idx)]
 			cmin, cmax := math.Inf(1), 0.0
-			for k := p.Start[j]; k < p.Start[j+1]; k++ {
-				a := abs[k] * rs[p.Index[k]]
+			for k, i := range idx {
+				a := math.Abs(v[k]) * rs[i]
 				if a < cmin {
 					cmin = a
 				}
@@ -101,10 +102,13 @@ func scaleFactors(p *Problem, rs, cs []float64, work *[]float64) {
 	for i := range rs {
 		rs[i] = pow2(rs[i])
 	}
-	for j := 0; j < p.Cols; j++ {
+	for j := range cs {
+		idx := index[start[j]:start[j+1]]
+		v := val[start[j]:start[j+1]]
+		v = v[:len(idx)]
 		hi := 0.0
-		for k := p.Start[j]; k < p.Start[j+1]; k++ {
-			hi = max(hi, abs[k]*rs[p.Index[k]])
+		for k, i := range idx {
+			hi = max(hi, math.Abs(v[k])*rs[i])
 		}
 		if hi > 0 {
 			cs[j] = pow2(1 / hi)

@@ -70,7 +70,7 @@ type Simplex struct {
 	head     []int     // variable at each basis position
 	y        []float64 // row duals of the last pricing (scaled)
 	dse      []float64 // dual steepest-edge weights by position
-	devex    []float64 // primal Devex weights by variable
+	devex    []float64 // primal Devex weights by variable (made by primal)
 
 	lu                   factor
 	haveBasis, luOK      bool
@@ -180,18 +180,23 @@ func (s *Simplex) Close() {}
 // basis is kept as the start of the next Solve (and the factorisation and
 // weights with it when the matrix is the same too).
 func (s *Simplex) Load(p *Problem) error {
+	if !s.loaded && len(p.RowLo) == p.Rows && len(p.Obj) == p.Cols && len(p.Index) == len(p.Value) {
+		// A fresh engine has nothing to keep: lay everything out before
+		// the check, whose scratch is part of the block.
+		s.allocShape(p.Rows, p.Cols, len(p.Value))
+	}
 	if err := p.check(&s.seen); err != nil {
 		return err
 	}
 	sameMatrix := s.loaded && s.prob.sameMatrix(p)
 	sameShape := s.loaded && s.m == p.Rows && s.n == p.Cols
+	if s.loaded && !sameShape {
+		s.allocShape(p.Rows, p.Cols, len(p.Value))
+	}
 	p.copyInto(&s.prob)
 	s.loaded = true
 	s.fresh = false
 	s.m, s.n = p.Rows, p.Cols
-	if !sameShape {
-		s.allocShape()
-	}
 	if !sameMatrix {
 		s.setMatrix()
 		s.luOK, s.dseOK = false, false
@@ -210,9 +215,12 @@ func (s *Simplex) Load(p *Problem) error {
 }
 
 // setMatrix scales the loaded matrix and lays it out by columns and rows.
+// Unscaled (Options.NoScaling), the matrix by columns is the problem's
+// own copy.
 func (s *Simplex) setMatrix() {
 	p := &s.prob
 	m, n := s.m, s.n
+	s.cStart, s.cIdx = p.Start, p.Index // the own copy of the problem
 	if s.opt.NoScaling {
 		for i := range s.rs {
 			s.rs[i] = 1
@@ -220,15 +228,18 @@ func (s *Simplex) setMatrix() {
 		for j := range s.cs {
 			s.cs[j] = 1
 		}
+		s.cVal = p.Value
 	} else {
 		scaleFactors(p, s.rs, s.cs, &s.scaleWork)
-	}
-	nz := len(p.Value)
-	s.cStart, s.cIdx = p.Start, p.Index // the own copy of the problem
-	s.cVal = resize(s.cVal, nz)
-	for j := 0; j < n; j++ {
-		for k := p.Start[j]; k < p.Start[j+1]; k++ {
-			s.cVal[k] = s.rs[p.Index[k]] * p.Value[k] * s.cs[j]
+		s.cVal = resize(s.cVal, len(p.Value))
+		rs, start, index, value := s.rs, p.Start[:n+1], p.Index, p.Value
+		for j, c := range s.cs[:n] {
+			lo, hi := start[j], start[j+1]
+			idx, val, out := index[lo:hi], value[lo:hi], s.cVal[lo:hi]
+			val, out = val[:len(idx)], out[:len(idx)]
+			for k, i := range idx {
+				out[k] = rs[i] * val[k] * c
+			}
 		}
 	}
 	s.rStart, s.rIdx, s.rVal = byRows(m, s.cStart, s.cIdx, s.cVal, s.rStart, s.rIdx, s.rVal)
@@ -326,30 +337,60 @@ func (s *Simplex) Basis() []VarStatus {
 	return append([]VarStatus(nil), s.stat...)
 }
 
-// allocShape lays out every array whose size depends only on the shape,
-// floats in one block and integers in another.
-func (s *Simplex) allocShape() {
-	m, n := s.m, s.n
+// allocShape lays out every array of an m x n problem with nz nonzeros
+// that a load and a solve need (the shape's arrays, the problem's copy,
+// the scaled matrix by columns and by rows, the scaling's and the check's
+// scratch): floats in one block and integers in another, so that a cold
+// solve makes few allocations for the garbage collector to follow.
+func (s *Simplex) allocShape(m, n, nz int) {
 	nm := n + m
-	const perVar, perRow = 10, 8
-	f := make([]float64, perVar*nm+perRow*m+n)
+	const perVar, perRow = 9, 8
+	scaled := 2*nz + 3*m + n // scaled by columns, the scaling's scratch
+	if s.opt.NoScaling {
+		scaled = 0 // setMatrix uses the problem's copy
+	}
+	nf := perVar*nm + perRow*m + n + // the shape's
+		nz + 3*n + 2*m + // the problem's copy
+		nz + scaled + // by rows, and the scaled
+		2*m + etaReserve*m + etaReserve + 2*(m/2+m) + // the factors'
+		2*m // the basis matrix's first columns
+	f := make([]float64, nf)
 	take := func(k int) []float64 {
 		v := f[:k:k]
 		f = f[k:]
 		return v
 	}
 	s.cost, s.shift, s.lo0, s.up0, s.lo = take(nm), take(nm), take(nm), take(nm), take(nm)
-	s.up, s.x, s.d, s.devex, s.alphaR = take(nm), take(nm), take(nm), take(nm), take(nm)
+	s.up, s.x, s.d, s.alphaR = take(nm), take(nm), take(nm), take(nm)
+	s.devex = nil // the primal simplex's, made by its first run
 	s.y, s.dse, s.wRow, s.wPos = take(m), take(m), take(m), take(m)
 	s.rho, s.tau, s.alphaQ, s.rs = take(m), take(m), take(m), take(m)
 	s.cs = take(n)
-	ints := make([]int, nm+m)
-	s.pos, s.head = ints[:nm:nm], ints[nm:]
+	// Empty with room: copyInto, byRows and scaleFactors fill them.
+	s.prob.Value, s.prob.Obj, s.prob.ColLo, s.prob.ColUp = take(nz)[:0], take(n)[:0], take(n)[:0], take(n)[:0]
+	s.prob.RowLo, s.prob.RowUp = take(m)[:0], take(m)[:0]
+	s.rVal = take(nz)[:0]
+	if !s.opt.NoScaling {
+		s.cVal, s.scaleWork = take(nz)[:0], take(3*m + n)[:0]
+	}
+	ints := make([]int, 3*nm+m+(n+1)+nz+(m+1)+nz+m+
+		9*m+4+etaReserve*m/4+3*etaReserve+1+2*(m/2+m)+ // the factors'
+		m+1+2*m) // the basis matrix's
+	takeInt := func(k int) []int {
+		v := ints[:k:k]
+		ints = ints[k:]
+		return v
+	}
+	s.pos, s.head = takeInt(nm), takeInt(m)
+	s.nzR, s.flips = takeInt(nm)[:0], takeInt(nm)[:0]
+	s.prob.Start, s.prob.Index = takeInt(n + 1)[:0], takeInt(nz)[:0]
+	s.rStart, s.rIdx, s.seen = takeInt(m + 1)[:0], takeInt(nz)[:0], takeInt(m)[:0]
+	s.bStart, s.bIdx, s.bVal = takeInt(m + 1)[:0], takeInt(2 * m)[:0], take(2 * m)[:0]
+	bools := make([]bool, nm+m)
+	s.inR = bools[:nm:nm]
+	s.lu.reserve(m, takeInt, take, bools[nm:])
 	s.stat = make([]VarStatus, nm)
-	s.inR = make([]bool, nm)
-	s.nzR = make([]int, 0, nm)
 	s.cand = make([]candidate, 0, nm)
-	s.flips = make([]int, 0, 16)
 }
 
 // slackBasis makes every logical basic and puts each column at a bound:
@@ -428,8 +469,11 @@ func (s *Simplex) addCol(k int, v float64, w []float64) {
 		w[k-s.n] -= v
 		return
 	}
-	for q := s.cStart[k]; q < s.cStart[k+1]; q++ {
-		w[s.cIdx[q]] += v * s.cVal[q]
+	idx := s.cIdx[s.cStart[k]:s.cStart[k+1]]
+	val := s.cVal[s.cStart[k]:s.cStart[k+1]]
+	val = val[:len(idx)]
+	for q, i := range idx {
+		w[i] += v * val[q]
 	}
 }
 
@@ -484,16 +528,22 @@ func (s *Simplex) computeD() {
 		e[r] = s.cost[k] + s.shift[k]
 	}
 	s.lu.btran(e, s.y)
-	for j := 0; j < s.n; j++ {
-		if s.stat[j] == Basic {
-			s.d[j] = 0
+	n := s.n
+	stat, cost, shift, d, y := s.stat[:n], s.cost[:n], s.shift[:n], s.d[:n], s.y
+	cStart, cIdx, cVal := s.cStart[:n+1], s.cIdx, s.cVal
+	for j, st := range stat {
+		if st == Basic {
+			d[j] = 0
 			continue
 		}
-		v := s.cost[j] + s.shift[j]
-		for q := s.cStart[j]; q < s.cStart[j+1]; q++ {
-			v -= s.cVal[q] * s.y[s.cIdx[q]]
+		v := cost[j] + shift[j]
+		idx := cIdx[cStart[j]:cStart[j+1]]
+		val := cVal[cStart[j]:cStart[j+1]]
+		val = val[:len(idx)]
+		for q, i := range idx {
+			v -= val[q] * y[i]
 		}
-		s.d[j] = v
+		d[j] = v
 	}
 	for i := 0; i < s.m; i++ {
 		k := s.n + i
