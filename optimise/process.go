@@ -42,6 +42,12 @@ const (
 	slpPenalty  = 10.0 // merit weight of SFC violation per unit of the largest SFC shadow price
 	slpReactor  = 30.0 // % of batch fed to the reactor in the reactor start point
 	slpGainTol  = 1e-4 // relative to the cost: a promised saving below this ends the search
+	// The best blend is tried again without the stocks it uses at less than
+	// slpSmallShare % of the batch, with at most slpSmallIter more LP
+	// solves (procModel.dropSmall).
+	slpSmallShare = 1.0
+	slpSmallIter  = 30
+	slpSmallMin   = 5
 )
 
 // solveProcess is Solve for a spec with a [process] step: stocks listed
@@ -189,11 +195,27 @@ func (pm *procModel) search(eng *engine, wb *wholeBlend) (*slpFound, error) {
 			f.best = run
 		}
 	}
-	best := f.best
-	if best == nil {
+	if f.best == nil {
 		return f, nil
 	}
+	polished, err := pm.dropSmall(eng, wb, f)
+	if err != nil {
+		return nil, err
+	}
+	best := f.best
 	f.m, f.sol = best.m, best.sol
+	if polished {
+		// best's own LP is the model without the stocks dropped; the
+		// reports read the full model, boxed tightly around the blend
+		// unless the unboxed LP below stays at it.
+		if lin, err := wb.linearise(best.cur); err == nil {
+			lm := pm.lp(lin, best.cur, 1e-9)
+			if s, err := eng.solveLP(lm); err == nil && s.status == solOptimal {
+				f.m, f.sol = lm, s
+				f.iters++
+			}
+		}
+	}
 	// Duals of the linearisation at the answer without the trust-region
 	// box, when that LP stays at the answer; otherwise those of the boxed LP.
 	if lin, err := wb.linearise(best.cur); err == nil {
@@ -208,6 +230,80 @@ func (pm *procModel) search(eng *engine, wb *wholeBlend) (*slpFound, error) {
 		}
 	}
 	return f, nil
+}
+
+// dropSmall tries the search's best blend without the stocks it uses at
+// less than slpSmallShare % of the batch (and that no [use] minimum keeps
+// in): the successive LP is a local search, and a stock it leaves at a
+// dose of a few kilograms is often one it took in on the way and could
+// not quite let go of. The blend without them is searched again from the
+// best blend with them taken out, at most slpSmallIter LP solves within
+// the search's cap of slpMaxIter (none when fewer than slpSmallMin are
+// left), and replaces f.best when it meets the SFC limits and costs less.
+// It reports whether it did.
+func (pm *procModel) dropSmall(eng *engine, wb *wholeBlend, f *slpFound) (bool, error) {
+	// within the search's cap, keeping two LP solves for the duals (the
+	// run's own and the report's)
+	budget := min(slpSmallIter, slpMaxIter-f.iters-2)
+	if budget < slpSmallMin {
+		return false, nil
+	}
+	best := f.best
+	q := pm.without(func(j int) bool {
+		t := best.cur.x[j]
+		if k := pm.isFeed[j]; k >= 0 {
+			t += best.cur.z[k]
+		}
+		return t > 0 && t < slpSmallShare && pm.base.colLo[j] <= 0
+	})
+	if q == nil {
+		return false, nil
+	}
+	start := q.newPoint()
+	for j := range start.x {
+		if q.base.colUp[j] > 0 {
+			start.x[j] = best.cur.x[j]
+		}
+	}
+	for k, j := range q.feed {
+		if q.base.colUp[j] > 0 {
+			start.z[k] = best.cur.z[k]
+		}
+	}
+	run, err := q.slp(eng, wb, slpStart{at: start}, budget)
+	if err != nil {
+		return false, err
+	}
+	f.iters += run.iters
+	if run.sol == nil || run.viol.max > slpSFCTol || run.cost >= best.cost-1e-9*(1+math.Abs(best.cost)) {
+		return false, nil
+	}
+	f.best = run
+	return true, nil
+}
+
+// without is pm with the stock columns j for which drop(j) holds capped at
+// 0 (a copy of the base model's column bounds; everything else shared), or
+// nil when drop holds for none.
+func (pm *procModel) without(drop func(j int) bool) *procModel {
+	var colUp []float64
+	for j := 0; j < pm.lay.n(); j++ {
+		if !drop(j) {
+			continue
+		}
+		if colUp == nil {
+			colUp = append([]float64(nil), pm.base.colUp...)
+		}
+		colUp[j] = 0
+	}
+	if colUp == nil {
+		return nil
+	}
+	base := *pm.base
+	base.colUp = colUp
+	q := *pm
+	q.base = &base
+	return &q
 }
 
 // slpRun is one successive-LP search from a start point.
@@ -457,7 +553,9 @@ func (pm *procModel) costOf(p *procPoint) float64 {
 // blend that meets the limits: the LP with measured curves (when every
 // stock that may enter has them), the cheapest blend ignoring the SFC
 // limits, and that blend with 30 % of the batch sent through the reactor in
-// equal parts of its feed stocks. Shadow prices and cost ranging are those
+// equal parts of its feed stocks. The cheapest is then searched once more
+// without the stocks it holds at under 1 % of the batch, and replaced when
+// that is cheaper (procModel.dropSmall). Shadow prices and cost ranging are those
 // of the final LP: of the linearised model at the answer.
 //
 // An impossible spec is reported with the relaxation of a model without

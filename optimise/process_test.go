@@ -646,3 +646,45 @@ func TestProcessPredictedNeedsNoCurves(t *testing.T) {
 	_, err = Solve(bad, spec, Options{})
 	require.NoError(t, err)
 }
+
+// Leaving stocks out of a spec can never make its cheapest blend cheaper
+// (a restriction of a minimisation does not lower its minimum: the
+// feasible set only shrinks), so the search on the demo process spec must
+// come out no dearer than on the same spec with any demo stock, or the
+// two it once held at tiny doses (fh-rapeseed 0.03 %, coconut 0.55 %),
+// capped at 0. The successive LP is a local search; procModel.dropSmall is
+// what makes the second case hold.
+func TestProcessNotDearerThanRestricted(t *testing.T) {
+	cat := catalogue.DemoStocks()
+	spec, ps := catalogue.LoadSpec("../testdata/process-margarine.toml", cat)
+	require.Empty(t, ps.Errors())
+	full, err := Solve(cat, spec, Options{})
+	require.NoError(t, err)
+	require.Equal(t, Optimal, full.Status)
+	sets := [][]string{{"fh-rapeseed", "coconut"}}
+	for _, s := range cat.Stocks {
+		sets = append(sets, []string{s.ID})
+	}
+	for _, out := range sets {
+		sp := spec.Clone()
+		for _, id := range out {
+			setUseMax(sp, id, 0)
+		}
+		r, err := Solve(cat, sp, Options{})
+		if err != nil || r.Status != Optimal {
+			continue // left out, a feed stock or the spec's limits refuse it
+		}
+		assert.LessOrEqual(t, full.CostPerTonne, r.CostPerTonne*(1+1e-9), "without %v the blend costs %.4f, the full search found %.4f", out, r.CostPerTonne, full.CostPerTonne)
+	}
+}
+
+// setUseMax caps stock id at max % of the batch in spec's [use].
+func setUseMax(spec *catalogue.Spec, id string, max float64) {
+	for i := range spec.Use {
+		if spec.Use[i].Stock == id {
+			spec.Use[i].Bound.Max = max
+			return
+		}
+	}
+	spec.Use = append(spec.Use, catalogue.Use{Stock: id, Bound: catalogue.Bound{Min: math.Inf(-1), Max: max}})
+}
