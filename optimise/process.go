@@ -207,8 +207,13 @@ func (pm *procModel) search(eng *engine, wb *wholeBlend) (*slpFound, error) {
 	if polished {
 		// best's own LP is the model without the stocks dropped; the
 		// reports read the full model, boxed tightly around the blend
-		// unless the unboxed LP below stays at it.
+		// unless the unboxed LP below stays at it. Its SFC rows are
+		// elastic as in the search's LPs: the blend meets them only
+		// within slpSFCTol, and with hard rows inside a box of 1e-9 the LP
+		// has no answer when it is even 1e-10 short, which left the
+		// reports on the model with the dropped stocks capped at 0.
 		if lin, err := wb.linearise(best.cur); err == nil {
+			lin.mu = pm.mu
 			lm := pm.lp(lin, best.cur, 1e-9)
 			if s, err := eng.solveLP(lm); err == nil && s.status == solOptimal {
 				f.m, f.sol = lm, s
