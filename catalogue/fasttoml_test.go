@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"fmt"
 	"math/rand/v2"
+	"strings"
 	"testing"
 	"time"
 	"unicode/utf8"
@@ -133,6 +134,48 @@ func TestFastTOMLForms(t *testing.T) {
 			require.False(t, ok, "read, but the fast reader should leave it to the reference parser")
 		})
 	}
+}
+
+// TestFastTOMLStructure holds the fast reader to the reference parser
+// (sameAsReference) on documents generated from the forms where the
+// reading of structure can go wrong (toml.io/en/v1.0.0, "Table", "Inline
+// Table", "Array of Tables", "Keys"): headers and arrays of tables with
+// one to three parts, re-opened, implied and nested; the same key bare
+// and quoted; dotted names inside quotes; inline tables beside headers
+// that name them; comments and CRLF line ends. Byte-level fuzzing seldom
+// makes such a document.
+func TestFastTOMLStructure(t *testing.T) {
+	r := rand.New(rand.NewPCG(7, 9))
+	keys := []string{"a", "b", `"a"`, "'b'", `"a.b"`, "stock", "id", "fatty_acids", `"C16:0"`, "sfc", `"20"`, "c"}
+	vals := []string{"1", "-0", "1.5", "1e3", `"x"`, "'y'", "true", "{}", "{ a = 1 }", "{ b = { c = 2 }, a = 'z' }",
+		"0.0", "+7", `"\u00e9"`, "1_0", "2 # note"}
+	ends := []string{"\n", "\r\n", " # c\n"}
+	name := func() string {
+		parts := make([]string, 1+r.IntN(3))
+		for i := range parts {
+			parts[i] = keys[r.IntN(len(keys))]
+		}
+		return strings.Join(parts, ".")
+	}
+	read := 0
+	for range 20000 {
+		var b strings.Builder
+		for range 1 + r.IntN(8) {
+			switch r.IntN(4) {
+			case 0:
+				b.WriteString("[" + name() + "]")
+			case 1:
+				b.WriteString("[[" + name() + "]]")
+			default:
+				b.WriteString(keys[r.IntN(len(keys))] + " = " + vals[r.IntN(len(vals))])
+			}
+			b.WriteString(ends[r.IntN(len(ends))])
+		}
+		if sameAsReference(t, []byte(b.String())) {
+			read++
+		}
+	}
+	require.Greater(t, read, 5000, "the fast reader read almost none of the generated documents")
 }
 
 // FuzzFastTOML holds the fast reader to the reference parser on arbitrary
