@@ -216,11 +216,13 @@ func (s *Simplex) Load(p *Problem) error {
 
 // setMatrix scales the loaded matrix and lays it out by columns and rows.
 // Unscaled (Options.NoScaling), the matrix by columns is the problem's
-// own copy.
+// own copy. The layout by rows is made first, of the unscaled values: the
+// scaling's row passes run on it, and it is scaled in place after.
 func (s *Simplex) setMatrix() {
 	p := &s.prob
 	m, n := s.m, s.n
 	s.cStart, s.cIdx = p.Start, p.Index // the own copy of the problem
+	s.rStart, s.rIdx, s.rVal = byRows(m, p.Start, p.Index, p.Value, s.rStart, s.rIdx, s.rVal)
 	if s.opt.NoScaling {
 		for i := range s.rs {
 			s.rs[i] = 1
@@ -229,20 +231,30 @@ func (s *Simplex) setMatrix() {
 			s.cs[j] = 1
 		}
 		s.cVal = p.Value
-	} else {
-		scaleFactors(p, s.rs, s.cs, &s.scaleWork)
-		s.cVal = resize(s.cVal, len(p.Value))
-		rs, start, index, value := s.rs, p.Start[:n+1], p.Index, p.Value
-		for j, c := range s.cs[:n] {
-			lo, hi := start[j], start[j+1]
-			idx, val, out := index[lo:hi], value[lo:hi], s.cVal[lo:hi]
-			val, out = val[:len(idx)], out[:len(idx)]
-			for k, i := range idx {
-				out[k] = rs[i] * val[k] * c
-			}
+		return
+	}
+	scaleFactors(p, &rowMatrix{s.rStart, s.rIdx, s.rVal}, s.rs, s.cs, &s.scaleWork)
+	s.cVal = resize(s.cVal, len(p.Value))
+	rs, cs, start, index, value := s.rs[:m], s.cs[:n], p.Start[:n+1], p.Index, p.Value
+	for j, c := range cs {
+		lo, hi := start[j], start[j+1]
+		idx, val, out := index[lo:hi], value[lo:hi], s.cVal[lo:hi]
+		val, out = val[:len(idx)], out[:len(idx)]
+		for k, i := range idx {
+			out[k] = rs[i] * val[k] * c
 		}
 	}
-	s.rStart, s.rIdx, s.rVal = byRows(m, s.cStart, s.cIdx, s.cVal, s.rStart, s.rIdx, s.rVal)
+	// The same products by rows: rs[i]·a_ij·cs[j], evaluated in the same
+	// order, so both layouts hold the same numbers.
+	rStart := s.rStart[:m+1]
+	for i, r := range rs {
+		lo, hi := rStart[i], rStart[i+1]
+		idx, val := s.rIdx[lo:hi], s.rVal[lo:hi]
+		val = val[:len(idx)]
+		for k, j := range idx {
+			val[k] = r * val[k] * cs[j]
+		}
+	}
 }
 
 // setCol scales column j's cost and bounds.
@@ -345,7 +357,7 @@ func (s *Simplex) Basis() []VarStatus {
 func (s *Simplex) allocShape(m, n, nz int) {
 	nm := n + m
 	const perVar, perRow = 9, 8
-	scaled := 2*nz + 3*m + n // scaled by columns, the scaling's scratch
+	scaled := nz + m + n // scaled by columns, the scaling's scratch
 	if s.opt.NoScaling {
 		scaled = 0 // setMatrix uses the problem's copy
 	}
@@ -371,7 +383,7 @@ func (s *Simplex) allocShape(m, n, nz int) {
 	s.prob.RowLo, s.prob.RowUp = take(m)[:0], take(m)[:0]
 	s.rVal = take(nz)[:0]
 	if !s.opt.NoScaling {
-		s.cVal, s.scaleWork = take(nz)[:0], take(3*m + n)[:0]
+		s.cVal, s.scaleWork = take(nz)[:0], take(m + n)[:0]
 	}
 	ints := make([]int, 3*nm+m+(n+1)+nz+(m+1)+nz+m+
 		9*m+4+etaReserve*m/4+3*etaReserve+1+2*(m/2+m)+ // the factors'
