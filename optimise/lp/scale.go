@@ -246,8 +246,22 @@ func objFactor(obj, cs []float64) float64 {
 // apply writes p scaled into dst. dst shares p's Start and Index (engines
 // copy what they load); its other arrays are dst's own, reused.
 func (sc *scaling) apply(p, dst *Problem) {
-	dst.Rows, dst.Cols = p.Rows, p.Cols
 	dst.Start, dst.Index = p.Start, p.Index
+	sc.scaleInto(p, dst)
+}
+
+// applyInto is apply with p's Start and Index copied into dst's own
+// arrays (reused when large enough).
+func (sc *scaling) applyInto(p, dst *Problem) {
+	dst.Start = append(dst.Start[:0], p.Start...)
+	dst.Index = append(dst.Index[:0], p.Index...)
+	sc.scaleInto(p, dst)
+}
+
+// scaleInto writes p's values, costs and bounds scaled into dst's arrays
+// (reused when large enough) and sets dst's shape.
+func (sc *scaling) scaleInto(p, dst *Problem) {
+	dst.Rows, dst.Cols = p.Rows, p.Cols
 	dst.Value = resize(dst.Value, len(p.Value))
 	for j := 0; j < p.Cols; j++ {
 		c := sc.cs[j]
@@ -263,6 +277,28 @@ func (sc *scaling) apply(p, dst *Problem) {
 	for i := 0; i < p.Rows; i++ {
 		dst.RowLo[i], dst.RowUp[i] = p.RowLo[i]*sc.rs[i], p.RowUp[i]*sc.rs[i]
 	}
+}
+
+// sameScaled reports whether q is the matrix of p scaled by sc (as
+// scaleInto scales it): sameMatrix without the scaled copy.
+func (q *Problem) sameScaled(p *Problem, sc *scaling) bool {
+	if p.Rows != q.Rows || p.Cols != q.Cols || len(p.Index) != len(q.Index) {
+		return false
+	}
+	for j, s := range p.Start {
+		if q.Start[j] != s {
+			return false
+		}
+	}
+	for j := 0; j < p.Cols; j++ {
+		c := sc.cs[j]
+		for k := p.Start[j]; k < p.Start[j+1]; k++ {
+			if q.Index[k] != p.Index[k] || q.Value[k] != sc.rs[p.Index[k]]*p.Value[k]*c {
+				return false
+			}
+		}
+	}
+	return true
 }
 
 // costOf is column j's scaled cost for cost c.

@@ -188,12 +188,42 @@ func (s *Simplex) Load(p *Problem) error {
 	if err := p.check(&s.seen); err != nil {
 		return err
 	}
-	sameMatrix := s.loaded && s.prob.sameMatrix(p)
+	return s.load(p, nil)
+}
+
+// loadScaled is Load of p scaled by sc (as scaling.apply scales it),
+// written straight into the engine's own copy instead of through a scaled
+// copy of p first. p has passed Check; the scaled problem is checked
+// again (a bound scaled past the largest float is an error, as Load of
+// the scaled copy reports it).
+func (s *Simplex) loadScaled(p *Problem, sc *scaling) error {
+	if !s.loaded {
+		s.allocShape(p.Rows, p.Cols, len(p.Value))
+	}
+	return s.load(p, sc)
+}
+
+// load puts the checked problem p in, scaled by sc when sc is not nil.
+func (s *Simplex) load(p *Problem, sc *scaling) error {
+	var sameMatrix bool
+	if sc == nil {
+		sameMatrix = s.loaded && s.prob.sameMatrix(p)
+	} else {
+		sameMatrix = s.loaded && s.prob.sameScaled(p, sc)
+	}
 	sameShape := s.loaded && s.m == p.Rows && s.n == p.Cols
 	if s.loaded && !sameShape {
 		s.allocShape(p.Rows, p.Cols, len(p.Value))
 	}
-	p.copyInto(&s.prob)
+	if sc == nil {
+		p.copyInto(&s.prob)
+	} else {
+		sc.applyInto(p, &s.prob)
+		if err := s.prob.check(&s.seen); err != nil {
+			s.loaded, s.haveBasis = false, false // the copy held is not a loaded problem
+			return err
+		}
+	}
 	s.loaded = true
 	s.fresh = false
 	s.m, s.n = p.Rows, p.Cols
