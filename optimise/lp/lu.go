@@ -67,9 +67,10 @@ const (
 
 // basisMatrix lays out by columns the basis matrix whose position r holds
 // variable head[r]: column k < n of the matrix given by columns (start,
-// index, value), or -e_i for row i's logical n+i. bStart, bIdx and bVal
-// are reused when large enough.
-func basisMatrix(head []int, n int, start, index []int, value []float64, bStart, bIdx []int, bVal []float64) ([]int, []int, []float64) {
+// index, value), scaled to rs[i]·a_ij·cs[k] when rs is not nil, or -e_i
+// for row i's logical n+i. bStart, bIdx and bVal are reused when large
+// enough.
+func basisMatrix(head []int, n int, start, index []int, value, rs, cs []float64, bStart, bIdx []int, bVal []float64) ([]int, []int, []float64) {
 	bStart = resize(bStart, len(head)+1)
 	nz := 0
 	for r, k := range head {
@@ -88,8 +89,17 @@ func basisMatrix(head []int, n int, start, index []int, value []float64, bStart,
 			bIdx[q], bVal[q] = k-n, -1
 			continue
 		}
-		copy(bIdx[q:], index[start[k]:start[k+1]])
-		copy(bVal[q:], value[start[k]:start[k+1]])
+		idx, val := index[start[k]:start[k+1]], value[start[k]:start[k+1]]
+		copy(bIdx[q:], idx)
+		if rs == nil {
+			copy(bVal[q:], val)
+			continue
+		}
+		out, c := bVal[q:q+len(idx)], cs[k]
+		val = val[:len(idx)]
+		for t, i := range idx {
+			out[t] = rs[i] * val[t] * c
+		}
 	}
 	return bStart, bIdx, bVal
 }

@@ -208,9 +208,10 @@ func (s *Simplex) phase1Prices() bool {
 			s.d[k] = s.y[k-s.n]
 			continue
 		}
-		v := 0.0
+		v, c := 0.0, s.cs[k]
 		for q := s.cStart[k]; q < s.cStart[k+1]; q++ {
-			v -= s.cVal[q] * s.y[s.cIdx[q]]
+			i := s.cIdx[q]
+			v -= s.rs[i] * s.prob.Value[q] * c * s.y[i]
 		}
 		s.d[k] = v
 	}

@@ -35,7 +35,7 @@ func newBasisLU(p *Problem, basis []VarStatus) (*basisLU, error) {
 	if len(b.head) != m {
 		return nil, fmt.Errorf("%w: %d basic variables for %d rows", ErrBasis, len(b.head), m)
 	}
-	start, idx, val := basisMatrix(b.head, n, p.Start, p.Index, p.Value, nil, nil, nil)
+	start, idx, val := basisMatrix(b.head, n, p.Start, p.Index, p.Value, nil, nil, nil, nil, nil)
 	if bad, _ := b.f.factorize(m, start, idx, val); len(bad) > 0 {
 		return nil, fmt.Errorf("%w: %d dependent basic columns", ErrBasis, len(bad))
 	}

@@ -12,7 +12,11 @@ import "math"
 // Maros 2003, ch. 7, who recommends this order). Every factor is rounded to
 // a power of two, so scaling and unscaling are exact in binary floating
 // point (Maros 2003, ch. 7).
-func scaleFactors(p *Problem, rs, cs []float64, work *[]float64) {
+//
+// rows, when not nil, is p's matrix by rows (byRows): the row passes then
+// run row by row on it; without it they run on the columns, gathering
+// each row's extremes in scratch. Either way the factors are the same.
+func scaleFactors(p *Problem, rows *rowMatrix, rs, cs []float64, work *[]float64) {
 	for i := range rs {
 		rs[i] = 1
 	}
@@ -22,50 +26,29 @@ func scaleFactors(p *Problem, rs, cs []float64, work *[]float64) {
 	if len(p.Value) == 0 {
 		return
 	}
-	w := resize(*work, 3*p.Rows+p.Cols)
+	nw := p.Rows + p.Cols
+	if rows == nil {
+		nw += 2 * p.Rows
+	}
+	w := resize(*work, nw)
 	*work = w
-	rmin, rmax, saveR, saveC := w[:p.Rows], w[p.Rows:2*p.Rows], w[2*p.Rows:3*p.Rows], w[3*p.Rows:]
-	rmax = rmax[:len(rmin)] // one bounds check serves both
+	saveR, saveC := w[:p.Rows], w[p.Rows:p.Rows+p.Cols]
 	// Every pass reads |a_ij| with the current factors. The loops run on
-	// local slices, column by column, so that the compiler keeps the
-	// bounds in registers and checks each column's once.
+	// local slices, column by column (or row by row), so that the compiler
+	// keeps the bounds in registers and checks each column's once.
 	start, index, val := p.Start[:p.Cols+1], p.Index, p.Value
 	prev := math.Inf(1)
 	for pass := 0; pass < 8; pass++ {
 		copy(saveR, rs)
 		copy(saveC, cs)
-		for i := range rmin {
-			rmin[i], rmax[i] = math.Inf(1), 0
+		var done bool
+		if rows != nil {
+			done = rows.rowPass(rs, cs, pass == 0)
+		} else {
+			done = colRowPass(start, index, val, rs, cs, w[p.Rows+p.Cols:], pass == 0)
 		}
-		for j, c := range cs {
-			idx := index[start[j]:start[j+1]]
-			v := val[start[j]:start[j+1]]
-			v = v[:len(idx)]
-			for k, i := range idx {
-				a := math.Abs(v[k]) * c
-				if a < rmin[i] {
-					rmin[i] = a
-				}
-				if a > rmax[i] {
-					rmax[i] = a
-				}
-			}
-		}
-		if pass == 0 {
-			lo, hi := math.Inf(1), 0.0
-			for i := range rmin {
-				if rmax[i] > 0 {
-					lo, hi = min(lo, rmin[i]), max(hi, rmax[i])
-				}
-			}
-			if hi <= 4*lo {
-				return // already well scaled: entries within a factor of 4
-			}
-		}
-		for i := range rs {
-			if rmax[i] > 0 {
-				rs[i] = 1 / math.Sqrt(rmin[i]*rmax[i])
-			}
+		if done {
+			return // already well scaled: entries within a factor of 4
 		}
 		// Columns: scale, and the spread after this pass.
 		lo, hi := math.Inf(1), 0.0
@@ -116,6 +99,89 @@ func scaleFactors(p *Problem, rs, cs []float64, work *[]float64) {
 	}
 }
 
+// rowMatrix is a matrix by rows: row i's column numbers are
+// idx[start[i]:start[i+1]] with values val[...] (byRows).
+type rowMatrix struct {
+	start, idx []int
+	val        []float64
+}
+
+// rowPass sets each nonempty row's factor rs[i] to 1/√(min·max) of its
+// |a_ij|·cs[j], the geometric scaling of scaleFactors' row pass. On the
+// first pass (first), when every entry is already within a factor of 4 of
+// every other, it leaves rs at 1 and reports true.
+func (a *rowMatrix) rowPass(rs, cs []float64, first bool) bool {
+	start := a.start[:len(rs)+1]
+	lo, hi := math.Inf(1), 0.0
+	for i := range rs {
+		idx := a.idx[start[i]:start[i+1]]
+		v := a.val[start[i]:start[i+1]]
+		v = v[:len(idx)]
+		rmin, rmax := math.Inf(1), 0.0
+		for k, j := range idx {
+			e := math.Abs(v[k]) * cs[j]
+			if e < rmin {
+				rmin = e
+			}
+			if e > rmax {
+				rmax = e
+			}
+		}
+		if rmax > 0 {
+			lo, hi = min(lo, rmin), max(hi, rmax)
+			rs[i] = 1 / math.Sqrt(rmin*rmax)
+		}
+	}
+	if first && hi <= 4*lo {
+		for i := range rs {
+			rs[i] = 1
+		}
+		return true
+	}
+	return false
+}
+
+// colRowPass is rowPass on the matrix by columns (start, index, val),
+// each row's extremes gathered in scratch (2·len(rs) floats).
+func colRowPass(start, index []int, val, rs, cs, scratch []float64, first bool) bool {
+	rmin, rmax := scratch[:len(rs)], scratch[len(rs):2*len(rs)]
+	rmax = rmax[:len(rmin)] // one bounds check serves both
+	for i := range rmin {
+		rmin[i], rmax[i] = math.Inf(1), 0
+	}
+	for j, c := range cs {
+		idx := index[start[j]:start[j+1]]
+		v := val[start[j]:start[j+1]]
+		v = v[:len(idx)]
+		for k, i := range idx {
+			a := math.Abs(v[k]) * c
+			if a < rmin[i] {
+				rmin[i] = a
+			}
+			if a > rmax[i] {
+				rmax[i] = a
+			}
+		}
+	}
+	if first {
+		lo, hi := math.Inf(1), 0.0
+		for i := range rmin {
+			if rmax[i] > 0 {
+				lo, hi = min(lo, rmin[i]), max(hi, rmax[i])
+			}
+		}
+		if hi <= 4*lo {
+			return true
+		}
+	}
+	for i := range rs {
+		if rmax[i] > 0 {
+			rs[i] = 1 / math.Sqrt(rmin[i]*rmax[i])
+		}
+	}
+	return false
+}
+
 // pow2 is the power of two nearest to v > 0 (in the logarithm): with
 // v = f·2^e, f in [0.5, 1), it is 2^e when f >= 1/√2 and 2^(e-1) below.
 func pow2(v float64) float64 {
@@ -145,7 +211,7 @@ type scaling struct {
 // the objective by objFactor.
 func (sc *scaling) set(p *Problem, integer []int) {
 	sc.rs, sc.cs = resize(sc.rs, p.Rows), resize(sc.cs, p.Cols)
-	scaleFactors(p, sc.rs, sc.cs, &sc.work)
+	scaleFactors(p, nil, sc.rs, sc.cs, &sc.work)
 	for _, j := range integer {
 		if j >= 0 && j < p.Cols {
 			sc.cs[j] = 1
@@ -180,8 +246,22 @@ func objFactor(obj, cs []float64) float64 {
 // apply writes p scaled into dst. dst shares p's Start and Index (engines
 // copy what they load); its other arrays are dst's own, reused.
 func (sc *scaling) apply(p, dst *Problem) {
-	dst.Rows, dst.Cols = p.Rows, p.Cols
 	dst.Start, dst.Index = p.Start, p.Index
+	sc.scaleInto(p, dst)
+}
+
+// applyInto is apply with p's Start and Index copied into dst's own
+// arrays (reused when large enough).
+func (sc *scaling) applyInto(p, dst *Problem) {
+	dst.Start = append(dst.Start[:0], p.Start...)
+	dst.Index = append(dst.Index[:0], p.Index...)
+	sc.scaleInto(p, dst)
+}
+
+// scaleInto writes p's values, costs and bounds scaled into dst's arrays
+// (reused when large enough) and sets dst's shape.
+func (sc *scaling) scaleInto(p, dst *Problem) {
+	dst.Rows, dst.Cols = p.Rows, p.Cols
 	dst.Value = resize(dst.Value, len(p.Value))
 	for j := 0; j < p.Cols; j++ {
 		c := sc.cs[j]
@@ -197,6 +277,28 @@ func (sc *scaling) apply(p, dst *Problem) {
 	for i := 0; i < p.Rows; i++ {
 		dst.RowLo[i], dst.RowUp[i] = p.RowLo[i]*sc.rs[i], p.RowUp[i]*sc.rs[i]
 	}
+}
+
+// sameScaled reports whether q is the matrix of p scaled by sc (as
+// scaleInto scales it): sameMatrix without the scaled copy.
+func (q *Problem) sameScaled(p *Problem, sc *scaling) bool {
+	if p.Rows != q.Rows || p.Cols != q.Cols || len(p.Index) != len(q.Index) {
+		return false
+	}
+	for j, s := range p.Start {
+		if q.Start[j] != s {
+			return false
+		}
+	}
+	for j := 0; j < p.Cols; j++ {
+		c := sc.cs[j]
+		for k := p.Start[j]; k < p.Start[j+1]; k++ {
+			if q.Index[k] != p.Index[k] || q.Value[k] != sc.rs[p.Index[k]]*p.Value[k]*c {
+				return false
+			}
+		}
+	}
+	return true
 }
 
 // costOf is column j's scaled cost for cost c.

@@ -26,7 +26,7 @@ func NewScaled() Engine { return Scaled(NewWith(Options{NoScaling: true})) }
 type scaled struct {
 	inner  Engine
 	p      Problem // as loaded, unscaled
-	sp     Problem // as the inner engine has it
+	sp     Problem // as the inner engine has it (unless it is lipoplan's simplex)
 	sc     scaling
 	loaded bool
 	seen   []int
@@ -47,6 +47,9 @@ func (s *scaled) Load(p *Problem) error {
 		s.sc.obj = objFactor(s.p.Obj, s.sc.cs)
 	} else {
 		s.sc.set(&s.p, nil)
+	}
+	if in, ok := s.inner.(*Simplex); ok {
+		return in.loadScaled(&s.p, &s.sc) // no scaled copy in between
 	}
 	s.sc.apply(&s.p, &s.sp)
 	return s.inner.Load(&s.sp)

@@ -53,9 +53,9 @@ type Simplex struct {
 	m, n   int
 	rs, cs []float64 // row and column scale factors
 
-	// scaled matrix by columns and by rows
+	// The matrix by columns (the problem's copy, scaled on the fly:
+	// rs[i]·a_ij·cs[j]) and, scaled, by rows.
 	cStart, cIdx []int
-	cVal         []float64
 	rStart, rIdx []int
 	rVal         []float64
 
@@ -188,12 +188,42 @@ func (s *Simplex) Load(p *Problem) error {
 	if err := p.check(&s.seen); err != nil {
 		return err
 	}
-	sameMatrix := s.loaded && s.prob.sameMatrix(p)
+	return s.load(p, nil)
+}
+
+// loadScaled is Load of p scaled by sc (as scaling.apply scales it),
+// written straight into the engine's own copy instead of through a scaled
+// copy of p first. p has passed Check; the scaled problem is checked
+// again (a bound scaled past the largest float is an error, as Load of
+// the scaled copy reports it).
+func (s *Simplex) loadScaled(p *Problem, sc *scaling) error {
+	if !s.loaded {
+		s.allocShape(p.Rows, p.Cols, len(p.Value))
+	}
+	return s.load(p, sc)
+}
+
+// load puts the checked problem p in, scaled by sc when sc is not nil.
+func (s *Simplex) load(p *Problem, sc *scaling) error {
+	var sameMatrix bool
+	if sc == nil {
+		sameMatrix = s.loaded && s.prob.sameMatrix(p)
+	} else {
+		sameMatrix = s.loaded && s.prob.sameScaled(p, sc)
+	}
 	sameShape := s.loaded && s.m == p.Rows && s.n == p.Cols
 	if s.loaded && !sameShape {
 		s.allocShape(p.Rows, p.Cols, len(p.Value))
 	}
-	p.copyInto(&s.prob)
+	if sc == nil {
+		p.copyInto(&s.prob)
+	} else {
+		sc.applyInto(p, &s.prob)
+		if err := s.prob.check(&s.seen); err != nil {
+			s.loaded, s.haveBasis = false, false // the copy held is not a loaded problem
+			return err
+		}
+	}
 	s.loaded = true
 	s.fresh = false
 	s.m, s.n = p.Rows, p.Cols
@@ -214,13 +244,17 @@ func (s *Simplex) Load(p *Problem) error {
 	return nil
 }
 
-// setMatrix scales the loaded matrix and lays it out by columns and rows.
-// Unscaled (Options.NoScaling), the matrix by columns is the problem's
-// own copy.
+// setMatrix scales the loaded matrix and lays it out by rows. By columns
+// the matrix is the problem's own copy, unscaled: the simplex scales a
+// column as it reads it, with the same products rs[i]·a_ij·cs[j] as the
+// layout by rows holds. The layout by rows is made first, of the unscaled
+// values: the scaling's row passes run on it, and it is scaled in place
+// after.
 func (s *Simplex) setMatrix() {
 	p := &s.prob
-	m, n := s.m, s.n
+	m := s.m
 	s.cStart, s.cIdx = p.Start, p.Index // the own copy of the problem
+	s.rStart, s.rIdx, s.rVal = byRows(m, p.Start, p.Index, p.Value, s.rStart, s.rIdx, s.rVal)
 	if s.opt.NoScaling {
 		for i := range s.rs {
 			s.rs[i] = 1
@@ -228,21 +262,18 @@ func (s *Simplex) setMatrix() {
 		for j := range s.cs {
 			s.cs[j] = 1
 		}
-		s.cVal = p.Value
-	} else {
-		scaleFactors(p, s.rs, s.cs, &s.scaleWork)
-		s.cVal = resize(s.cVal, len(p.Value))
-		rs, start, index, value := s.rs, p.Start[:n+1], p.Index, p.Value
-		for j, c := range s.cs[:n] {
-			lo, hi := start[j], start[j+1]
-			idx, val, out := index[lo:hi], value[lo:hi], s.cVal[lo:hi]
-			val, out = val[:len(idx)], out[:len(idx)]
-			for k, i := range idx {
-				out[k] = rs[i] * val[k] * c
-			}
+		return
+	}
+	scaleFactors(p, &rowMatrix{s.rStart, s.rIdx, s.rVal}, s.rs, s.cs, &s.scaleWork)
+	rs, cs, rStart := s.rs[:m], s.cs[:s.n], s.rStart[:m+1]
+	for i, r := range rs {
+		lo, hi := rStart[i], rStart[i+1]
+		idx, val := s.rIdx[lo:hi], s.rVal[lo:hi]
+		val = val[:len(idx)]
+		for k, j := range idx {
+			val[k] = r * val[k] * cs[j]
 		}
 	}
-	s.rStart, s.rIdx, s.rVal = byRows(m, s.cStart, s.cIdx, s.cVal, s.rStart, s.rIdx, s.rVal)
 }
 
 // setCol scales column j's cost and bounds.
@@ -345,13 +376,13 @@ func (s *Simplex) Basis() []VarStatus {
 func (s *Simplex) allocShape(m, n, nz int) {
 	nm := n + m
 	const perVar, perRow = 9, 8
-	scaled := 2*nz + 3*m + n // scaled by columns, the scaling's scratch
+	scaled := m + n // the scaling's scratch
 	if s.opt.NoScaling {
-		scaled = 0 // setMatrix uses the problem's copy
+		scaled = 0
 	}
 	nf := perVar*nm + perRow*m + n + // the shape's
 		nz + 3*n + 2*m + // the problem's copy
-		nz + scaled + // by rows, and the scaled
+		nz + scaled + // by rows, and the scaling's
 		2*m + etaReserve*m + etaReserve + 2*(m/2+m) + // the factors'
 		2*m // the basis matrix's first columns
 	f := make([]float64, nf)
@@ -371,7 +402,7 @@ func (s *Simplex) allocShape(m, n, nz int) {
 	s.prob.RowLo, s.prob.RowUp = take(m)[:0], take(m)[:0]
 	s.rVal = take(nz)[:0]
 	if !s.opt.NoScaling {
-		s.cVal, s.scaleWork = take(nz)[:0], take(3*m + n)[:0]
+		s.scaleWork = take(m + n)[:0]
 	}
 	ints := make([]int, 3*nm+m+(n+1)+nz+(m+1)+nz+m+
 		9*m+4+etaReserve*m/4+3*etaReserve+1+2*(m/2+m)+ // the factors'
@@ -470,10 +501,12 @@ func (s *Simplex) addCol(k int, v float64, w []float64) {
 		return
 	}
 	idx := s.cIdx[s.cStart[k]:s.cStart[k+1]]
-	val := s.cVal[s.cStart[k]:s.cStart[k+1]]
+	val := s.prob.Value[s.cStart[k]:s.cStart[k+1]]
 	val = val[:len(idx)]
+	rs, c := s.rs, s.cs[k]
 	for q, i := range idx {
-		w[i] += v * val[q]
+		a := rs[i] * val[q] * c
+		w[i] += v * a
 	}
 }
 
@@ -483,7 +516,7 @@ func (s *Simplex) addCol(k int, v float64, w []float64) {
 func (s *Simplex) refactor() (repaired bool, err error) {
 	m := s.m
 	for attempt := 0; ; attempt++ {
-		s.bStart, s.bIdx, s.bVal = basisMatrix(s.head, s.n, s.cStart, s.cIdx, s.cVal, s.bStart, s.bIdx, s.bVal)
+		s.bStart, s.bIdx, s.bVal = basisMatrix(s.head, s.n, s.cStart, s.cIdx, s.prob.Value, s.rs, s.cs, s.bStart, s.bIdx, s.bVal)
 		bad, free := s.lu.factorize(m, s.bStart, s.bIdx, s.bVal)
 		if len(bad) == 0 {
 			s.luOK = true
@@ -530,18 +563,19 @@ func (s *Simplex) computeD() {
 	s.lu.btran(e, s.y)
 	n := s.n
 	stat, cost, shift, d, y := s.stat[:n], s.cost[:n], s.shift[:n], s.d[:n], s.y
-	cStart, cIdx, cVal := s.cStart[:n+1], s.cIdx, s.cVal
+	cStart, cIdx, cVal, rs, cs := s.cStart[:n+1], s.cIdx, s.prob.Value, s.rs, s.cs[:n]
 	for j, st := range stat {
 		if st == Basic {
 			d[j] = 0
 			continue
 		}
-		v := cost[j] + shift[j]
+		v, c := cost[j]+shift[j], cs[j]
 		idx := cIdx[cStart[j]:cStart[j+1]]
 		val := cVal[cStart[j]:cStart[j+1]]
 		val = val[:len(idx)]
 		for q, i := range idx {
-			v -= val[q] * y[i]
+			a := rs[i] * val[q] * c
+			v -= a * y[i]
 		}
 		d[j] = v
 	}
