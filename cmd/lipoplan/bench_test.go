@@ -59,8 +59,9 @@ func stocks300(tb testing.TB, dir string) (stocks, spec string) {
 // (Process), against GLPK's glpsol reading and solving the same model from
 // the MPS file lipoplan writes (Glpsol; skipped without glpsol), and the
 // two in turn in every iteration with their ratio as the metric
-// lipoplan/glpsol (Interleaved). In process: the catalogue loader alone
-// (LoadStocks, TOML decoding and validation) and the solve alone (Solve).
+// lipoplan/glpsol (Interleaved), and the binary's start-up alone (Startup:
+// lipoplan --version). In process: the catalogue loader alone (LoadStocks,
+// TOML decoding and validation) and the solve alone (Solve).
 func BenchmarkSolve300(b *testing.B) {
 	dir := b.TempDir()
 	stocks, spec := stocks300(b, dir)
@@ -109,6 +110,16 @@ func BenchmarkSolve300(b *testing.B) {
 	b.Run("Process", func(b *testing.B) {
 		for b.Loop() {
 			lipoplan()
+		}
+	})
+	// The floor under Process: the same binary starting, printing its
+	// version and exiting (every package's start-up: the SSH server, the
+	// terminal UI, the plotting library's fonts).
+	b.Run("Startup", func(b *testing.B) {
+		for b.Loop() {
+			if err := exec.Command(bin, "--version").Run(); err != nil {
+				b.Fatal(err)
+			}
 		}
 	})
 	_, err := exec.LookPath("glpsol")
