@@ -373,6 +373,18 @@ func resize[T any](s []T, n int) []T {
 	return s[:n]
 }
 
+// grow is resize for arrays whose length creeps up from one use to the
+// next (the basis matrix and the LU factors, which fill in as the simplex
+// brings columns into the basis): a new array has half as much again as
+// n, so that a run of slightly larger sizes reallocates a few times
+// instead of at every call.
+func grow[T any](s []T, n int) []T {
+	if cap(s) < n {
+		return make([]T, n, n+n/2)
+	}
+	return s[:n]
+}
+
 // nonbasicStatus is the status of a nonbasic variable with bounds lo..up
 // placed at value v (at the nearer bound).
 func nonbasicStatus(v, lo, up float64) VarStatus {

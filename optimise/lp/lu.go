@@ -69,7 +69,7 @@ const (
 // variable head[r]: column k < n of the matrix given by columns (start,
 // index, value), scaled to rs[i]·a_ij·cs[k] when rs is not nil, or -e_i
 // for row i's logical n+i. bStart, bIdx and bVal are reused when large
-// enough.
+// enough, and grown with room to spare when not.
 func basisMatrix(head []int, n int, start, index []int, value, rs, cs []float64, bStart, bIdx []int, bVal []float64) ([]int, []int, []float64) {
 	bStart = resize(bStart, len(head)+1)
 	nz := 0
@@ -82,7 +82,7 @@ func basisMatrix(head []int, n int, start, index []int, value, rs, cs []float64,
 		}
 	}
 	bStart[len(head)] = nz
-	bIdx, bVal = resize(bIdx, nz), resize(bVal, nz)
+	bIdx, bVal = grow(bIdx, nz), grow(bVal, nz)
 	for r, k := range head {
 		q := bStart[r]
 		if k >= n {
@@ -156,7 +156,10 @@ func (f *factor) factorize(m int, bStart, bIdx []int, bVal []float64) (bad, free
 	f.lStart = f.lStart[:1]
 	f.uStart = f.uStart[:1]
 	f.lStart[0], f.uStart[0] = 0, 0
-	if nz := bStart[m]/2 + m; cap(f.lIdx) < nz {
+	if nz := bStart[m]/2 + m; cap(f.lIdx) < nz || cap(f.uIdx) < nz {
+		// Room to spare, as grow gives: the basis fills in from one
+		// factorisation to the next.
+		nz += nz / 2
 		ints := make([]int, 2*nz)
 		fl := make([]float64, 2*nz)
 		f.lIdx, f.uIdx, f.lVal, f.uVal = ints[:0:nz], ints[nz:nz], fl[:0:nz], fl[nz:nz]
