@@ -203,7 +203,15 @@ func (ss *sessionSolver) solve(cat *catalogue.Catalogue, spec *catalogue.Spec, o
 	}
 	defer func() {
 		if r := recover(); r != nil {
-			ss.s = nil // a fault left its state unknown: solve afresh from now on
+			// A fault left its state unknown: free what it holds if that
+			// can be done (its C memory in the coin build), and solve
+			// afresh from now on.
+			s := ss.s
+			ss.s = nil
+			func() {
+				defer func() { _ = recover() }()
+				s.Close()
+			}()
 			panic(r)
 		}
 	}()
