@@ -145,6 +145,28 @@ func (d *tomlDoc) definedOnce() error {
 			}
 		}
 	}
+	// An inline table or array is complete as written (TOML v1.0.0,
+	// "Inline Table"): a header or a dotted key on a line of its own may
+	// not add to it, though the reference parser lets "s = {a = 1}" then
+	// "[s.b]" through, and the span of s would not be the value it reads.
+	given := func(path []string, n int) bool {
+		p, ok := seen[strings.Join(path[:n], "\x00")]
+		return ok && p.val != nil && (p.val.kind == valTable || p.val.kind == valArray)
+	}
+	for _, e := range d.entries {
+		for n := 1; e.line && n < len(e.path); n++ {
+			if given(e.path, n) {
+				return &scanError{line: d.lineOf(e.keyStart), msg: fmt.Sprintf("key %q is given inline and added to later", strings.Join(e.path[:n], "."))}
+			}
+		}
+	}
+	for _, sec := range d.sections[1:] {
+		for n := 1; n <= len(sec.path); n++ {
+			if given(sec.path, n) {
+				return &scanError{line: d.lineOf(sec.start), msg: fmt.Sprintf("table %q is given inline and added to later", strings.Join(sec.raw, "."))}
+			}
+		}
+	}
 	return nil
 }
 
