@@ -31,6 +31,10 @@ type writeFile struct {
 	orig  []byte // what the file held when W was pressed; nil if unreadable
 	patch catalogue.Patch
 	what  string // what changes, e.g. "2 prices"
+	// backup is where the old file will be kept, as the question shows it
+	// (backupName): worked out once here rather than on every redraw,
+	// where it would resolve symlinks each frame.
+	backup string
 }
 
 // writePlan is what W asks about.
@@ -94,7 +98,8 @@ func (m *Model) planWrite() (*writePlan, error) {
 			plan.unchanged = append(plan.unchanged, filepath.Base(f.path))
 			continue
 		}
-		plan.files = append(plan.files, writeFile{path: f.path, other: f.other, orig: orig, patch: p, what: m.changeWords(p, f.path == m.files.SpecPath)})
+		plan.files = append(plan.files, writeFile{path: f.path, other: f.other, orig: orig, patch: p,
+			what: m.changeWords(p, f.path == m.files.SpecPath), backup: m.backupName(f.path)})
 	}
 	return plan, nil
 }
@@ -279,7 +284,7 @@ func (m *Model) writeSheet(w int) []string {
 			}
 		}
 		out = append(out, "   old file kept as")
-		out = append(out, pathLines(w, "     ", m.backupName(f.path))...)
+		out = append(out, pathLines(w, "     ", f.backup)...)
 		left = left || strings.Contains(f.what, "left out")
 	}
 	for _, u := range plan.unchanged {
