@@ -34,7 +34,8 @@ type app struct {
 	stderr io.Writer
 	color  bool // ANSI colour allowed (a terminal and NO_COLOR unset)
 	// stderrTerm: standard error is a terminal, so long work may draw a
-	// progress bar there (progress.go); clock is its time (nil: time.Now).
+	// progress bar there (progress.go); clock is the time of bars and sheets
+	// (nil: time.Now; app.now).
 	stderrTerm bool
 	clock      func() time.Time
 }

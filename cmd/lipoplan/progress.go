@@ -37,15 +37,20 @@ func isTerminal(f *os.File) bool {
 // progress starts a bar labelled label on standard error; it draws
 // nothing unless standard error is a terminal.
 func (a *app) progress(label string) *progressBar {
-	now := a.clock
-	if now == nil {
-		now = time.Now
-	}
+	now := a.now()
 	b := &progressBar{label: label, now: now, start: now()}
 	if a.stderrTerm {
 		b.w = a.stderr
 	}
 	return b
+}
+
+// now is the app's clock: a.clock, or time.Now when none is set.
+func (a *app) now() func() time.Time {
+	if a.clock != nil {
+		return a.clock
+	}
+	return time.Now
 }
 
 // callback is the function to hand to optimise.Options.Progress: nil when

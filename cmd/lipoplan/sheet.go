@@ -107,11 +107,7 @@ func (a *app) writeSheet(o output, res *optimise.Result, spec *catalogue.Spec, c
 	if err != nil {
 		return err
 	}
-	now := time.Now
-	if a.clock != nil {
-		now = a.clock
-	}
-	page, err := blendSheet(res, spec, cat, temps, model, ins, now())
+	page, err := blendSheet(res, spec, cat, temps, model, ins, a.now()())
 	if err != nil {
 		return err
 	}
