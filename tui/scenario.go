@@ -160,14 +160,19 @@ func (s *Scenario) Rows() []Row {
 		Row{Kind: RowSmallestShare, Key: "rules.smallest_share", Label: "smallest share if used", Unit: "% batch", Bound: catalogue.Bound{Min: math.Inf(-1), Max: sp.Rules.SmallestShare}},
 	)
 	if sp.Process != nil {
-		b := catalogue.Bound{Min: math.Inf(-1), Max: math.Inf(1)}
-		if sp.Process.Through != nil {
-			b = *sp.Process.Through
-		}
 		// Key is the stem of the report's "process.through.min" and ".max".
-		rows = append(rows, Row{Kind: RowThrough, Key: "process.through", Label: "reactor share", Unit: "% batch", Bound: b})
+		rows = append(rows, Row{Kind: RowThrough, Key: "process.through", Label: "reactor share", Unit: "% batch", Bound: throughBound(sp.Process)})
 	}
 	return rows
+}
+
+// throughBound is the reactor share a [process] step asks for, with no
+// bound on either side when it asks for none.
+func throughBound(p *catalogue.Process) catalogue.Bound {
+	if p.Through != nil {
+		return *p.Through
+	}
+	return catalogue.Free()
 }
 
 func limitLabel(name string) string {
@@ -267,10 +272,7 @@ func (s *Scenario) WithBound(r Row, side Side, v float64) (*Scenario, error) {
 		if sp.Process == nil {
 			return nil, fmt.Errorf("the spec has no [process] step any more")
 		}
-		b := catalogue.Bound{Min: math.Inf(-1), Max: math.Inf(1)}
-		if sp.Process.Through != nil {
-			b = *sp.Process.Through
-		}
+		b := throughBound(sp.Process)
 		set(&b)
 		sp.Process.Through = &b
 		if !b.HasMin() && !b.HasMax() {
