@@ -4,6 +4,7 @@ import (
 	"flag"
 	"fmt"
 	"io"
+	"math"
 	"path/filepath"
 	"sort"
 	"strings"
@@ -229,7 +230,7 @@ func writeCompareText(w io.Writer, cols []compared) {
 		if i == 0 || !c.found() || !cols[0].found() {
 			return ""
 		}
-		return fmt.Sprintf("%+.2f", c.res.CostPerTonne-cols[0].res.CostPerTonne)
+		return costChange(c.res.CostPerTonne - cols[0].res.CostPerTonne)
 	})
 	tb.blendRows()
 	for _, t := range limitTemps(cols) {
@@ -327,4 +328,13 @@ func savedWords(s *tui.Solved) string {
 		return string(s.Status) + ", no blend"
 	}
 	return money(s.CostPerTonne, s.Currency) + " per tonne (" + string(s.Status) + ")"
+}
+
+// costChange writes a change of cost per tonne with its sign, to the cent;
+// a change that rounds to nothing is +0.00, never -0.00.
+func costChange(d float64) string {
+	if math.Abs(d) < 0.005 {
+		d = 0
+	}
+	return fmt.Sprintf("%+.2f", d)
 }

@@ -212,3 +212,15 @@ func TestCompareBadInput(t *testing.T) {
 		assert.NotContains(t, out+errs, "goroutine")
 	}
 }
+
+// Two practically equal costs show no change, never "-0.00" (text) or -0
+// (JSON), in compare as in routes.
+func TestCostChangeNoNegativeZero(t *testing.T) {
+	assert.Equal(t, "+0.00", costChange(-0.004))
+	assert.Equal(t, "+0.00", costChange(1e-12))
+	assert.Equal(t, "-0.01", costChange(-0.006))
+	assert.Equal(t, "+12.35", costChange(12.345001))
+	b, err := json.Marshal(round(-0.00001, 4))
+	require.NoError(t, err)
+	assert.Equal(t, "0", string(b))
+}

@@ -132,7 +132,10 @@ func round(v float64, digits int) float64 {
 		return v
 	}
 	s := math.Pow(10, float64(digits))
-	return math.Round(v*s) / s
+	if r := math.Round(v*s) / s; r != 0 {
+		return r
+	}
+	return 0 // not -0, which JSON writes as "-0"
 }
 
 // propertiesJSON is the stable JSON shape of mix properties (README, JSON output).

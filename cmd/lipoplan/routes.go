@@ -4,7 +4,6 @@ import (
 	"flag"
 	"fmt"
 	"io"
-	"math"
 	"strings"
 
 	"lipoplan/blend/sle"
@@ -189,11 +188,7 @@ func writeRouteTable(w io.Writer, cols []routeColumn, spec *catalogue.Spec, temp
 		if c.name == "physical" || len(c.res.Blend) == 0 || len(base.res.Blend) == 0 {
 			return ""
 		}
-		d := c.res.CostPerTonne - base.res.CostPerTonne
-		if math.Abs(d) < 0.005 {
-			d = 0 // no "-0.00"
-		}
-		return fmt.Sprintf("%+.2f", d)
+		return costChange(c.res.CostPerTonne - base.res.CostPerTonne)
 	})
 	tb.row("through the reactor, %", tb.found(func(i int) string {
 		if cols[i].name == "physical" {
