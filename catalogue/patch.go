@@ -780,7 +780,7 @@ func (p *planner) containerAt(q []string) (*container, error) {
 	var sec *tomlSection
 	for _, e := range p.doc.entries {
 		n := p.sc.norm(e.path)
-		if !e.line || len(n) <= len(q) || pathKey(n[:len(q)]) != key || len(e.sec.path) >= len(q) {
+		if !e.line || len(n) <= len(q) || !slices.Equal(n[:len(q)], q) || len(e.sec.path) >= len(q) {
 			continue
 		}
 		if sec != nil && sec != e.sec {
@@ -971,14 +971,15 @@ func (p *planner) emptiedHeaders() []edit {
 		for _, e := range s.lines {
 			all = all && p.removed[e]
 		}
-		if !all || !p.sc.dropEmpty(p.sc.norm(s.path)) || p.addsAt["s"+pathKey(p.sc.norm(s.path))] != nil {
+		n := p.sc.norm(s.path)
+		if !all || !p.sc.dropEmpty(n) || p.addsAt["s"+pathKey(n)] != nil {
 			continue
 		}
 		sub := false
 		for _, o := range p.doc.sections {
-			sub = sub || o != s && len(o.path) > len(s.path) && pathKey(o.path[:len(s.path)]) == pathKey(s.path)
+			sub = sub || o != s && len(o.path) > len(s.path) && slices.Equal(o.path[:len(s.path)], s.path)
 		}
-		if all && !sub {
+		if !sub {
 			out = append(out, edit{start: s.start, end: s.end, text: p.commentLine(s.start, s.start, s.comment, s.end)})
 		}
 	}
@@ -1229,10 +1230,9 @@ func (p *planner) areaEnd(path []string) int {
 		return len(p.doc.src)
 	}
 	end := -1
-	key := pathKey(path)
 	for _, s := range p.doc.sections[1:] {
 		n := p.sc.norm(s.path)
-		if len(n) >= len(path) && pathKey(n[:len(path)]) == key {
+		if len(n) >= len(path) && slices.Equal(n[:len(path)], path) {
 			end = max(end, s.last)
 		}
 	}
