@@ -97,6 +97,13 @@ func PatchStocks(name string, orig []byte, cat *Catalogue) (Patch, error) {
 			}
 			return stockLeaves(c), md, nil
 		},
+		reread: func(data []byte) ([]leaf, error) {
+			c, ps := ParseStocks(name, data)
+			if c == nil {
+				return nil, ps.Err()
+			}
+			return stockLeaves(c), nil
+		},
 	}
 	job.same = func(old []leaf) string { return sameStockList(old, job.want) }
 	return job.run(), nil
@@ -477,7 +484,7 @@ type patchJob struct {
 	want   []leaf
 	what   string // "a stock catalogue"
 	read   func([]byte) ([]leaf, toml.MetaData, error)
-	reread func([]byte) ([]leaf, error) // the check of the result; read when nil
+	reread func([]byte) ([]leaf, error) // the check of the result, as the file will be loaded
 	same   func(old []leaf) string      // a reason not to edit in place, or ""
 }
 
@@ -506,14 +513,7 @@ func (j patchJob) run() Patch {
 	if err != nil {
 		return afresh(changes, err.Error())
 	}
-	reread := j.reread
-	if reread == nil {
-		reread = func(data []byte) ([]leaf, error) {
-			l, _, err := j.read(data)
-			return l, err
-		}
-	}
-	back, err := reread(data)
+	back, err := j.reread(data)
 	if err != nil {
 		return afresh(changes, fmt.Sprintf("the edited file would not read (%s)", firstLine(err)))
 	}
