@@ -149,7 +149,7 @@ type leaf struct {
 	what Change // Table, Item and Field
 }
 
-func (l leaf) key() string { return strings.Join(l.path, "\x00") }
+func (l leaf) key() string { return pathKey(l.path) }
 
 // stockLeaves lists every value of cat as ParseStocks reads it: a name
 // left out reads as the id, an availability left out as unlimited.
@@ -281,15 +281,7 @@ func sameValue(a, b any) bool {
 	switch x := a.(type) {
 	case []string:
 		y, ok := b.([]string)
-		if !ok || len(x) != len(y) {
-			return false
-		}
-		for i := range x {
-			if x[i] != y[i] {
-				return false
-			}
-		}
-		return true
+		return ok && slices.Equal(x, y)
 	}
 	return a == b
 }
