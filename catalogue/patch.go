@@ -97,6 +97,13 @@ func PatchStocks(name string, orig []byte, cat *Catalogue) (Patch, error) {
 			}
 			return stockLeaves(c), md, nil
 		},
+		reread: func(data []byte) ([]leaf, error) {
+			c, ps := ParseStocks(name, data)
+			if c == nil {
+				return nil, ps.Err()
+			}
+			return stockLeaves(c), nil
+		},
 	}
 	job.same = func(old []leaf) string { return sameStockList(old, job.want) }
 	return job.run(), nil
@@ -142,7 +149,7 @@ type leaf struct {
 	what Change // Table, Item and Field
 }
 
-func (l leaf) key() string { return strings.Join(l.path, "\x00") }
+func (l leaf) key() string { return pathKey(l.path) }
 
 // stockLeaves lists every value of cat as ParseStocks reads it: a name
 // left out reads as the id, an availability left out as unlimited.
@@ -274,15 +281,7 @@ func sameValue(a, b any) bool {
 	switch x := a.(type) {
 	case []string:
 		y, ok := b.([]string)
-		if !ok || len(x) != len(y) {
-			return false
-		}
-		for i := range x {
-			if x[i] != y[i] {
-				return false
-			}
-		}
-		return true
+		return ok && slices.Equal(x, y)
 	}
 	return a == b
 }
@@ -477,7 +476,7 @@ type patchJob struct {
 	want   []leaf
 	what   string // "a stock catalogue"
 	read   func([]byte) ([]leaf, toml.MetaData, error)
-	reread func([]byte) ([]leaf, error) // the check of the result; read when nil
+	reread func([]byte) ([]leaf, error) // the check of the result, as the file will be loaded
 	same   func(old []leaf) string      // a reason not to edit in place, or ""
 }
 
@@ -506,14 +505,7 @@ func (j patchJob) run() Patch {
 	if err != nil {
 		return afresh(changes, err.Error())
 	}
-	reread := j.reread
-	if reread == nil {
-		reread = func(data []byte) ([]leaf, error) {
-			l, _, err := j.read(data)
-			return l, err
-		}
-	}
-	back, err := reread(data)
+	back, err := j.reread(data)
 	if err != nil {
 		return afresh(changes, fmt.Sprintf("the edited file would not read (%s)", firstLine(err)))
 	}
@@ -780,7 +772,7 @@ func (p *planner) containerAt(q []string) (*container, error) {
 	var sec *tomlSection
 	for _, e := range p.doc.entries {
 		n := p.sc.norm(e.path)
-		if !e.line || len(n) <= len(q) || pathKey(n[:len(q)]) != key || len(e.sec.path) >= len(q) {
+		if !e.line || len(n) <= len(q) || !slices.Equal(n[:len(q)], q) || len(e.sec.path) >= len(q) {
 			continue
 		}
 		if sec != nil && sec != e.sec {
@@ -971,14 +963,15 @@ func (p *planner) emptiedHeaders() []edit {
 		for _, e := range s.lines {
 			all = all && p.removed[e]
 		}
-		if !all || !p.sc.dropEmpty(p.sc.norm(s.path)) || p.addsAt["s"+pathKey(p.sc.norm(s.path))] != nil {
+		n := p.sc.norm(s.path)
+		if !all || !p.sc.dropEmpty(n) || p.addsAt["s"+pathKey(n)] != nil {
 			continue
 		}
 		sub := false
 		for _, o := range p.doc.sections {
-			sub = sub || o != s && len(o.path) > len(s.path) && pathKey(o.path[:len(s.path)]) == pathKey(s.path)
+			sub = sub || o != s && len(o.path) > len(s.path) && slices.Equal(o.path[:len(s.path)], s.path)
 		}
-		if all && !sub {
+		if !sub {
 			out = append(out, edit{start: s.start, end: s.end, text: p.commentLine(s.start, s.start, s.comment, s.end)})
 		}
 	}
@@ -1229,10 +1222,9 @@ func (p *planner) areaEnd(path []string) int {
 		return len(p.doc.src)
 	}
 	end := -1
-	key := pathKey(path)
 	for _, s := range p.doc.sections[1:] {
 		n := p.sc.norm(s.path)
-		if len(n) >= len(path) && pathKey(n[:len(path)]) == key {
+		if len(n) >= len(path) && slices.Equal(n[:len(path)], path) {
 			end = max(end, s.last)
 		}
 	}

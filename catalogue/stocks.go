@@ -352,33 +352,42 @@ func (c *collector) amount(where, label string, v float64) bool {
 // profileEntries checks every entry of a table keyed by fatty acid (the
 // fatty-acid or sn-2 profile), in key order; it reports whether all are good.
 func (c *collector) profileEntries(where, table string, m map[string]float64) bool {
+	return c.keyedAmounts(where, table, m, acidKnown, func(k string) bool { return c.acidKey(where, table, k) })
+}
+
+// profileAmounts checks the amounts of a profile, whatever its keys.
+func (c *collector) profileAmounts(where, table string, m map[string]float64) bool {
+	anyKey := func(string) bool { return true }
+	return c.keyedAmounts(where, table, m, anyKey, anyKey)
+}
+
+// keyedAmounts checks every entry of a composition table: its key passes
+// known (checkKey reports one that does not) and its amount is a finite
+// number >= 0; it reports whether all are good. A table that is not all
+// good is checked again key by key in key order, for the messages.
+func (c *collector) keyedAmounts(where, table string, m map[string]float64, known, checkKey func(string) bool) bool {
 	clean := amountsClean(m)
 	for k := range m {
-		clean = clean && Rank(k) >= 0
+		clean = clean && known(k)
 	}
 	if clean { // the common case, without a sort or a message
 		return true
 	}
 	for _, k := range sortedKeys(m) {
-		if !c.acidKey(where, table, k) || !c.amount(where, fmt.Sprintf("%s %q", table, k), m[k]) {
+		if !checkKey(k) || !c.amount(where, fmt.Sprintf("%s %q", table, k), m[k]) {
 			clean = false
 		}
 	}
 	return clean
 }
 
-// profileAmounts checks the amounts of a profile, whatever its keys.
-func (c *collector) profileAmounts(where, table string, m map[string]float64) bool {
-	if amountsClean(m) {
-		return true
-	}
-	good := true
-	for _, k := range sortedKeys(m) {
-		if !c.amount(where, fmt.Sprintf("%s %q", table, k), m[k]) {
-			good = false
-		}
-	}
-	return good
+// acidKnown reports a key of the reference table, without a message.
+func acidKnown(k string) bool { return Rank(k) >= 0 }
+
+// tagKnown reports a TAG letter code that parses, without a message.
+func tagKnown(k string) bool {
+	_, err := ParseTAGCode(k)
+	return err == nil
 }
 
 // amountsClean reports whether every amount of m is finite and >= 0.
@@ -402,22 +411,7 @@ func (c *collector) tagCode(where, code string) bool {
 
 // tagEntries checks every entry of a measured TAG profile, in key order.
 func (c *collector) tagEntries(where string, m map[string]float64) bool {
-	good := amountsClean(m)
-	for k := range m {
-		if _, err := ParseTAGCode(k); err != nil {
-			good = false
-		}
-	}
-	if good { // the common case, without a sort or a message
-		return true
-	}
-	good = true
-	for _, k := range sortedKeys(m) {
-		if !c.tagCode(where, k) || !c.amount(where, fmt.Sprintf("tags %q", k), m[k]) {
-			good = false
-		}
-	}
-	return good
+	return c.keyedAmounts(where, "tags", m, tagKnown, func(k string) bool { return c.tagCode(where, k) })
 }
 
 // solid reports a point of a measured SFC curve outside 0..100 % solid;
@@ -596,19 +590,28 @@ func (c *collector) faMap(where, table string, lm leafMap) (map[string]float64, 
 		c.errf(where, "%s must be a table, not %s; write [stock.%s] and then lines such as \"C16:0\" = 44.0", table, describe(lm.raw), table)
 		return nil, false
 	}
-	out := make(map[string]float64, len(lm.m))
-	if leavesClean(lm.m, func(k string) bool { return Rank(k) >= 0 }, out) {
+	return c.leafAmounts(where, table, lm.m, acidKnown, func(k string) bool { return c.acidKey(where, table, k) })
+}
+
+// leafAmounts reads a decoded composition table whose keys pass known
+// (checkKey reports one that does not) and whose values are finite
+// numbers >= 0; it reports whether all are good (out then holds them all).
+// A table that is not all good is read again key by key in key order, for
+// the messages, and out holds the good entries.
+func (c *collector) leafAmounts(where, table string, m map[string]any, known, checkKey func(string) bool) (map[string]float64, bool) {
+	out := make(map[string]float64, len(m))
+	if leavesClean(m, known, out) {
 		return out, true // the common case, without a sort or a label
 	}
 	clear(out)
 	good := true
-	for _, k := range sortedKeys(lm.m) {
-		if !c.acidKey(where, table, k) {
+	for _, k := range sortedKeys(m) {
+		if !checkKey(k) {
 			good = false
 			continue
 		}
 		label := fmt.Sprintf("%s %q", table, k)
-		f, ok := c.num(where, label, val{v: lm.m[k], set: true})
+		f, ok := c.num(where, label, val{v: m[k], set: true})
 		if !ok || !c.amount(where, label, f) {
 			good = false
 			continue
@@ -759,28 +762,8 @@ func (c *collector) tags(where string, lm leafMap) map[string]float64 {
 		c.errf(where, "tags must be a table, not %s; write [stock.tags] and then lines such as \"POP\" = 23.1", describe(lm.raw))
 		return nil
 	}
-	out := make(map[string]float64, len(lm.m))
-	if !leavesClean(lm.m, func(k string) bool { _, err := ParseTAGCode(k); return err == nil }, out) {
-		clear(out)
-		good := true
-		for _, k := range sortedKeys(lm.m) {
-			if !c.tagCode(where, k) {
-				good = false
-				continue
-			}
-			label := fmt.Sprintf("tags %q", k)
-			v, ok := c.num(where, label, val{v: lm.m[k], set: true})
-			if !ok || !c.amount(where, label, v) {
-				good = false
-				continue
-			}
-			out[k] = v
-		}
-		if !good {
-			return nil
-		}
-	}
-	if len(out) == 0 {
+	out, good := c.leafAmounts(where, "tags", lm.m, tagKnown, func(k string) bool { return c.tagCode(where, k) })
+	if !good || len(out) == 0 {
 		return nil
 	}
 	c.checkSum(where, "tags", "mol%", out, false)

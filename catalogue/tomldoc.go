@@ -3,6 +3,7 @@ package catalogue
 import (
 	"bytes"
 	"fmt"
+	"slices"
 	"strconv"
 	"strings"
 	"unicode/utf8"
@@ -668,7 +669,7 @@ func (d *tomlDoc) sameKeys(want []toml.Key) error {
 			return &scanError{line: 0, msg: fmt.Sprintf("the scan missed key %q", want[i].String())}
 		case i >= len(want):
 			return &scanError{line: 0, msg: fmt.Sprintf("the scan found key %q that the parser does not list", got[i].String())}
-		case strings.Join(got[i], "\x00") != strings.Join(want[i], "\x00"):
+		case !slices.Equal(got[i], want[i]):
 			return &scanError{line: 0, msg: fmt.Sprintf("the scan found key %q where the parser lists %q", got[i].String(), want[i].String())}
 		}
 	}
