@@ -553,6 +553,46 @@ func (s *Simplex) computeX() {
 	}
 }
 
+// priceCols sets the reduced cost d_j of every column j from the duals
+// y of the last btran: cost_j + shift_j - Σ_i rs_i·a_ij·cs_j·y_i over
+// its scaled entries, cost and shift nil standing for zero (phase 1's
+// costs), and d_j = 0 when j is basic. e (m floats, used up by btran) is
+// scratch.
+//
+// Every scale factor is a power of two, so multiplying by one is exact
+// and commutes with rounding: the row factors go into the duals once
+// (ry = rs·y, in e) and column j's factor c divides its cost and
+// multiplies the result, d_j = c·((cost_j+shift_j)/c - Σ a_ij·ry_i),
+// which is the same reduced cost bit for bit with one product per entry
+// instead of three. Both simplex methods run this pass over the whole
+// matrix at every pricing from scratch (phase 1 at every iteration).
+func (s *Simplex) priceCols(e, cost, shift []float64) {
+	n := s.n
+	ry := e[:s.m]
+	for i, r := range s.rs[:s.m] {
+		ry[i] = r * s.y[i]
+	}
+	stat, d, cs, cStart, cIdx, cVal := s.stat[:n], s.d[:n], s.cs[:n], s.cStart[:n+1], s.cIdx, s.prob.Value
+	for j, st := range stat {
+		if st == Basic {
+			d[j] = 0
+			continue
+		}
+		c := cs[j]
+		v := 0.0
+		if cost != nil {
+			v = (cost[j] + shift[j]) / c
+		}
+		idx := cIdx[cStart[j]:cStart[j+1]]
+		val := cVal[cStart[j]:cStart[j+1]]
+		val = val[:len(idx)]
+		for q, i := range idx {
+			v -= val[q] * ry[i]
+		}
+		d[j] = v * c
+	}
+}
+
 // computeD sets the duals y (Bᵀy = c_B, with the shifts in force) and the
 // reduced costs of the nonbasic variables.
 func (s *Simplex) computeD() {
@@ -561,24 +601,7 @@ func (s *Simplex) computeD() {
 		e[r] = s.cost[k] + s.shift[k]
 	}
 	s.lu.btran(e, s.y)
-	n := s.n
-	stat, cost, shift, d, y := s.stat[:n], s.cost[:n], s.shift[:n], s.d[:n], s.y
-	cStart, cIdx, cVal, rs, cs := s.cStart[:n+1], s.cIdx, s.prob.Value, s.rs, s.cs[:n]
-	for j, st := range stat {
-		if st == Basic {
-			d[j] = 0
-			continue
-		}
-		v, c := cost[j]+shift[j], cs[j]
-		idx := cIdx[cStart[j]:cStart[j+1]]
-		val := cVal[cStart[j]:cStart[j+1]]
-		val = val[:len(idx)]
-		for q, i := range idx {
-			a := rs[i] * val[q] * c
-			v -= a * y[i]
-		}
-		d[j] = v
-	}
+	s.priceCols(e, s.cost, s.shift)
 	for i := 0; i < s.m; i++ {
 		k := s.n + i
 		if s.stat[k] == Basic {
