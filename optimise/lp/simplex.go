@@ -95,6 +95,7 @@ type Simplex struct {
 	flips                            []int
 	scaleWork                        []float64
 	seen                             []int
+	scaledBy                         *scaling // sc of the last load (nil: Load)
 }
 
 // Options tune a Simplex. The zero value is the default.
@@ -188,29 +189,34 @@ func (s *Simplex) Load(p *Problem) error {
 	if err := p.check(&s.seen); err != nil {
 		return err
 	}
-	return s.load(p, nil)
+	return s.load(p, nil, false)
 }
 
 // loadScaled is Load of p scaled by sc (as scaling.apply scales it),
 // written straight into the engine's own copy instead of through a scaled
 // copy of p first. p has passed Check; the scaled problem is checked
 // again (a bound scaled past the largest float is an error, as Load of
-// the scaled copy reports it).
-func (s *Simplex) loadScaled(p *Problem, sc *scaling) error {
+// the scaled copy reports it). same reports that p's matrix is the one
+// of the last loadScaled with sc, whose factors have not changed since
+// (Scaled knows it): the engine's scaled copy is then the same without
+// comparing it entry by entry (sameScaled), unless a Load came between.
+func (s *Simplex) loadScaled(p *Problem, sc *scaling, same bool) error {
 	if !s.loaded {
 		s.allocShape(p.Rows, p.Cols, len(p.Value))
 	}
-	return s.load(p, sc)
+	return s.load(p, sc, same && s.scaledBy == sc)
 }
 
-// load puts the checked problem p in, scaled by sc when sc is not nil.
-func (s *Simplex) load(p *Problem, sc *scaling) error {
+// load puts the checked problem p in, scaled by sc when sc is not nil;
+// same is loadScaled's, checked.
+func (s *Simplex) load(p *Problem, sc *scaling, same bool) error {
 	var sameMatrix bool
 	if sc == nil {
 		sameMatrix = s.loaded && s.prob.sameMatrix(p)
 	} else {
-		sameMatrix = s.loaded && s.prob.sameScaled(p, sc)
+		sameMatrix = s.loaded && (same || s.prob.sameScaled(p, sc))
 	}
+	s.scaledBy = sc
 	sameShape := s.loaded && s.m == p.Rows && s.n == p.Cols
 	if s.loaded && !sameShape {
 		s.allocShape(p.Rows, p.Cols, len(p.Value))
