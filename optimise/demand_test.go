@@ -166,15 +166,7 @@ func TestProcessDemandPredicted(t *testing.T) {
 	require.Equal(t, Optimal, r.Status)
 	assert.GreaterOrEqual(t, throughOf(r), 40-1e-6)
 	assert.GreaterOrEqual(t, r.CostPerTonne, free.CostPerTonne-1e-6, "a demand cannot make the blend cheaper")
-	for _, l := range spec.SFC {
-		v := trueSFCOf(t, cat, r, randomise.Chemical, l.Temp)
-		if l.HasMin() {
-			assert.GreaterOrEqual(t, v, l.Min-0.05, "sfc %v", l.Temp)
-		}
-		if l.HasMax() {
-			assert.LessOrEqual(t, v, l.Max+0.05, "sfc %v", l.Temp)
-		}
-	}
+	meetsSFC(t, cat, r, randomise.Chemical, spec.SFC, 0.05, "")
 	lr := procLimit(t, r, "process.through.min")
 	assert.True(t, lr.Binding)
 
@@ -214,15 +206,7 @@ func TestCompareRoutes(t *testing.T) {
 	}
 	phys := routes[0].Result
 	assert.Empty(t, phys.Process.Feed)
-	for _, l := range spec.SFC {
-		v := trueSFCOf(t, cat, phys, randomise.Native, l.Temp)
-		if l.HasMin() {
-			assert.GreaterOrEqual(t, v, l.Min-0.05, "physical sfc %v", l.Temp)
-		}
-		if l.HasMax() {
-			assert.LessOrEqual(t, v, l.Max+0.05, "physical sfc %v", l.Temp)
-		}
-	}
+	meetsSFC(t, cat, phys, randomise.Native, spec.SFC, 0.05, "physical")
 	for _, rt := range routes[1:] {
 		s := spec.Clone()
 		s.Process.Method = rt.Name

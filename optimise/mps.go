@@ -83,17 +83,12 @@ func writeAtomic(path string, b []byte) error {
 	return nil
 }
 
-// mps renders the model in MPS layout f (mpsOf).
-func (m *model) mps(name string, f MPSFormat) []byte {
-	p := &lp.Problem{Obj: m.obj, ColLo: m.colLo, ColUp: m.colUp, RowLo: m.rowLo, RowUp: m.rowUp}
-	p.Dense(m.nRows, m.nCols, m.a)
-	return mpsOf(p, name, m.colName, m.rowName, m.integer, f)
-}
-
-// mpsOf renders a model in MPS layout f (lp.WriteMPS): rows and columns
+// mps renders the model in MPS layout f (lp.WriteMPS): rows and columns
 // by name, a repeated row name (a spec listing the same limit twice) with
 // a "#2", "#3" suffix; in fixed MPS, names longer than 8 characters
 // replaced and the mapping written as comments at the top.
-func mpsOf(p *lp.Problem, name string, colName, rowName []string, integer []int, f MPSFormat) []byte {
-	return lp.WriteMPS(p, name, colName, rowName, integer, f)
+func (m *model) mps(name string, f MPSFormat) []byte {
+	p := &lp.Problem{Obj: m.obj, ColLo: m.colLo, ColUp: m.colUp, RowLo: m.rowLo, RowUp: m.rowUp}
+	p.Dense(m.nRows, m.nCols, m.a)
+	return lp.WriteMPS(p, name, m.colName, m.rowName, m.integer, f)
 }

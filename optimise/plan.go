@@ -205,9 +205,9 @@ func (m *planModel) clone() *planModel {
 	return &planModel{prob: *m.prob.Clone(), colName: slices.Clone(m.colName), rowName: slices.Clone(m.rowName)}
 }
 
-// mps renders the model in MPS layout f (mpsOf).
+// mps renders the model in MPS layout f (lp.WriteMPS, as model.mps).
 func (m *planModel) mps(name string, f MPSFormat) []byte {
-	return mpsOf(&m.prob, name, m.colName, m.rowName, nil, f)
+	return lp.WriteMPS(&m.prob, name, m.colName, m.rowName, nil, f)
 }
 
 // planLabels are the blocks' names in the model: the spec label, with

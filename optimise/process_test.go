@@ -247,6 +247,25 @@ func TestProcessCostDecidesReactor(t *testing.T) {
 	assert.InDelta(t, idle.CostPerTonne, dear.CostPerTonne, 0.5)
 }
 
+// meetsSFC checks that r's SFC, recomputed by trueSFCOf at every
+// temperature of sfc, meets each limit within tol (% solid), and returns
+// it by temperature; what names the case in the messages.
+func meetsSFC(t *testing.T, cat *catalogue.Catalogue, r *Result, method randomise.Method, sfc []catalogue.SFCLimit, tol float64, what string) map[float64]float64 {
+	t.Helper()
+	out := map[float64]float64{}
+	for _, l := range sfc {
+		v := trueSFCOf(t, cat, r, method, l.Temp)
+		if l.HasMin() {
+			assert.GreaterOrEqual(t, v, l.Min-tol, "%s sfc %v min", what, l.Temp)
+		}
+		if l.HasMax() {
+			assert.LessOrEqual(t, v, l.Max+tol, "%s sfc %v max", what, l.Temp)
+		}
+		out[l.Temp] = v
+	}
+	return out
+}
+
 // trueSFCOf recomputes a process answer's predicted SFC at temp
 // independently of the solver: the directly blended stocks' native TAGs and
 // the reacted feed's TAGs each from randomise.Distribute, mixed by TAG moles
@@ -356,15 +375,9 @@ func TestProcessPredictedSFCMeetsLimits(t *testing.T) {
 		require.NoError(t, err, c.name)
 		require.Equal(t, Optimal, r.Status, c.name)
 		require.NotEmpty(t, r.Process.Feed, c.name)
+		got := meetsSFC(t, c.cat, r, randomise.Method(c.spec.Process.Method), c.spec.SFC, 0.05, c.name)
 		for _, l := range c.spec.SFC {
-			v := trueSFCOf(t, c.cat, r, randomise.Method(c.spec.Process.Method), l.Temp)
-			if l.HasMin() {
-				assert.GreaterOrEqual(t, v, l.Min-0.05, "%s sfc %v min", c.name, l.Temp)
-			}
-			if l.HasMax() {
-				assert.LessOrEqual(t, v, l.Max+0.05, "%s sfc %v max", c.name, l.Temp)
-			}
-			assert.InDelta(t, v, r.Properties.SFC[l.Temp], 1e-6, c.name)
+			assert.InDelta(t, got[l.Temp], r.Properties.SFC[l.Temp], 1e-6, c.name)
 		}
 	}
 }
@@ -554,15 +567,7 @@ func TestProcessDemoPairs(t *testing.T) {
 					}
 					assert.LessOrEqual(t, r.Process.Iterations, slpMaxIter, name)
 					t.Logf("%s: %.2f EUR/t, %.1f t fed, %d LPs, converged %v", name, r.CostPerTonne, r.Process.Tonnes, r.Process.Iterations, r.Process.Converged)
-					for _, l := range spec.SFC {
-						v := trueSFCOf(t, cat, r, randomise.Method(method), l.Temp)
-						if l.HasMin() {
-							assert.GreaterOrEqual(t, v, l.Min-slpSFCTol-1e-9, "%s sfc %v", name, l.Temp)
-						}
-						if l.HasMax() {
-							assert.LessOrEqual(t, v, l.Max+slpSFCTol+1e-9, "%s sfc %v", name, l.Temp)
-						}
-					}
+					meetsSFC(t, cat, r, randomise.Method(method), spec.SFC, slpSFCTol+1e-9, name)
 				}
 			}
 		}
@@ -588,15 +593,7 @@ func TestProcessOnlyReactorMeetsSpec(t *testing.T) {
 	require.Equal(t, Optimal, r.Status, "%v", r.Notes)
 	require.NotEmpty(t, r.Process.Feed)
 	assert.True(t, r.Process.Converged)
-	for _, l := range spec.SFC {
-		v := trueSFCOf(t, cat, r, randomise.Chemical, l.Temp)
-		if l.HasMin() {
-			assert.GreaterOrEqual(t, v, l.Min-slpSFCTol, "sfc %v", l.Temp)
-		}
-		if l.HasMax() {
-			assert.LessOrEqual(t, v, l.Max+slpSFCTol, "sfc %v", l.Temp)
-		}
-	}
+	meetsSFC(t, cat, r, randomise.Chemical, spec.SFC, slpSFCTol, "")
 	t.Logf("%.2f EUR/t, %.1f t of %v t fed, %d LPs", r.CostPerTonne, r.Process.Tonnes, spec.Batch, r.Process.Iterations)
 }
 
@@ -620,15 +617,9 @@ func TestProcessPredictedNeedsNoCurves(t *testing.T) {
 	without, err := Solve(bare, spec, Options{})
 	require.NoError(t, err)
 	require.Equal(t, Optimal, without.Status)
+	got := meetsSFC(t, bare, without, randomise.Chemical, spec.SFC, slpSFCTol, "")
 	for _, l := range spec.SFC {
-		v := trueSFCOf(t, bare, without, randomise.Chemical, l.Temp)
-		if l.HasMin() {
-			assert.GreaterOrEqual(t, v, l.Min-slpSFCTol, "sfc %v", l.Temp)
-		}
-		if l.HasMax() {
-			assert.LessOrEqual(t, v, l.Max+slpSFCTol, "sfc %v", l.Temp)
-		}
-		assert.InDelta(t, v, without.Properties.SFC[l.Temp], 1e-6)
+		assert.InDelta(t, got[l.Temp], without.Properties.SFC[l.Temp], 1e-6)
 	}
 	// the measured curves enter only as one more start point of the search
 	t.Logf("with curves %.2f EUR/t, without %.2f EUR/t", with.CostPerTonne, without.CostPerTonne)

@@ -199,33 +199,8 @@ func (s *Simplex) phase1Prices() bool {
 		return false
 	}
 	s.lu.btran(e, s.y)
-	// Column j's scaled entries are rs[i]·a_ij·cs[j]. Every factor is a
-	// power of two, so multiplying by one is exact and commutes with
-	// rounding: the row factors go into the duals once (ry = rs·y, in
-	// e, which btran has used up) and the column's factor multiplies its
-	// sum, which gives the same reduced cost bit for bit with one
-	// product per entry instead of three. Phase 1 runs this pass over the
-	// whole matrix at every iteration.
+	s.priceCols(e, nil, nil)
 	n := s.n
-	ry := e[:s.m]
-	for i, r := range s.rs[:s.m] {
-		ry[i] = r * s.y[i]
-	}
-	stat, d, cs, cStart, cIdx, cVal := s.stat[:n], s.d[:n], s.cs[:n], s.cStart[:n+1], s.cIdx, s.prob.Value
-	for j, st := range stat {
-		if st == Basic {
-			d[j] = 0
-			continue
-		}
-		idx := cIdx[cStart[j]:cStart[j+1]]
-		val := cVal[cStart[j]:cStart[j+1]]
-		val = val[:len(idx)]
-		v := 0.0
-		for q, i := range idx {
-			v -= val[q] * ry[i]
-		}
-		d[j] = v * cs[j]
-	}
 	for i := 0; i < s.m; i++ {
 		k := n + i
 		if s.stat[k] == Basic {

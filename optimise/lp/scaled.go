@@ -49,7 +49,7 @@ func (s *scaled) Load(p *Problem) error {
 		s.sc.set(&s.p, nil)
 	}
 	if in, ok := s.inner.(*Simplex); ok {
-		return in.loadScaled(&s.p, &s.sc) // no scaled copy in between
+		return in.loadScaled(&s.p, &s.sc, same) // no scaled copy in between
 	}
 	s.sc.apply(&s.p, &s.sp)
 	return s.inner.Load(&s.sp)

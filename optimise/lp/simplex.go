@@ -95,6 +95,7 @@ type Simplex struct {
 	flips                            []int
 	scaleWork                        []float64
 	seen                             []int
+	scaledBy                         *scaling // sc of the last load (nil: Load)
 }
 
 // Options tune a Simplex. The zero value is the default.
@@ -188,29 +189,34 @@ func (s *Simplex) Load(p *Problem) error {
 	if err := p.check(&s.seen); err != nil {
 		return err
 	}
-	return s.load(p, nil)
+	return s.load(p, nil, false)
 }
 
 // loadScaled is Load of p scaled by sc (as scaling.apply scales it),
 // written straight into the engine's own copy instead of through a scaled
 // copy of p first. p has passed Check; the scaled problem is checked
 // again (a bound scaled past the largest float is an error, as Load of
-// the scaled copy reports it).
-func (s *Simplex) loadScaled(p *Problem, sc *scaling) error {
+// the scaled copy reports it). same reports that p's matrix is the one
+// of the last loadScaled with sc, whose factors have not changed since
+// (Scaled knows it): the engine's scaled copy is then the same without
+// comparing it entry by entry (sameScaled), unless a Load came between.
+func (s *Simplex) loadScaled(p *Problem, sc *scaling, same bool) error {
 	if !s.loaded {
 		s.allocShape(p.Rows, p.Cols, len(p.Value))
 	}
-	return s.load(p, sc)
+	return s.load(p, sc, same && s.scaledBy == sc)
 }
 
-// load puts the checked problem p in, scaled by sc when sc is not nil.
-func (s *Simplex) load(p *Problem, sc *scaling) error {
+// load puts the checked problem p in, scaled by sc when sc is not nil;
+// same is loadScaled's, checked.
+func (s *Simplex) load(p *Problem, sc *scaling, same bool) error {
 	var sameMatrix bool
 	if sc == nil {
 		sameMatrix = s.loaded && s.prob.sameMatrix(p)
 	} else {
-		sameMatrix = s.loaded && s.prob.sameScaled(p, sc)
+		sameMatrix = s.loaded && (same || s.prob.sameScaled(p, sc))
 	}
+	s.scaledBy = sc
 	sameShape := s.loaded && s.m == p.Rows && s.n == p.Cols
 	if s.loaded && !sameShape {
 		s.allocShape(p.Rows, p.Cols, len(p.Value))
@@ -553,6 +559,46 @@ func (s *Simplex) computeX() {
 	}
 }
 
+// priceCols sets the reduced cost d_j of every column j from the duals
+// y of the last btran: cost_j + shift_j - Σ_i rs_i·a_ij·cs_j·y_i over
+// its scaled entries, cost and shift nil standing for zero (phase 1's
+// costs), and d_j = 0 when j is basic. e (m floats, used up by btran) is
+// scratch.
+//
+// Every scale factor is a power of two, so multiplying by one is exact
+// and commutes with rounding: the row factors go into the duals once
+// (ry = rs·y, in e) and column j's factor c divides its cost and
+// multiplies the result, d_j = c·((cost_j+shift_j)/c - Σ a_ij·ry_i),
+// which is the same reduced cost bit for bit with one product per entry
+// instead of three. Both simplex methods run this pass over the whole
+// matrix at every pricing from scratch (phase 1 at every iteration).
+func (s *Simplex) priceCols(e, cost, shift []float64) {
+	n := s.n
+	ry := e[:s.m]
+	for i, r := range s.rs[:s.m] {
+		ry[i] = r * s.y[i]
+	}
+	stat, d, cs, cStart, cIdx, cVal := s.stat[:n], s.d[:n], s.cs[:n], s.cStart[:n+1], s.cIdx, s.prob.Value
+	for j, st := range stat {
+		if st == Basic {
+			d[j] = 0
+			continue
+		}
+		c := cs[j]
+		v := 0.0
+		if cost != nil {
+			v = (cost[j] + shift[j]) / c
+		}
+		idx := cIdx[cStart[j]:cStart[j+1]]
+		val := cVal[cStart[j]:cStart[j+1]]
+		val = val[:len(idx)]
+		for q, i := range idx {
+			v -= val[q] * ry[i]
+		}
+		d[j] = v * c
+	}
+}
+
 // computeD sets the duals y (Bᵀy = c_B, with the shifts in force) and the
 // reduced costs of the nonbasic variables.
 func (s *Simplex) computeD() {
@@ -561,24 +607,7 @@ func (s *Simplex) computeD() {
 		e[r] = s.cost[k] + s.shift[k]
 	}
 	s.lu.btran(e, s.y)
-	n := s.n
-	stat, cost, shift, d, y := s.stat[:n], s.cost[:n], s.shift[:n], s.d[:n], s.y
-	cStart, cIdx, cVal, rs, cs := s.cStart[:n+1], s.cIdx, s.prob.Value, s.rs, s.cs[:n]
-	for j, st := range stat {
-		if st == Basic {
-			d[j] = 0
-			continue
-		}
-		v, c := cost[j]+shift[j], cs[j]
-		idx := cIdx[cStart[j]:cStart[j+1]]
-		val := cVal[cStart[j]:cStart[j+1]]
-		val = val[:len(idx)]
-		for q, i := range idx {
-			a := rs[i] * val[q] * c
-			v -= a * y[i]
-		}
-		d[j] = v
-	}
+	s.priceCols(e, s.cost, s.shift)
 	for i := 0; i < s.m; i++ {
 		k := s.n + i
 		if s.stat[k] == Basic {
