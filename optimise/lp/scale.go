@@ -53,19 +53,7 @@ func scaleFactors(p *Problem, rows *rowMatrix, rs, cs []float64, work *[]float64
 		// Columns: scale, and the spread after this pass.
 		lo, hi := math.Inf(1), 0.0
 		for j := range cs {
-			idx := index[start[j]:start[j+1]]
-			v := val[start[j]:start[j+1]]
-			v = v[:len(idx)]
-			cmin, cmax := math.Inf(1), 0.0
-			for k, i := range idx {
-				a := math.Abs(v[k]) * rs[i]
-				if a < cmin {
-					cmin = a
-				}
-				if a > cmax {
-					cmax = a
-				}
-			}
+			cmin, cmax := scaledExtremes(index[start[j]:start[j+1]], val[start[j]:start[j+1]], rs)
 			if cmax > 0 {
 				c := 1 / math.Sqrt(cmin*cmax)
 				cs[j] = c
@@ -114,19 +102,7 @@ func (a *rowMatrix) rowPass(rs, cs []float64, first bool) bool {
 	start := a.start[:len(rs)+1]
 	lo, hi := math.Inf(1), 0.0
 	for i := range rs {
-		idx := a.idx[start[i]:start[i+1]]
-		v := a.val[start[i]:start[i+1]]
-		v = v[:len(idx)]
-		rmin, rmax := math.Inf(1), 0.0
-		for k, j := range idx {
-			e := math.Abs(v[k]) * cs[j]
-			if e < rmin {
-				rmin = e
-			}
-			if e > rmax {
-				rmax = e
-			}
-		}
+		rmin, rmax := scaledExtremes(a.idx[start[i]:start[i+1]], a.val[start[i]:start[i+1]], cs)
 		if rmax > 0 {
 			lo, hi = min(lo, rmin), max(hi, rmax)
 			rs[i] = 1 / math.Sqrt(rmin*rmax)
@@ -139,6 +115,25 @@ func (a *rowMatrix) rowPass(rs, cs []float64, first bool) bool {
 		return true
 	}
 	return false
+}
+
+// scaledExtremes is the smallest and largest |v[k]|·f[idx[k]] of one
+// packed row or column (v holds its values, idx their positions in the
+// other dimension, f that dimension's factors): +Inf and 0 when it is
+// empty. Both passes of scaleFactors use it.
+func scaledExtremes(idx []int, v, f []float64) (lo, hi float64) {
+	v = v[:len(idx)]
+	lo = math.Inf(1)
+	for k, i := range idx {
+		a := math.Abs(v[k]) * f[i]
+		if a < lo {
+			lo = a
+		}
+		if a > hi {
+			hi = a
+		}
+	}
+	return lo, hi
 }
 
 // colRowPass is rowPass on the matrix by columns (start, index, val),
