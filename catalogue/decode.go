@@ -307,7 +307,7 @@ func (c *collector) unknownKeys(md toml.MetaData, knownAt func(parent toml.Key) 
 		if !bad {
 			continue
 		}
-		reported[strings.Join(k, "\x00")] = true
+		reported[pathKey(k)] = true
 		w := where(i, k)
 		if w == "" && len(parent) > 0 {
 			w = "table [" + keyLabel(parent) + "]"
@@ -352,7 +352,7 @@ func hasReportedPrefix(reported map[string]bool, k toml.Key) bool {
 		return false
 	}
 	for n := 1; n < len(k); n++ {
-		if reported[strings.Join(k[:n], "\x00")] {
+		if reported[pathKey(k[:n])] {
 			return true
 		}
 	}

@@ -134,14 +134,14 @@ func scanTOML(src []byte, md toml.MetaData) (*tomlDoc, error) {
 func (d *tomlDoc) definedOnce() error {
 	seen := make(map[string]*tomlEntry, len(d.entries))
 	for _, e := range d.entries {
-		seen[strings.Join(e.path, "\x00")] = e
+		seen[pathKey(e.path)] = e
 	}
 	if len(seen) < len(d.entries) {
 		return &scanError{line: 0, msg: "a key is defined twice"}
 	}
 	for _, e := range d.entries {
 		for n := 1; n < len(e.path); n++ {
-			if p, ok := seen[strings.Join(e.path[:n], "\x00")]; ok && p.val != nil && (p.val.kind == valScalar || p.val.kind == valString) {
+			if p, ok := seen[pathKey(e.path[:n])]; ok && p.val != nil && (p.val.kind == valScalar || p.val.kind == valString) {
 				return &scanError{line: d.lineOf(e.keyStart), msg: fmt.Sprintf("key %q is defined as a value and as a table", strings.Join(e.path[:n], "."))}
 			}
 		}
@@ -151,7 +151,7 @@ func (d *tomlDoc) definedOnce() error {
 	// not add to it, though the reference parser lets "s = {a = 1}" then
 	// "[s.b]" through, and the span of s would not be the value it reads.
 	given := func(path []string, n int) bool {
-		p, ok := seen[strings.Join(path[:n], "\x00")]
+		p, ok := seen[pathKey(path[:n])]
 		return ok && p.val != nil && (p.val.kind == valTable || p.val.kind == valArray)
 	}
 	for _, e := range d.entries {
@@ -316,7 +316,7 @@ func (s *tomlScanner) resolve(parts []string, array bool) []string {
 	var path []string
 	for i, p := range parts {
 		path = append(path, p)
-		key := strings.Join(path, "\x00")
+		key := pathKey(path)
 		if i == len(parts)-1 && array {
 			s.arrays[key]++
 			path = append(path, "#"+strconv.Itoa(s.arrays[key]-1))
