@@ -74,13 +74,7 @@ func scaleFactors(p *Problem, rows *rowMatrix, rs, cs []float64, work *[]float64
 		rs[i] = pow2(rs[i])
 	}
 	for j := range cs {
-		idx := index[start[j]:start[j+1]]
-		v := val[start[j]:start[j+1]]
-		v = v[:len(idx)]
-		hi := 0.0
-		for k, i := range idx {
-			hi = max(hi, math.Abs(v[k])*rs[i])
-		}
+		_, hi := scaledExtremes(index[start[j]:start[j+1]], val[start[j]:start[j+1]], rs)
 		if hi > 0 {
 			cs[j] = pow2(1 / hi)
 		}
@@ -120,7 +114,8 @@ func (a *rowMatrix) rowPass(rs, cs []float64, first bool) bool {
 // scaledExtremes is the smallest and largest |v[k]|·f[idx[k]] of one
 // packed row or column (v holds its values, idx their positions in the
 // other dimension, f that dimension's factors): +Inf and 0 when it is
-// empty. Both passes of scaleFactors use it.
+// empty. The row and column passes of scaleFactors and its final
+// equilibration use it.
 func scaledExtremes(idx []int, v, f []float64) (lo, hi float64) {
 	v = v[:len(idx)]
 	lo = math.Inf(1)
