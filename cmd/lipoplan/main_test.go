@@ -196,3 +196,34 @@ func TestVersion(t *testing.T) {
 		assert.Regexp(t, `^lipoplan \S+.* \(go[0-9.]+\S*, [a-z0-9]+/[a-z0-9]+\)\nengine: \S+`, out)
 	}
 }
+
+// One-shot commands run with a higher GOGC; the workspace and the server,
+// which live for hours, keep the runtime's default, and so does anyone who
+// set GOGC or GOMEMLIMIT (project decision: DEVELOPERS.md, "Project
+// decisions"; the setting itself: go.dev/doc/gc-guide).
+func TestBatchGCPercent(t *testing.T) {
+	none := func(string) string { return "" }
+	for _, c := range []struct {
+		args []string
+		env  map[string]string
+		pct  int
+		ok   bool
+	}{
+		{[]string{"solve", "--format", "json"}, nil, batchGC, true},
+		{[]string{"plan"}, nil, batchGC, true},
+		{[]string{"--version"}, nil, batchGC, true},
+		{[]string{"explore"}, nil, 0, false},
+		{[]string{"serve", "--listen", "127.0.0.1:0"}, nil, 0, false},
+		{[]string{"solve"}, map[string]string{"GOGC": "50"}, 0, false},
+		{[]string{"solve"}, map[string]string{"GOMEMLIMIT": "1GiB"}, 0, false},
+		{nil, nil, 0, false},
+	} {
+		getenv := none
+		if c.env != nil {
+			getenv = func(k string) string { return c.env[k] }
+		}
+		pct, ok := batchGCPercent(c.args, getenv)
+		assert.Equal(t, c.ok, ok, "%v %v", c.args, c.env)
+		assert.Equal(t, c.pct, pct, "%v %v", c.args, c.env)
+	}
+}
