@@ -41,7 +41,7 @@ func ReadInput(path string) ([]byte, error) {
 	if st.Size() > MaxInputBytes {
 		return nil, &fs.PathError{Op: "read", Path: path, Err: tooBig(st.Size())}
 	}
-	data, err := io.ReadAll(io.LimitReader(f, MaxInputBytes+1))
+	data, err := readAll(io.LimitReader(f, MaxInputBytes+1), int(st.Size())+1)
 	if err != nil {
 		return nil, err
 	}
@@ -49,6 +49,27 @@ func ReadInput(path string) ([]byte, error) {
 		return nil, &fs.PathError{Op: "read", Path: path, Err: tooBig(int64(len(data)))}
 	}
 	return data, nil
+}
+
+// readAll is io.ReadAll into one buffer of size bytes to start with, the
+// file's size and one byte to see it end, as os.ReadFile sizes its buffer,
+// so that a file that does not grow while it is read is read without
+// copying; append grows the buffer for one that does.
+func readAll(r io.Reader, size int) ([]byte, error) {
+	data := make([]byte, 0, size)
+	for {
+		if len(data) == cap(data) {
+			data = append(data, 0)[:len(data)]
+		}
+		n, err := r.Read(data[len(data):cap(data)])
+		data = data[:len(data)+n]
+		if err == io.EOF {
+			return data, nil
+		}
+		if err != nil {
+			return nil, err
+		}
+	}
 }
 
 // refusedInput is why ReadInput will not read a file that exists.

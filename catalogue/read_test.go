@@ -1,11 +1,14 @@
 package catalogue
 
 import (
+	"bytes"
+	"io"
 	"os"
 	"path/filepath"
 	"strings"
 	"syscall"
 	"testing"
+	"testing/iotest"
 	"time"
 
 	"github.com/stretchr/testify/assert"
@@ -147,4 +150,34 @@ func TestNestingLimit(t *testing.T) {
 		d, _ := tomlDepth([]byte(doc), 1000)
 		assert.LessOrEqual(t, d, 1, "%q", doc)
 	}
+}
+
+// readAll reads what io.ReadAll (the standard library, the reference) reads,
+// whether the size hint is right, short or long, through readers that hand
+// over one byte at a time or end with their last bytes, and it passes a
+// read error on.
+func TestReadAllAsStandardLibrary(t *testing.T) {
+	for _, n := range []int{0, 1, 511, 512, 4096, 100_003} {
+		src := make([]byte, n)
+		for i := range src {
+			src[i] = byte(i*7 + n)
+		}
+		for _, hint := range []int{0, 1, n / 2, n + 1, 2*n + 10} {
+			for name, r := range map[string]func() io.Reader{
+				"plain":    func() io.Reader { return bytes.NewReader(src) },
+				"one byte": func() io.Reader { return iotest.OneByteReader(bytes.NewReader(src)) },
+				"data EOF": func() io.Reader { return iotest.DataErrReader(bytes.NewReader(src)) },
+			} {
+				want, err := io.ReadAll(r())
+				require.NoError(t, err)
+				got, err := readAll(r(), hint)
+				require.NoError(t, err, "%d bytes, hint %d, %s", n, hint, name)
+				require.Equal(t, want, got, "%d bytes, hint %d, %s", n, hint, name)
+			}
+		}
+	}
+	_, err := readAll(iotest.TimeoutReader(bytes.NewReader(make([]byte, 100))), 10)
+	require.ErrorIs(t, err, iotest.ErrTimeout, "the second read fails")
+	_, err = readAll(iotest.ErrReader(iotest.ErrTimeout), 10)
+	require.ErrorIs(t, err, iotest.ErrTimeout)
 }
