@@ -7,6 +7,7 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"sync"
 )
 
 // Standard atomic weights, IUPAC abridged values (IUPAC CIAAW, "Standard atomic
@@ -101,7 +102,7 @@ func TAGMolarMass(a, b, c FattyAcid) float64 { return TAGFormula(a, b, c).Mass()
 // reference is the fatty-acid table. Letter codes follow trade usage
 // (Bu, Co, Cy, La, M, P, S, O, L, Ln, A, B ...); a few rarer acids carry a
 // two-letter code of our own so that every TAG has a readable name.
-var reference = []FattyAcid{
+var reference = [...]FattyAcid{
 	{Key: "C4:0", Carbons: 4, Name: "butyric", Code: "Bu"},
 	{Key: "C6:0", Carbons: 6, Name: "caproic", Code: "Co"},
 	{Key: "C8:0", Carbons: 8, Name: "caprylic", Code: "Cy"},
@@ -128,16 +129,14 @@ var reference = []FattyAcid{
 // FattyAcids returns a copy of the reference table in chain-length order.
 func FattyAcids() []FattyAcid {
 	out := make([]FattyAcid, len(reference))
-	copy(out, reference)
+	copy(out, reference[:])
 	return out
 }
 
 // Lookup finds a fatty acid by its shorthand key.
 func Lookup(key string) (FattyAcid, bool) {
-	for _, f := range reference {
-		if f.Key == key {
-			return f, true
-		}
+	if r := Rank(key); r >= 0 {
+		return reference[r], true
 	}
 	return FattyAcid{}, false
 }
@@ -163,13 +162,23 @@ func Keys() []string {
 
 // Rank returns the table position of key, or -1; used to sort profiles.
 func Rank(key string) int {
-	for i, f := range reference {
-		if f.Key == key {
-			return i
-		}
+	if r, ok := rankOf()[key]; ok {
+		return r
 	}
 	return -1
 }
+
+// rankOf is the reference table's position of each key, built once on first
+// use and only read after that: the loader looks up every key of every
+// profile, 25 000 look-ups in a 300-stock catalogue, where a walk along the
+// table compared up to 21 strings each.
+var rankOf = sync.OnceValue(func() map[string]int {
+	m := make(map[string]int, len(reference))
+	for i, f := range reference {
+		m[f.Key] = i
+	}
+	return m
+})
 
 // SortedKeys returns the keys of a profile in reference-table order; keys
 // outside the table come first, in byte order, so that the order never
@@ -289,38 +298,45 @@ func TempKey(t float64) string {
 // input in the loader's words (Stock.CheckProfiles), and so is a profile
 // with nothing in it.
 func MolFractions(fa map[string]float64) (acids []FattyAcid, x []float64, err error) {
-	// one rank look-up per key, then a walk in table order
-	var stack [32]float64 // the reference table fits; no allocation
-	ranked := stack[:]
-	if len(reference) > len(stack) {
-		ranked = make([]float64, len(reference))
+	var ranked [len(reference)]float64
+	if err := molByRank(fa, &ranked); err != nil {
+		return nil, nil, err
 	}
-	ranked = ranked[:len(reference)]
+	acids, x = make([]FattyAcid, 0, len(fa)), make([]float64, 0, len(fa))
+	for r, f := range reference {
+		if ranked[r] > 0 {
+			acids = append(acids, f)
+			x = append(x, ranked[r])
+		}
+	}
+	return acids, x, nil
+}
+
+// molByRank is MolFractions into a table by reference-table position (zero
+// for an acid the profile lacks), without allocating: one rank look-up per
+// key, then one walk in table order.
+func molByRank(fa map[string]float64, ranked *[len(reference)]float64) error {
 	for k, w := range fa {
 		r := Rank(k)
 		if r < 0 || !(w >= 0) || math.IsInf(w, 1) {
-			return nil, nil, checked("", func(c *collector) { c.profileEntries("", "fatty_acids", fa) })
+			return checked("", func(c *collector) { c.profileEntries("", "fatty_acids", fa) })
 		}
 		ranked[r] += w
 	}
 	var total float64
-	acids, x = make([]FattyAcid, 0, len(fa)), make([]float64, 0, len(fa))
 	for r, f := range reference {
-		if ranked[r] <= 0 {
-			continue
+		if ranked[r] > 0 {
+			ranked[r] /= f.EsterMolarMass()
+			total += ranked[r]
 		}
-		n := ranked[r] / f.EsterMolarMass()
-		acids = append(acids, f)
-		x = append(x, n)
-		total += n
 	}
 	if total <= 0 {
-		return nil, nil, Badf("the fatty-acid profile is empty; give wt%% FAME for at least one acid")
+		return Badf("the fatty-acid profile is empty; give wt%% FAME for at least one acid")
 	}
-	for i := range x {
-		x[i] /= total
+	for r := range ranked {
+		ranked[r] /= total
 	}
-	return acids, x, nil
+	return nil
 }
 
 // MolPercent is MolFractions by key, in mol%; nil for a profile that

@@ -683,17 +683,18 @@ func (c *collector) checkSum(where, table, unit string, m map[string]float64, wa
 // 1,3-random-2-random relation x13 = (3x - x2)/2 (Vander Wal; Coleman), with
 // x the acid's mol% in the whole fat, should not be negative.
 func (c *collector) checkSN2(where string, fa, sn2 map[string]float64) {
-	acids, x, _ := MolFractions(fa)
+	var x [len(reference)]float64
+	if molByRank(fa, &x) != nil {
+		clear(x[:]) // a bad profile has its own messages; every acid counts as absent here
+	}
 	clean := true
 	for k, x2 := range sn2 {
 		if x2 <= 0 {
 			continue
 		}
 		mol := 0.0 // mol% of k in the whole fat, as MolPercent gives it
-		for i, f := range acids {
-			if f.Key == k {
-				mol = 100 * x[i]
-			}
+		if r := Rank(k); r >= 0 {
+			mol = 100 * x[r]
 		}
 		if fa[k] <= 0 || (3*mol-x2)/2 < sn13Floor {
 			clean = false
