@@ -124,28 +124,55 @@ func finiteOrNil(v float64, digits int) any {
 	return round(v, digits)
 }
 
+// limitJSON is one entry of a solve's "limits" (README, JSON output), and
+// rangingJSON one of its "ranging". They are structs rather than maps, one
+// per limit and one per stock, because a 300-stock solve has hundreds of
+// each and encoding/json sorts a map's keys and reflects on every value;
+// the fields are declared in the order of their keys, so the output is the
+// same as a map's, byte for byte.
+type limitJSON struct {
+	Binding     bool    `json:"binding"`
+	Bound       float64 `json:"bound"`
+	Excluded    bool    `json:"excluded"`
+	HoldsFrom   any     `json:"holds_from"` // null for no end
+	HoldsTo     any     `json:"holds_to"`
+	Label       string  `json:"label"`
+	Name        string  `json:"name"`
+	Room        float64 `json:"room"`
+	ShadowPrice float64 `json:"shadow_price"`
+	Value       float64 `json:"value"`
+}
+
+type rangingJSON struct {
+	PriceHigh any    `json:"price_high"` // null for no upper limit
+	PriceLow  any    `json:"price_low"`  // null for no lower limit
+	Stock     string `json:"stock"`
+}
+
 // solveJSON is the stable JSON shape of a solve (README, JSON output).
 func solveJSON(r *optimise.Result) map[string]any {
 	out := map[string]any{"status": string(r.Status), "engine": r.Engine, "caution": cautionJSON}
-	limits := []map[string]any{}
-	ranging := []map[string]any{}
+	limits := []limitJSON{}
+	ranging := []rangingJSON{}
 	if len(r.Blend) > 0 {
 		out["cost_per_tonne"] = round(r.CostPerTonne, 4)
 		out["batch_cost"] = round(r.BatchCost, 2)
 		out["properties"] = propertiesJSON(r.Properties)
+		limits = make([]limitJSON, 0, len(r.Limits))
 		for _, l := range r.Limits {
-			limits = append(limits, map[string]any{
-				"name": l.Name, "label": l.Label, "value": round(l.Value, 6), "bound": round(l.Bound, 6), "room": round(l.Room(), 6),
-				"binding": l.Binding, "shadow_price": round(l.ShadowPrice, 6),
-				"holds_from": finiteOrNil(l.HoldsFrom, 6), "holds_to": finiteOrNil(l.HoldsTo, 6), "excluded": l.Excluded,
+			limits = append(limits, limitJSON{
+				Name: l.Name, Label: l.Label, Value: round(l.Value, 6), Bound: round(l.Bound, 6), Room: round(l.Room(), 6),
+				Binding: l.Binding, ShadowPrice: round(l.ShadowPrice, 6),
+				HoldsFrom: finiteOrNil(l.HoldsFrom, 6), HoldsTo: finiteOrNil(l.HoldsTo, 6), Excluded: l.Excluded,
 			})
 		}
+		ranging = make([]rangingJSON, 0, len(r.Ranging))
 		for _, g := range r.Ranging {
 			low := finiteOrNil(g.PriceLow, 4)
 			if g.PriceLow < 0 {
 				low = nil // any price down to nothing keeps the blend: no lower limit
 			}
-			ranging = append(ranging, map[string]any{"stock": g.Stock, "price_low": low, "price_high": finiteOrNil(g.PriceHigh, 4)})
+			ranging = append(ranging, rangingJSON{Stock: g.Stock, PriceLow: low, PriceHigh: finiteOrNil(g.PriceHigh, 4)})
 		}
 	} else {
 		out["cost_per_tonne"] = nil
