@@ -43,6 +43,20 @@ func newFastTable(explicit bool) *fastTable {
 	return &fastTable{m: map[string]any{}, explicit: explicit}
 }
 
+// newFastTableAt is newFastTable for a table whose header ends at p.pos: its
+// map is made for as many entries as there are '=' before the next line
+// that opens with '[' (a header in the subset, which has no multi-line
+// values), so that a fatty-acid table of a dozen acids is not grown and
+// copied on the way. An '=' in a string or a comment makes the hint larger,
+// never wrong.
+func (p *fastParser) newFastTableAt() *fastTable {
+	rest := p.src[p.pos:]
+	if i := bytes.Index(rest, []byte("\n[")); i >= 0 {
+		rest = rest[:i]
+	}
+	return &fastTable{m: make(map[string]any, bytes.Count(rest, []byte("="))), explicit: true}
+}
+
 // fastParser reads one document; ok is cleared at the first thing it does
 // not read, and every step returns at once after that.
 type fastParser struct {
@@ -201,7 +215,7 @@ func (p *fastParser) header() bool {
 				p.owners = append(p.owners, t)
 			}
 		}
-		elem := newFastTable(true)
+		elem := p.newFastTableAt()
 		t.arrays[last] = append(t.arrays[last], elem)
 		p.cur = elem
 		return true
@@ -212,7 +226,7 @@ func (p *fastParser) header() bool {
 		// reference parser).
 		return false
 	}
-	kid := newFastTable(true)
+	kid := p.newFastTableAt()
 	t.addKid(last, kid)
 	p.cur = kid
 	return true
@@ -238,7 +252,7 @@ func (p *fastParser) keyValueDepth(m map[string]any, arrays map[string][]*fastTa
 	if !ok {
 		return false
 	}
-	if _, taken := m[k]; taken || arrays[k] != nil {
+	if arrays[k] != nil {
 		return false
 	}
 	p.ws()
@@ -251,8 +265,12 @@ func (p *fastParser) keyValueDepth(m map[string]any, arrays map[string][]*fastTa
 	if !ok {
 		return false
 	}
+	// a key already in m leaves its length as it was: defined twice, which
+	// TOML forbids (the whole parse is declined, so the overwritten value
+	// does not matter); one hash of the key instead of a look-up and a store
+	n := len(m)
 	m[k] = v
-	return true
+	return len(m) > n
 }
 
 // key reads one bare or quoted key part.
