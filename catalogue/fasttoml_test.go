@@ -29,6 +29,14 @@ func sameAsReference(t *testing.T, data []byte) bool {
 		require.NoError(t, err, "the fast reader read a document the reference parser refuses:\n%s", data)
 		require.Equal(t, want, tree, "the fast reader's tree differs from the reference parser's:\n%s", data)
 	}
+	// read in two halves whatever the size (fastStockTree with from 0):
+	// the joined tree too must be the reference parser's
+	if split, sok := fastStockTree(data, 0); sok {
+		var want map[string]any
+		_, err := toml.Decode(string(data), &want)
+		require.NoError(t, err, "the fast reader read in two halves a document the reference parser refuses:\n%s", data)
+		require.Equal(t, want, split, "the fast reader's tree read in two halves differs from the reference parser's:\n%s", data)
+	}
 	raw, fast := fastStocks(data)
 	if !fast {
 		return ok
@@ -90,6 +98,48 @@ func TestFastStocksSame(t *testing.T) {
 	require.Greater(t, read, 10, "the fast reader read almost none of the corpus")
 	_, ok := fastStocks(DemoFiles()["stocks.toml"])
 	require.True(t, ok, "the demo catalogue is of clean shape and must take the fast path")
+}
+
+// TestFastStockTreeHalves checks the reading in two halves on documents cut
+// at a [[stock]] line: a large catalogue is read that way, and documents
+// whose second half needs the first (a top-level table after the stocks, a
+// [stock] table before them, a key defined in both halves) are either read
+// as the reference parser (BurntSushi/toml) reads them or left to it.
+func TestFastStockTreeHalves(t *testing.T) {
+	big := stocksN(t, 300)
+	require.Positive(t, stockCut(big))
+	tree, ok := fastStockTree(big, 0)
+	require.True(t, ok, "a clean 300-stock catalogue is read in two halves")
+	whole, _ := fastTOML(big)
+	require.Equal(t, whole, tree)
+	require.Len(t, tree["stock"], 300)
+
+	stock := "[[stock]]\nid = \"a\"\n[stock.sfc]\n10 = 1.0\n"
+	pad := strings.Repeat("\n", 40)
+	for _, doc := range []string{
+		"currency = \"EUR\"\n" + stock + stock,
+		stock + stock + stock + "[other]\nx = 1\n",
+		stock + stock + stock + "currency = \"EUR\"\n",
+		"[stock]\nid = \"a\"\n" + pad + stock,
+		"stock = 1\n" + pad + stock,
+		"stock = [{id = \"z\"}]\n" + pad + stock,
+		"stock = []\n" + pad + stock,
+		"[a]\nx = 1\n" + pad + pad + stock + "[a]\ny = 2\n",
+		"[stock.sfc]\n10 = 1.0\n" + pad + stock,
+		strings.ReplaceAll(stock+stock+stock, "\n", "\r\n"),
+	} {
+		require.Positive(t, stockCut([]byte(doc)), "%q has a cut", doc)
+		sameAsReference(t, []byte(doc))
+	}
+	// no cut at a header that is not exactly "[[stock]]" on its line
+	for _, doc := range []string{
+		stock + pad + "[[stocks]]\nid = 1\n",
+		stock + pad + "[[stock]] # a comment\nid = \"b\"\n",
+		stock + pad + "[[ stock ]]\nid = \"b\"\n",
+	} {
+		require.Equal(t, -1, stockCut([]byte(doc)), "%q", doc)
+		sameAsReference(t, []byte(doc))
+	}
 }
 
 // TestFastTOMLForms checks forms of TOML v1.0.0 (toml.io/en/v1.0.0) one by
