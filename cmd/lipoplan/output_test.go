@@ -1,6 +1,8 @@
 package main
 
 import (
+	"bytes"
+	"encoding/json"
 	"io"
 	"os"
 	"path/filepath"
@@ -135,4 +137,28 @@ func TestDemoWriteThroughOutput(t *testing.T) {
 	code, _, errs = run(t, "demo", "--write", link)
 	assert.Equal(t, 2, code)
 	assert.Contains(t, errs, "already exists")
+}
+
+// TestWriteJSONAsEncoder holds writeJSON to the standard library's
+// json.Encoder with SetIndent("", "  "), byte for byte: nested objects and
+// arrays, empty ones, HTML characters (escaped by both), numbers, null, and
+// a whole 300-stock solve report.
+func TestWriteJSONAsEncoder(t *testing.T) {
+	stocks, spec := stocks300(t, t.TempDir())
+	var report bytes.Buffer
+	require.NoError(t, (&app{stdout: &report, stderr: io.Discard}).solve([]string{"--stocks", stocks, "--spec", spec, "--format", "json"}))
+	var decoded any
+	require.NoError(t, json.Unmarshal(report.Bytes(), &decoded))
+	for _, v := range []any{
+		map[string]any{"a": []any{}, "b": map[string]any{}, "c": nil, "d": 1.5e-9, "e": "<b>&</b>", "f": []any{1, []any{2, map[string]any{"g": true}}}},
+		[]int{}, "plain", 3, nil, decoded,
+	} {
+		var want, got bytes.Buffer
+		enc := json.NewEncoder(&want)
+		enc.SetIndent("", "  ")
+		require.NoError(t, enc.Encode(v))
+		require.NoError(t, writeJSON(&got, v))
+		require.Equal(t, want.String(), got.String())
+	}
+	require.Error(t, writeJSON(io.Discard, func() {}), "a value JSON cannot hold is an error")
 }
