@@ -1,7 +1,10 @@
 package catalogue
 
 import (
+	"bytes"
+	"fmt"
 	"math"
+	"math/rand/v2"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -157,4 +160,61 @@ func TestLoadStocksMissingFile(t *testing.T) {
 	require.Len(t, ps, 1)
 	assert.Equal(t, p, ps[0].File)
 	assert.Contains(t, ps[0].String(), "cannot read the stock catalogue: no such file or directory; check the path")
+}
+
+// TestEachStockHalves holds the checking of a catalogue's two halves at
+// once (eachStock from 0) to the one pass (eachStock from more than the
+// stocks), problem for problem, on 300-stock catalogues with seeded faults
+// (prices below nothing, ids used twice, fatty-acid sums off by a warning's
+// or an error's worth): from a few problems to far beyond maxProblems,
+// reported and quiet.
+func TestEachStockHalves(t *testing.T) {
+	demo := DemoStocks()
+	for _, rate := range []float64{0, 0.01, 0.05, 0.2, 0.6} {
+		r := rand.New(rand.NewPCG(uint64(rate*1000), 7))
+		cat := demo.Clone()
+		for k := 0; len(cat.Stocks) < 300; k++ {
+			s := demo.Stocks[k%len(demo.Stocks)]
+			s.ID = fmt.Sprintf("%s-v%03d", s.ID, k)
+			if r.Float64() < rate {
+				s.Price = -5
+			}
+			if r.Float64() < rate {
+				s.ID = cat.Stocks[r.IntN(len(cat.Stocks))].ID
+			}
+			if r.Float64() < rate {
+				f := 1.005 // a sum 0.5 over 100: a warning
+				if r.Float64() < 0.5 {
+					f = 1.05 // 5 over: an error
+				}
+				fa := map[string]float64{}
+				for key, v := range s.FattyAcids {
+					fa[key] = v * f
+				}
+				s.FattyAcids = fa
+			}
+			cat.Stocks = append(cat.Stocks, s)
+		}
+		var b bytes.Buffer
+		require.NoError(t, WriteStocks(&b, cat))
+		raw, ok := fastStocks(b.Bytes())
+		require.True(t, ok)
+		for _, quiet := range []bool{false, true} {
+			one := &collector{file: "stocks.toml", quiet: quiet}
+			oneCat := &Catalogue{}
+			one.eachStock(oneCat, raw.Stock, len(raw.Stock)+1)
+			two := &collector{file: "stocks.toml", quiet: quiet}
+			twoCat := &Catalogue{}
+			two.eachStock(twoCat, raw.Stock, 0)
+			require.Equal(t, one.problems(), two.problems(), "rate %g quiet %v", rate, quiet)
+			require.Equal(t, [3]int{one.errors, one.warnings, one.dropped}, [3]int{two.errors, two.warnings, two.dropped}, "rate %g quiet %v", rate, quiet)
+			require.Equal(t, oneCat.Stocks, twoCat.Stocks)
+			if rate == 0.6 && !quiet {
+				require.Positive(t, one.dropped, "the worst catalogue has problems beyond maxProblems")
+			}
+			if rate == 0.01 && !quiet {
+				require.NotEmpty(t, one.ps)
+			}
+		}
+	}
 }
