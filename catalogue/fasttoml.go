@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"runtime"
 	"strconv"
+	"sync"
 	"unicode/utf8"
 )
 
@@ -607,13 +608,10 @@ func fastStockTree(src []byte, from int) (map[string]any, bool) {
 	}
 	var tail map[string]any
 	var tailOK bool
-	done := make(chan struct{})
-	go func() {
-		defer close(done)
-		tail, tailOK = fastTOML(src[cut:])
-	}()
+	var wg sync.WaitGroup
+	wg.Go(func() { tail, tailOK = fastTOML(src[cut:]) })
 	head, ok := fastTOML(src[:cut])
-	<-done
+	wg.Wait()
 	if !ok || !tailOK || len(tail) != 1 {
 		return nil, false
 	}

@@ -6,6 +6,7 @@ import (
 	"runtime"
 	"sort"
 	"strings"
+	"sync"
 
 	"github.com/BurntSushi/toml"
 )
@@ -526,7 +527,7 @@ func (c *collector) stocks(raw rawStocks) *Catalogue {
 	if len(raw.Stock) == 0 {
 		c.noStocks()
 	}
-	c.eachStock(cat, raw.Stock, splitStocksFrom)
+	cat.Stocks = c.eachStock(raw.Stock, splitStocksFrom)
 	return cat
 }
 
@@ -536,64 +537,59 @@ func (c *collector) stocks(raw rawStocks) *Catalogue {
 const splitStocksFrom = 64
 
 // eachStock converts and checks every stock in document order, each
-// followed by the check of its id against those before it, into
-// cat.Stocks. From from stocks on, on a machine with two processors or
-// more, the second half is checked at the same time on a collector of its
-// own that marks where each stock's problems end; its problems then join
-// c's one by one in document order, each stock's before its id check, by
-// c.add, which keeps or drops each as it would have kept or dropped it in
-// one pass (a problem's text does not depend on how many came before it;
-// only whether it is kept does). The result is the one pass's, problem for
-// problem (TestEachStockHalves).
-func (c *collector) eachStock(cat *Catalogue, raw []rawStock, from int) {
+// followed by the check of its id against those before it. From from
+// stocks on, on a machine with two processors or more, the second half is
+// checked at the same time on a collector of its own that marks where each
+// stock's problems end; its problems then join c's one by one in document
+// order, each stock's before its id check, by c.add, which keeps or drops
+// each as it would have kept or dropped it in one pass (a problem's text
+// does not depend on how many came before it; only whether it is kept
+// does). The result is the one pass's, problem for problem
+// (TestEachStockHalves).
+func (c *collector) eachStock(raw []rawStock, from int) []Stock {
 	if len(raw) == 0 {
-		return
+		return nil
 	}
-	cat.Stocks = make([]Stock, len(raw))
+	stocks := make([]Stock, len(raw))
 	seen := make(map[string]int, len(raw))
 	half := len(raw)
-	if len(raw) >= from && len(raw) >= 2 && runtime.GOMAXPROCS(0) > 1 {
+	if len(raw) >= from && runtime.GOMAXPROCS(0) > 1 {
 		half = len(raw) / 2
 	}
-	var tail *collector
-	var ends []int // len(tail.ps) after each stock of the tail
-	done := make(chan struct{})
+	tail := &collector{file: c.file, quiet: c.quiet}
+	ends := make([]int, len(raw)-half) // len(tail.ps) after each stock of the tail
+	var wg sync.WaitGroup
 	if half < len(raw) {
-		tail = &collector{file: c.file, quiet: c.quiet}
-		ends = make([]int, len(raw)-half)
-		go func() {
-			defer close(done)
+		wg.Go(func() {
 			for k, rs := range raw[half:] {
-				cat.Stocks[half+k] = tail.stock(half+k, rs)
+				stocks[half+k] = tail.stock(half+k, rs)
 				ends[k] = len(tail.ps)
 			}
-		}()
+		})
 	}
 	for i, rs := range raw[:half] {
-		cat.Stocks[i] = c.stock(i, rs)
-		c.uniqueID(i, cat.Stocks[i].ID, seen)
+		stocks[i] = c.stock(i, rs)
+		c.uniqueID(i, stocks[i].ID, seen)
 	}
-	if half == len(raw) {
-		return
-	}
-	<-done
-	from = 0
+	wg.Wait()
+	start := 0
 	reported := 0 // errors of the tail among its problems kept
 	for k, end := range ends {
-		for _, p := range tail.ps[from:end] {
+		for _, p := range tail.ps[start:end] {
 			if !p.Warning {
 				reported++
 			}
 			c.add(p)
 		}
-		from = end
-		c.uniqueID(half+k, cat.Stocks[half+k].ID, seen)
+		start = end
+		c.uniqueID(half+k, stocks[half+k].ID, seen)
 	}
 	// what the tail only counted (quiet, or beyond its own maxProblems,
 	// when c is full as well) is counted the same way here
 	c.errors += tail.errors - reported
 	c.warnings += tail.warnings
 	c.dropped += tail.dropped
+	return stocks
 }
 
 func (c *collector) stock(i int, rs rawStock) Stock {
