@@ -1,7 +1,6 @@
 package main
 
 import (
-	"bytes"
 	"encoding/json"
 	"fmt"
 	"io"
@@ -195,24 +194,18 @@ func writeMeltingPoints(w io.Writer, sfc map[float64]float64, indent string) {
 }
 
 // writeJSON writes v as JSON indented by two spaces with a newline after,
-// the bytes json.Encoder with SetIndent("", "  ") writes. It marshals v
-// compact and indents into one buffer made for twice that (json.Indent's
-// own estimate; a report indents to about 1.5 times its compact size):
-// the Encoder indents into a buffer that grows by appending, several
-// times a 300-stock report's 74 kB, which a one-shot command only touches
-// once and pays for in fresh pages.
+// the bytes json.Encoder with SetIndent("", "  ") writes. It takes them
+// from json.MarshalIndent, which indents into one buffer made for twice the
+// compact size (a report indents to about 1.5 times that): the Encoder
+// indents into a buffer that grows by appending, several times a 300-stock
+// report's 74 kB, which a one-shot command only touches once and pays for
+// in fresh pages.
 func writeJSON(w io.Writer, v any) error {
-	compact, err := json.Marshal(v)
+	out, err := json.MarshalIndent(v, "", "  ")
 	if err != nil {
 		return fmt.Errorf("writing JSON: %w", err)
 	}
-	var out bytes.Buffer
-	out.Grow(2*len(compact) + 1)
-	if err := json.Indent(&out, compact, "", "  "); err != nil {
-		return fmt.Errorf("writing JSON: %w", err)
-	}
-	out.WriteByte('\n')
-	if _, err := w.Write(out.Bytes()); err != nil {
+	if _, err := w.Write(append(out, '\n')); err != nil {
 		return fmt.Errorf("writing JSON: %w", err)
 	}
 	return nil
