@@ -41,9 +41,33 @@ func (x *val) UnmarshalTOML(data any) error {
 // the document's checks (stocks.go, spec.go, orders.go), not by the decoder.
 type leafMap struct {
 	m   map[string]any
-	raw any // the value when it is not a table
+	f   map[string]float64 // the table, read as numbers by the direct reader (faststocks.go), instead of m
+	raw any                // the value when it is not a table
 	set bool
 }
+
+// numbersClean reports a table read as numbers (f) whose keys all pass
+// keyOK and whose values are all finite and >= 0: the common case, which
+// the checks take as it is.
+func (x leafMap) numbersClean(keyOK func(string) bool) bool {
+	return x.f != nil && leavesClean(x.f, asNumber, keyOK, nil)
+}
+
+// untyped is x with a table read as numbers (f) as the reference parser
+// gives it (m), for the checks that word each problem.
+func (x leafMap) untyped() leafMap {
+	if x.f == nil {
+		return x
+	}
+	m := make(map[string]any, len(x.f))
+	for k, v := range x.f {
+		m[k] = v
+	}
+	return leafMap{m: m, set: x.set}
+}
+
+// asNumber is number for a value that is one already.
+func asNumber(f float64) (float64, bool) { return f, true }
 
 // UnmarshalTOML implements toml.Unmarshaler; it never fails.
 func (x *leafMap) UnmarshalTOML(data any) error {

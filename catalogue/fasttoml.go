@@ -52,11 +52,17 @@ func newFastTable(explicit bool) *fastTable {
 // copied on the way. An '=' in a string or a comment makes the hint larger,
 // never wrong.
 func (p *fastParser) newFastTableAt() *fastTable {
+	return &fastTable{m: make(map[string]any, p.entriesHint()), explicit: true}
+}
+
+// entriesHint is the number of '=' from p.pos to the next line that opens
+// with '[' (newFastTableAt).
+func (p *fastParser) entriesHint() int {
 	rest := p.src[p.pos:]
 	if i := bytes.Index(rest, []byte("\n[")); i >= 0 {
 		rest = rest[:i]
 	}
-	return &fastTable{m: make(map[string]any, bytes.Count(rest, []byte("="))), explicit: true}
+	return bytes.Count(rest, []byte("="))
 }
 
 // fastParser reads one document; ok is cleared at the first thing it does
@@ -372,22 +378,36 @@ func (p *fastParser) boolean() (any, bool) {
 // an optional fraction and exponent; underscores only between digits.
 // Special floats (inf, nan), other bases, dates and times are declined.
 func (p *fastParser) number() (any, bool) {
+	text, float, ok := p.numberText()
+	if !ok {
+		return nil, false
+	}
+	if float {
+		f, err := strconv.ParseFloat(string(text), 64)
+		return f, err == nil
+	}
+	n, err := strconv.ParseInt(string(text), 10, 64)
+	return n, err == nil
+}
+
+// numberText reads the token of number and returns it without its
+// underscores, and whether it is a float (a fraction or an exponent).
+func (p *fastParser) numberText() (text []byte, float, ok bool) {
 	start := p.pos
 	if b := p.src[p.pos]; b == '+' || b == '-' {
 		p.pos++
 	}
 	intStart := p.pos
 	if !p.digits() {
-		return nil, false
+		return nil, false, false
 	}
 	if p.src[intStart] == '0' && p.pos-intStart > 1 {
-		return nil, false // leading zero
+		return nil, false, false // leading zero
 	}
-	float := false
 	if p.pos < len(p.src) && p.src[p.pos] == '.' {
 		p.pos++
 		if !p.digits() {
-			return nil, false
+			return nil, false, false
 		}
 		float = true
 	}
@@ -397,23 +417,18 @@ func (p *fastParser) number() (any, bool) {
 			p.pos++
 		}
 		if !p.digits() {
-			return nil, false
+			return nil, false, false
 		}
 		float = true
 	}
 	if !p.delimited() {
-		return nil, false
+		return nil, false, false
 	}
-	text := p.src[start:p.pos]
+	text = p.src[start:p.pos]
 	if bytes.IndexByte(text, '_') >= 0 {
 		text = bytes.ReplaceAll(text, []byte("_"), nil)
 	}
-	if float {
-		f, err := strconv.ParseFloat(string(text), 64)
-		return f, err == nil
-	}
-	n, err := strconv.ParseInt(string(text), 10, 64)
-	return n, err == nil
+	return text, float, true
 }
 
 // digits reads digit ('_'? digit)* and reports whether there was one.
@@ -648,14 +663,19 @@ func stockCut(src []byte) int {
 	return -1
 }
 
-// fastStocks reads a stock catalogue through fastTOML into the raw form
-// the reference parser fills, for a document that is clean in shape:
+// fastStocks reads a stock catalogue into the raw form the reference
+// parser fills: by the direct reader when the catalogue is in the layout
+// lipoplan writes (directStocks, faststocks.go), else through fastTOML,
+// for a document that is clean in shape:
 // only the keys the format knows at the top and in each [[stock]] (in
 // their exact case), stocks as an array of tables, scalar values where a
 // scalar belongs and tables of scalars under fatty_acids, sn2, sfc and
 // tags. Any other document (ok false) is read by the reference parser,
 // whose metadata words the problems of shape (parseStocks).
 func fastStocks(src []byte) (rawStocks, bool) {
+	if raw, ok := directStocks(src, splitFrom); ok {
+		return raw, true
+	}
 	var raw rawStocks
 	tree, ok := fastStockTree(src, splitFrom)
 	if !ok {

@@ -1,10 +1,11 @@
 package catalogue
 
 import (
+	"cmp"
 	"fmt"
 	"math"
 	"runtime"
-	"sort"
+	"slices"
 	"strings"
 	"sync"
 
@@ -24,6 +25,12 @@ type Point struct {
 type Curve []Point
 
 // At interpolates the curve linearly at temperature t. It reports false when t
+// sortByTemp orders the points by temperature (without sort.Slice's
+// reflection: the loader sorts every stock's curve).
+func (c Curve) sortByTemp() {
+	slices.SortFunc(c, func(a, b Point) int { return cmp.Compare(a.Temp, b.Temp) })
+}
+
 // lies outside the measured range (no extrapolation) or the curve is empty.
 func (c Curve) At(t float64) (float64, bool) {
 	if len(c) == 0 {
@@ -644,6 +651,10 @@ func (c *collector) stock(i int, rs rawStock) Stock {
 
 // faMap reads a table keyed by fatty-acid shorthand with non-negative values.
 func (c *collector) faMap(where, table string, lm leafMap) (map[string]float64, bool) {
+	if lm.numbersClean(acidKnown) {
+		return lm.f, true
+	}
+	lm = lm.untyped()
 	if lm.m == nil {
 		c.errf(where, "%s must be a table, not %s; write [stock.%s] and then lines such as \"C16:0\" = 44.0", table, describe(lm.raw), table)
 		return nil, false
@@ -658,7 +669,7 @@ func (c *collector) faMap(where, table string, lm leafMap) (map[string]float64, 
 // the messages, and out holds the good entries.
 func (c *collector) leafAmounts(where, table string, m map[string]any, known, checkKey func(string) bool) (map[string]float64, bool) {
 	out := make(map[string]float64, len(m))
-	if leavesClean(m, known, out) {
+	if leavesClean(m, number, known, out) {
 		return out, true // the common case, without a sort or a label
 	}
 	clear(out)
@@ -679,39 +690,42 @@ func (c *collector) leafAmounts(where, table string, m map[string]any, known, ch
 	return out, good
 }
 
-// leavesClean reads a table of leaves into out when every key passes
-// keyOK and every value is a finite number >= 0, the common case; it
-// reports whether they all did (out is then complete). The callers then
-// read a table that is not clean again, key by key in order, for the
-// messages.
-func leavesClean(m map[string]any, keyOK func(string) bool, out map[string]float64) bool {
+// leavesClean reads a table of leaves into out (unless out is nil) when
+// every key passes keyOK and every value is a finite number >= 0 by num,
+// the common case; it reports whether they all did (out is then
+// complete). The callers then read a table that is not clean again, key by
+// key in order, for the messages.
+func leavesClean[V any](m map[string]V, num func(V) (float64, bool), keyOK func(string) bool, out map[string]float64) bool {
 	for k, v := range m {
-		f, ok := number(v)
+		f, ok := num(v)
 		if !ok || !(f >= 0) || math.IsInf(f, 1) || !keyOK(k) {
 			return false
 		}
-		out[k] = f
+		if out != nil {
+			out[k] = f
+		}
 	}
 	return true
 }
 
 // curveClean reads a measured SFC table whose keys are all temperatures
-// in range, distinct, with values in 0..100 % solid, the common case; ok
-// false sends the caller to the reading key by key for the messages.
-func curveClean(m map[string]any) (Curve, bool) {
+// in range, distinct, with values (by num) in 0..100 % solid, the common
+// case; ok false sends the caller to the reading key by key for the
+// messages.
+func curveClean[V any](m map[string]V, num func(V) (float64, bool)) (Curve, bool) {
 	out := make(Curve, 0, len(m))
 	for k, v := range m {
 		t, err := ParseTemp(k)
 		if err != nil || !(t >= MinTemp && t <= MaxTemp) {
 			return nil, false
 		}
-		f, ok := number(v)
+		f, ok := num(v)
 		if !ok || !(f >= 0 && f <= 100) {
 			return nil, false
 		}
 		out = append(out, Point{Temp: t, Solid: f})
 	}
-	sort.Slice(out, func(i, j int) bool { return out[i].Temp < out[j].Temp })
+	out.sortByTemp()
 	for i := 1; i < len(out); i++ {
 		if out[i].Temp == out[i-1].Temp {
 			return nil, false
@@ -781,15 +795,22 @@ func (c *collector) checkSN2(where string, fa, sn2 map[string]float64) {
 
 // curve reads a measured SFC table.
 func (c *collector) curve(where string, lm leafMap) Curve {
-	if lm.m == nil {
+	var out Curve
+	var ok bool
+	switch {
+	case lm.f != nil:
+		out, ok = curveClean(lm.f, asNumber)
+	case lm.m != nil:
+		out, ok = curveClean(lm.m, number)
+	default:
 		c.errf(where, "sfc must be a table, not %s; write [stock.sfc] and then lines such as \"20\" = 26.0", describe(lm.raw))
 		return nil
 	}
-	if out, ok := curveClean(lm.m); ok {
+	if ok {
 		c.curveFalls(where, out)
 		return out
 	}
-	var out Curve
+	lm, out = lm.untyped(), nil
 	seen := map[float64]string{}
 	for _, k := range sortedKeys(lm.m) {
 		t, ok := c.temp(where, "sfc", k)
@@ -807,7 +828,7 @@ func (c *collector) curve(where string, lm leafMap) Curve {
 		seen[t] = k
 		out = append(out, Point{Temp: t, Solid: v})
 	}
-	sort.Slice(out, func(i, j int) bool { return out[i].Temp < out[j].Temp })
+	out.sortByTemp()
 	c.curveFalls(where, out)
 	if len(out) == 0 {
 		return nil
@@ -817,11 +838,15 @@ func (c *collector) curve(where string, lm leafMap) Curve {
 
 // tags reads a measured TAG profile keyed by letter code (sn-1, sn-2, sn-3).
 func (c *collector) tags(where string, lm leafMap) map[string]float64 {
-	if lm.m == nil {
-		c.errf(where, "tags must be a table, not %s; write [stock.tags] and then lines such as \"POP\" = 23.1", describe(lm.raw))
-		return nil
+	out, good := lm.f, lm.numbersClean(tagKnown)
+	if !good {
+		lm = lm.untyped()
+		if lm.m == nil {
+			c.errf(where, "tags must be a table, not %s; write [stock.tags] and then lines such as \"POP\" = 23.1", describe(lm.raw))
+			return nil
+		}
+		out, good = c.leafAmounts(where, "tags", lm.m, tagKnown, func(k string) bool { return c.tagCode(where, k) })
 	}
-	out, good := c.leafAmounts(where, "tags", lm.m, tagKnown, func(k string) bool { return c.tagCode(where, k) })
 	if !good || len(out) == 0 {
 		return nil
 	}
