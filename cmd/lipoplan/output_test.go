@@ -162,3 +162,20 @@ func TestWriteJSONAsEncoder(t *testing.T) {
 	}
 	require.Error(t, writeJSON(io.Discard, func() {}), "a value JSON cannot hold is an error")
 }
+
+// FuzzIndentJSON holds indentJSON to the standard library's json.Indent
+// on any valid JSON, compacted first by json.Compact, byte for byte.
+func FuzzIndentJSON(f *testing.F) {
+	for _, s := range []string{`{"a":[],"b":{},"c":null,"d":[1,[2,{"g":true}]]}`, `"a\"b\\"`, `[{"":""},{},[[]]]`, `  [ 1 , { "k" : "v}]" } ]  `, `3`} {
+		f.Add([]byte(s))
+	}
+	f.Fuzz(func(t *testing.T, data []byte) {
+		if !json.Valid(data) {
+			return
+		}
+		var compact, want bytes.Buffer
+		require.NoError(t, json.Compact(&compact, data))
+		require.NoError(t, json.Indent(&want, compact.Bytes(), "", "  "))
+		require.Equal(t, want.String(), string(indentJSON(nil, compact.Bytes())), "%s", compact.Bytes())
+	})
+}
