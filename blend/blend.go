@@ -102,14 +102,25 @@ var acidConsts, acidRank = func() ([]acidConst, map[string]int) {
 // in reference-table order, not the map's random one, so that the same
 // profile gives bit-identical properties every time.
 func Profile(fa map[string]float64) Properties {
-	p := Properties{FattyAcids: make(map[string]float64, len(fa))}
+	p := ProfileValues(fa)
+	p.FattyAcids = make(map[string]float64, len(fa))
+	for k, w := range fa {
+		if w != 0 {
+			p.FattyAcids[k] = w
+		}
+	}
+	return p
+}
+
+// ProfileValues is Profile without its copy of the profile (FattyAcids is
+// nil): the values each stock gives a linear row, for a caller that
+// profiles every stock of a catalogue and mixes only a few of them (the
+// optimiser's model build).
+func ProfileValues(fa map[string]float64) Properties {
+	var p Properties
 	var byRank [maxAcids]float64
 	for k, w := range fa {
-		if w == 0 {
-			continue
-		}
-		p.FattyAcids[k] = w
-		if r, ok := acidRank[k]; ok {
+		if r, ok := acidRank[k]; ok && w != 0 {
 			byRank[r] = w
 		}
 	}

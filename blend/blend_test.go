@@ -141,3 +141,20 @@ func TestCoefficientMatchesValue(t *testing.T) {
 func TestTemps(t *testing.T) {
 	assert.Equal(t, []float64{10, 15, 20, 25, 30, 33.3, 35, 40, 45}, Temps(33.3, 20))
 }
+
+// TestProfileValuesIsProfile: ProfileValues gives every value of Profile,
+// bit for bit, without the copy of the profile, on every demo stock and on
+// a profile with a zero entry and an acid outside the reference table.
+func TestProfileValuesIsProfile(t *testing.T) {
+	profiles := []map[string]float64{{"C16:0": 50, "C18:1": 0, "C99:9": 3, "C18:2": 47}}
+	for _, s := range catalogue.DemoStocks().Stocks {
+		profiles = append(profiles, s.FattyAcids)
+	}
+	for _, fa := range profiles {
+		want := Profile(fa)
+		got := ProfileValues(fa)
+		require.Nil(t, got.FattyAcids)
+		got.FattyAcids = want.FattyAcids
+		require.Equal(t, want, got, "%v", fa)
+	}
+}

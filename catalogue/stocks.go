@@ -375,13 +375,10 @@ func (c *collector) profileAmounts(where, table string, m map[string]float64) bo
 // number >= 0; it reports whether all are good. A table that is not all
 // good is checked again key by key in key order, for the messages.
 func (c *collector) keyedAmounts(where, table string, m map[string]float64, known, checkKey func(string) bool) bool {
-	clean := amountsClean(m)
-	for k := range m {
-		clean = clean && known(k)
-	}
-	if clean { // the common case, without a sort or a message
+	if leavesClean(m, asNumber, known, nil) { // the common case, without a sort or a message
 		return true
 	}
+	clean := true
 	for _, k := range sortedKeys(m) {
 		if !checkKey(k) || !c.amount(where, fmt.Sprintf("%s %q", table, k), m[k]) {
 			clean = false
@@ -397,16 +394,6 @@ func acidKnown(k string) bool { return Rank(k) >= 0 }
 func tagKnown(k string) bool {
 	_, err := ParseTAGCode(k)
 	return err == nil
-}
-
-// amountsClean reports whether every amount of m is finite and >= 0.
-func amountsClean(m map[string]float64) bool {
-	for _, v := range m {
-		if !(v >= 0) || math.IsInf(v, 1) {
-			return false
-		}
-	}
-	return true
 }
 
 // tagCode reports a TAG letter code that does not parse.

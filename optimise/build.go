@@ -211,23 +211,25 @@ func buildIn(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache, b
 	}
 	m.a = m.a[:m.nRows*n]
 	lay.prof, lay.share = buf.profiles(n)
-	var own []blend.Properties // profiles computed without a cache
+	var own []blend.Properties // values computed without a cache (no FattyAcids: mix profiles the blend's stocks)
 	if pc == nil && needProfile {
 		own = make([]blend.Properties, n)
 	}
 	pc.reserve(n) // entries stay put while this layout uses them
 	for j, c := range lay.cols {
 		var p *blend.Properties
-		var share []float64 // wt% by rank, from the cache
+		var share []float64         // wt% by rank, from the cache
+		var whole *blend.Properties // a profile mix can take as it is
 		switch {
 		case pc != nil && len(active) > 0:
 			e := pc.profile(j, c.stock)
 			p, share = &e.props, e.share
+			whole = p
 		case needProfile:
-			own[j] = blend.Profile(c.stock.FattyAcids)
+			own[j] = blend.ProfileValues(c.stock.FattyAcids)
 			p = &own[j]
 		}
-		lay.prof[j], lay.share[j] = p, share
+		lay.prof[j], lay.share[j] = whole, share
 		for i, l := range active {
 			var v float64
 			switch {
