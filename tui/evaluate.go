@@ -180,25 +180,24 @@ func pointsOf(vals map[float64]float64) []catalogue.Point {
 // sessionSolver is a workspace's own optimise.Solver: the edit after
 // edit of one session re-solves the same model warm, from the basis the
 // last solve ended with (a few dual or primal simplex pivots after a price
-// or limit edit, instead of a solve from scratch). The lock keeps it to
-// one solve at a time, and Close (the session's end) from racing a solve
-// still running.
+// or limit edit, instead of a solve from scratch). A solve takes the
+// Solver out for its duration (take) and hands it back (give), so that one
+// solve at a time has it (another solves fresh), and the session's end
+// (close) never waits for a solve still running: leaving the workspace is
+// at once, and that solve frees the Solver when it ends.
 type sessionSolver struct {
-	mu sync.Mutex
-	s  *optimise.Solver
+	mu     sync.Mutex
+	s      *optimise.Solver // nil while a solve has it, and after close
+	closed bool
 }
 
 func newSessionSolver() *sessionSolver { return &sessionSolver{s: optimise.NewSolver()} }
 
-// solve is optimise.Solve through the session's Solver; after Close, or on
-// a nil sessionSolver, a fresh solve.
+// solve is optimise.Solve through the session's Solver; after close, while
+// another solve has it, or on a nil sessionSolver, a fresh solve.
 func (ss *sessionSolver) solve(cat *catalogue.Catalogue, spec *catalogue.Spec, opt optimise.Options) (*optimise.Result, error) {
-	if ss == nil {
-		return optimise.Solve(cat, spec, opt)
-	}
-	ss.mu.Lock()
-	defer ss.mu.Unlock()
-	if ss.s == nil {
+	s := ss.take()
+	if s == nil {
 		return optimise.Solve(cat, spec, opt)
 	}
 	defer func() {
@@ -206,25 +205,57 @@ func (ss *sessionSolver) solve(cat *catalogue.Catalogue, spec *catalogue.Spec, o
 			// A fault left its state unknown: free what it holds if that
 			// can be done (its C memory in the coin build), and solve
 			// afresh from now on.
-			s := ss.s
-			ss.s = nil
+			ss.give(nil)
 			func() {
 				defer func() { _ = recover() }()
 				s.Close()
 			}()
 			panic(r)
 		}
+		ss.give(s)
 	}()
-	return ss.s.Solve(cat, spec, opt)
+	return s.Solve(cat, spec, opt)
 }
 
-// close frees the Solver; later solves are fresh ones.
+// take hands the Solver to one solve, nil when it has none to hand.
+func (ss *sessionSolver) take() *optimise.Solver {
+	if ss == nil {
+		return nil
+	}
+	ss.mu.Lock()
+	defer ss.mu.Unlock()
+	s := ss.s
+	ss.s = nil
+	return s
+}
+
+// give takes back the Solver a solve had (nil: that solve's fault left
+// it unusable, and the session solves fresh from now on), or frees it when
+// the session has closed meanwhile.
+func (ss *sessionSolver) give(s *optimise.Solver) {
+	ss.mu.Lock()
+	defer ss.mu.Unlock()
+	switch {
+	case s == nil:
+		ss.closed = true // no Solver any more: fresh solves
+	case ss.closed:
+		s.Close()
+	default:
+		ss.s = s
+	}
+}
+
+// close frees the Solver, or leaves that to the solve that has it; later
+// solves are fresh ones.
 func (ss *sessionSolver) close() {
 	if ss == nil {
 		return
 	}
 	ss.mu.Lock()
 	defer ss.mu.Unlock()
-	ss.s.Close()
-	ss.s = nil
+	ss.closed = true
+	if ss.s != nil {
+		ss.s.Close()
+		ss.s = nil
+	}
 }
