@@ -42,14 +42,18 @@ func directStocks(src []byte, from int) (rawStocks, bool) {
 	if len(src) >= from && runtime.GOMAXPROCS(0) > 1 {
 		cut = stockCut(src)
 	}
+	// room for every stock up front (each opens with a "[[stock]]" line;
+	// a count off by a comment or a string only costs a copy), the head's
+	// for the tail's stocks too, which then join it in place
+	n := bytes.Count(src, []byte(stockHeader))
 	if cut < 0 {
-		return directRead(src)
+		return directRead(src, n)
 	}
 	var tail rawStocks
 	var tailOK bool
 	var wg sync.WaitGroup
-	wg.Go(func() { tail, tailOK = directRead(src[cut:]) })
-	head, ok := directRead(src[:cut])
+	wg.Go(func() { tail, tailOK = directRead(src[cut:], bytes.Count(src[cut:], []byte(stockHeader))) })
+	head, ok := directRead(src[:cut], n)
 	wg.Wait()
 	if !ok || !tailOK || tail.Currency.set {
 		return rawStocks{}, false
@@ -58,23 +62,33 @@ func directStocks(src []byte, from int) (rawStocks, bool) {
 	return head, true
 }
 
-// directRead reads one document or half of one (directStocks).
-func directRead(src []byte) (rawStocks, bool) {
+// stockHeader opens each stock of a catalogue in the direct reader's layout.
+const stockHeader = "[[stock]]"
+
+// directRead reads one document or half of one (directStocks), with room
+// for stocks stocks.
+func directRead(src []byte, stocks int) (rawStocks, bool) {
 	var raw rawStocks
+	if stocks > 0 {
+		raw.Stock = make([]rawStock, 0, stocks)
+	}
 	p := &fastParser{src: src, keys: map[string]string{}}
 	cur := -1         // the stock being read, -1 before the first
 	var leaf *leafMap // its table being read, nil for its own keys
 	for {
 		p.ws()
 		if p.pos >= len(p.src) {
+			if len(raw.Stock) == 0 {
+				raw.Stock = nil // as the reference parser gives a catalogue without stocks
+			}
 			return raw, true
 		}
 		ok := true
 		switch p.src[p.pos] {
 		case '\n', '\r', '#':
 		case '[':
-			if bytes.HasPrefix(p.src[p.pos:], []byte("[[stock]]")) {
-				p.pos += len("[[stock]]")
+			if bytes.HasPrefix(p.src[p.pos:], []byte(stockHeader)) {
+				p.pos += len(stockHeader)
 				raw.Stock = append(raw.Stock, rawStock{})
 				cur, leaf = len(raw.Stock)-1, nil
 				break
@@ -213,6 +227,72 @@ func (p *fastParser) float() (float64, bool) {
 	if !ok || !isFloat {
 		return 0, false
 	}
+	if f, ok := exactDecimal(text); ok {
+		return f, true
+	}
 	f, err := strconv.ParseFloat(string(text), 64)
 	return f, err == nil
+}
+
+// pow10 holds the powers of ten a float64 represents exactly.
+var pow10 = [...]float64{1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11,
+	1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22}
+
+// exactDecimal converts a decimal float token (sign, digits, fraction,
+// exponent, no underscores) of at most 15 significant digits and a power
+// of ten within 10^±22 the short way: the digits as an integer m and the
+// power 10^e are both exact in a float64, so m x 10^e or m / 10^-e,
+// rounded once by the hardware, is the correctly rounded value, the one
+// strconv.ParseFloat gives (Clinger 1990, "How to read floating point
+// numbers accurately", PLDI '90, the fast path). Composition tables are
+// such numbers ("44.0", "0.25"); any other token (ok false) goes to
+// strconv.ParseFloat. TestExactDecimal holds the two to the same bits.
+func exactDecimal(text []byte) (float64, bool) {
+	i, neg := 0, false
+	if i < len(text) && (text[i] == '+' || text[i] == '-') {
+		neg = text[i] == '-'
+		i++
+	}
+	var m uint64
+	digits, exp, dot := 0, 0, false
+	for ; i < len(text); i++ {
+		switch b := text[i]; {
+		case b >= '0' && b <= '9':
+			if dot {
+				exp--
+			}
+			if digits == 0 && b == '0' {
+				continue // a leading zero
+			}
+			if digits == 15 {
+				return 0, false
+			}
+			m = m*10 + uint64(b-'0')
+			digits++
+		case b == '.' && !dot:
+			dot = true
+		case b == 'e' || b == 'E':
+			e, err := strconv.Atoi(string(text[i+1:]))
+			if err != nil || e < -len(pow10) || e > len(pow10) {
+				return 0, false
+			}
+			exp += e
+			i = len(text)
+		default:
+			return 0, false
+		}
+	}
+	if exp <= -len(pow10) || exp >= len(pow10) {
+		return 0, false
+	}
+	f := float64(m)
+	if exp < 0 {
+		f /= pow10[-exp]
+	} else {
+		f *= pow10[exp]
+	}
+	if neg {
+		f = -f
+	}
+	return f, true
 }
