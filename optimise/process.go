@@ -31,6 +31,16 @@ type ProcessReport struct {
 	FeedRatio map[string]float64
 }
 
+// FedPct is the share of the batch through the reactor, % of batch: the
+// feed lines summed (0 when the reactor is not used).
+func (p *ProcessReport) FedPct() float64 {
+	var sum float64
+	for _, l := range p.Feed {
+		sum += l.Pct
+	}
+	return sum
+}
+
 // Tolerances and limits of the successive LP.
 const (
 	slpMaxIter  = 90   // LP solves at most, over all starts

@@ -151,6 +151,8 @@ func TestProcessConservesFattyAcids(t *testing.T) {
 	require.NoError(t, err)
 	require.Equal(t, Optimal, r.Status)
 	require.NotEmpty(t, r.Process.Feed)
+	// the share fed is the tonnes processed over the batch
+	require.InDelta(t, 100*r.Process.Tonnes/r.Batch, r.Process.FedPct(), 1e-9)
 
 	var feed, all []blend.Part
 	for _, l := range r.Process.Feed {

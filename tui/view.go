@@ -647,11 +647,7 @@ func (m *Model) rowValue(r Row) (val, binds, worth string) {
 			}
 		case RowThrough:
 			if p := res.Process; p != nil {
-				fed := 0.0
-				for _, l := range p.Feed {
-					fed += l.Pct
-				}
-				val = f2(fed)
+				val = f2(p.FedPct())
 			}
 		}
 	}

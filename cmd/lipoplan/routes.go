@@ -106,9 +106,7 @@ func routeColumns(routes []optimise.Route, cat *catalogue.Catalogue) ([]routeCol
 				return nil, fmt.Errorf("the %s route: TAG classes: %w", r.Name, err)
 			}
 			c.classes = cl
-			for _, f := range r.Result.Process.Feed {
-				c.through += f.Pct
-			}
+			c.through = r.Result.Process.FedPct()
 		}
 		out[i] = c
 	}
