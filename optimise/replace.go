@@ -320,37 +320,56 @@ func (res *ReplaceResult) compare(cat *catalogue.Catalogue, r Replacement, temps
 	return nil
 }
 
-// blendClasses are the TAG classes of a solved blend: the directly blended
-// stocks' native TAGs with the reactor's product, mixed by TAG moles.
+// blendClasses are the TAG classes of a solved blend (BlendTAGs).
 func blendClasses(cat *catalogue.Catalogue, out *Result) (randomise.Classes, error) {
-	fed := map[string]float64{}
-	if out.Process != nil {
-		for _, l := range out.Process.Feed {
-			fed[l.Stock] = l.Pct
-		}
-	}
-	var stocks []*catalogue.Stock
-	var direct, feed []float64
-	for _, l := range out.Blend {
-		s, _ := cat.Find(l.Stock)
-		stocks = append(stocks, s)
-		direct = append(direct, l.Pct-fed[l.Stock])
-		feed = append(feed, fed[l.Stock])
-	}
-	b, err := randomise.NewBlender(stocks)
+	d, err := BlendTAGs(cat, out)
 	if err != nil {
 		return randomise.Classes{}, err
 	}
-	method := randomise.Chemical
-	if out.Process != nil && out.Process.Method == "enzymatic" {
-		method = randomise.Enzymatic
+	return d.Classes(), nil
+}
+
+// BlendTAGs is the positional TAG distribution of a solved blend: the
+// stocks blended as they are with their native TAGs (1,3-random-2-random
+// from each stock's sn-2 profile, or its measured TAG profile) and the
+// reactor's product (its feed interesterified to equilibrium by the
+// report's method), mixed by TAG moles (randomise.Blender). Method is the
+// reactor's method, Native when nothing goes through it; Notes are the
+// Blender's.
+func BlendTAGs(cat *catalogue.Catalogue, r *Result) (*randomise.Distribution, error) {
+	var stocks []*catalogue.Stock
+	var direct []float64
+	for _, l := range r.Blend {
+		s, ok := cat.Find(l.Stock)
+		if !ok {
+			return nil, fmt.Errorf("stock %s is not in the catalogue", l.Stock)
+		}
+		stocks = append(stocks, s)
+		direct = append(direct, l.Pct)
+	}
+	var feed []float64
+	reactor := randomise.Native
+	if p := r.Process; p != nil && len(p.Feed) > 0 {
+		reactor = randomise.Method(p.Method)
+		feed = make([]float64, len(stocks))
+		for _, f := range p.Feed {
+			for j, s := range stocks {
+				if s.ID == f.Stock {
+					feed[j] += f.Pct
+					direct[j] = math.Max(direct[j]-f.Pct, 0)
+				}
+			}
+		}
+	}
+	b, err := randomise.NewBlender(stocks)
+	if err != nil {
+		return nil, err
 	}
 	mol := make([]float64, b.Len())
-	if err := b.Mix(direct, feed, method, mol); err != nil {
-		return randomise.Classes{}, err
+	if err := b.Mix(direct, feed, reactor, mol); err != nil {
+		return nil, err
 	}
-	d := &randomise.Distribution{Acids: b.Acids, Mol: mol, Method: randomise.Native}
-	return d.Classes(), nil
+	return &randomise.Distribution{Acids: b.Acids, Mol: mol, Method: reactor, Notes: b.Notes}, nil
 }
 
 func catIDs(cat *catalogue.Catalogue) string {

@@ -310,41 +310,15 @@ func tagRows(r *optimise.Result, cat *catalogue.Catalogue) ([]sheetRow, string, 
 // place of its feed when a [process] step is used (randomise.Blender);
 // method says which, notes are the Blender's.
 func blendClasses(r *optimise.Result, cat *catalogue.Catalogue) (randomise.Shares, string, []string, error) {
-	var stocks []*catalogue.Stock
-	direct := []float64{}
-	for _, l := range r.Blend {
-		st, ok := cat.Find(l.Stock)
-		if !ok {
-			return randomise.Shares{}, "", nil, fmt.Errorf("stock %s is not in the catalogue", l.Stock)
-		}
-		stocks = append(stocks, st)
-		direct = append(direct, l.Pct)
-	}
-	method := "Native TAGs of the stocks as blended: 1,3-random-2-random distribution from each stock's sn-2 profile (Vander Wal 1960; Coleman 1961), or the stock's measured TAG profile."
-	var feed []float64
-	reactor := randomise.Native
-	if p := r.Process; p != nil && len(p.Feed) > 0 {
-		reactor = randomise.Method(p.Method)
-		feed = make([]float64, len(stocks))
-		for _, f := range p.Feed {
-			for j, st := range stocks {
-				if st.ID == f.Stock {
-					feed[j] += f.Pct
-					direct[j] = math.Max(direct[j]-f.Pct, 0)
-				}
-			}
-		}
-		method = fmt.Sprintf("The stocks blended as they are (native TAGs) and the reactor's product (%s interesterification to equilibrium) together.", p.Method)
-	}
-	b, err := randomise.NewBlender(stocks)
+	d, err := optimise.BlendTAGs(cat, r)
 	if err != nil {
 		return randomise.Shares{}, "", nil, err
 	}
-	mol := make([]float64, b.Len())
-	if err := b.Mix(direct, feed, reactor, mol); err != nil {
-		return randomise.Shares{}, "", nil, err
+	method := "Native TAGs of the stocks as blended: 1,3-random-2-random distribution from each stock's sn-2 profile (Vander Wal 1960; Coleman 1961), or the stock's measured TAG profile."
+	if d.Method != randomise.Native {
+		method = fmt.Sprintf("The stocks blended as they are (native TAGs) and the reactor's product (%s interesterification to equilibrium) together.", r.Process.Method)
 	}
-	return (&randomise.Distribution{Acids: b.Acids, Mol: mol, Method: reactor}).Classes().Mol, method, b.Notes, nil
+	return d.Classes().Mol, method, d.Notes, nil
 }
 
 // sheetChart draws the blend's SFC against temperature with the spec's
