@@ -180,7 +180,13 @@ func (m *Model) Close() { m.solver.close() }
 
 // apply makes next the current scenario, keeps the old one for undo and
 // starts its evaluation.
-func (m *Model) apply(next *Scenario, note string) tea.Cmd {
+func (m *Model) apply(next *Scenario, note string) tea.Cmd { return m.applySolved(next, note, nil) }
+
+// applySolved is apply for a scenario whose evaluation may be in already
+// (ready, R's preview of a relaxation): that one is shown as the new
+// scenario's instead of solving the same scenario again, unless another
+// evaluation is still running (whose result would then arrive after it).
+func (m *Model) applySolved(next *Scenario, note string, ready *Snapshot) tea.Cmd {
 	m.undo = append(m.undo, m.sc)
 	if len(m.undo) > undoDepth {
 		m.undo = m.undo[len(m.undo)-undoDepth:]
@@ -191,7 +197,13 @@ func (m *Model) apply(next *Scenario, note string) tea.Cmd {
 	m.dirty = true
 	m.info(note)
 	m.editNote = true
-	return m.evaluate()
+	if ready == nil || ready.Scenario != next || m.inflight {
+		return m.evaluate()
+	}
+	snap := *ready
+	snap.Rev = m.rev
+	m.inflight = true // as evaluate: the snapshot arrives as its message
+	return func() tea.Msg { return snapshotMsg{&snap} }
 }
 
 // noteOutcome finishes the status line of an edit once its snapshot is in:
@@ -827,7 +839,7 @@ func (m *Model) relaxKey(k tea.KeyPressMsg) tea.Cmd {
 		if len(p.skipped) > 0 {
 			note = fmt.Sprintf("Applied the relaxation except %s (change those by hand).", strings.Join(p.skipped, ", "))
 		}
-		return m.apply(p.sc, note)
+		return m.applySolved(p.sc, note, p.snap)
 	}
 	return nil
 }

@@ -192,8 +192,17 @@ func TestImpossibleSpecShowsRelaxation(t *testing.T) {
 		d.requireFrame(80, 24)
 		assert.NotEmpty(t, strings.TrimSpace(strings.Join(strings.Split(d.screen(), "\n")[2:20], "")), "panel %d is not blank", p+1)
 	}
-	d.keys("R<enter>")
+	d.keys("R")
+	require.NotNil(t, d.m.relax)
+	require.NotNil(t, d.m.relax.snap, "the preview is costed")
+	preview := d.m.relax.snap.Result
+	d.keys("<enter>")
 	require.True(t, d.m.Snapshot().Feasible(), "applying the relaxation makes the spec feasible: %s", d.m.Message())
+	require.Same(t, preview, d.m.Snapshot().Result, "the preview's solve is shown, not solved again")
+	require.Equal(t, d.m.rev, d.m.Snapshot().Rev)
+	require.False(t, d.m.Pending())
+	d.keys("u")
+	require.Equal(t, optimise.Infeasible, d.m.Snapshot().Result.Status, "u takes the relaxation back")
 }
 
 func TestAddEditDropLimit(t *testing.T) {
