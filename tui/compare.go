@@ -48,9 +48,10 @@ func (m *Model) currentSnap() *Snapshot {
 }
 
 // evaluateKept evaluates the kept scenario k in the background unless its
-// snapshot is in already.
+// snapshot is in already or the workspace's own evaluation of it is
+// running (fillKept then gives it that one).
 func (m *Model) evaluateKept(k kept) tea.Cmd {
-	if k.snap != nil {
+	if k.snap != nil || (m.inflight && m.flying == k.sc) {
 		return nil
 	}
 	return func() tea.Msg { return keptMsg{id: k.id, snap: Evaluate(k.sc, 0)} }

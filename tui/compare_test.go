@@ -107,8 +107,11 @@ func TestCompareSwitchAndDrop(t *testing.T) {
 	assert.InDelta(t, solveDirect(t, d.m.Scenario()).CostPerTonne, d.m.bench[0].snap.Result.CostPerTonne, 1e-9)
 }
 
-// Kept scenarios are solved off the keystroke path: keeping one while its
-// edit is still being solved returns a command and draws "…" meanwhile.
+// Kept scenarios are solved off the keystroke path. Keeping one while its
+// edit is still being solved draws "…" meanwhile and takes that edit's
+// solve when it arrives, with no second solve of the same scenario (no
+// command); keeping one whose edit waits behind another's solve gets a
+// solve of its own, run as a command.
 func TestKeptScenarioIsEvaluatedInTheBackground(t *testing.T) {
 	m := demoModel(t, "laminating", Files{})
 	first := m.Init()
@@ -119,12 +122,27 @@ func TestKeptScenarioIsEvaluatedInTheBackground(t *testing.T) {
 	require.True(t, m.Pending())
 	m.Update(tea.KeyPressMsg{Code: 'v', Text: "v"})
 	_, cmd := m.Update(tea.KeyPressMsg{Code: tea.KeyEnter})
-	require.NotNil(t, cmd, "the variant is evaluated by a command, not in Update")
+	require.Contains(t, m.Message(), "Kept as variant A")
+	require.Nil(t, cmd, "no second solve of the scenario being solved")
 	m.Update(tea.KeyPressMsg{Code: '6', Text: "6"})
 	assert.Contains(t, m.Render(), "…")
-	m.Update(cmd())
-	require.NotNil(t, m.bench[1].snap)
+	m.Update(edit())
+	require.False(t, m.Pending())
+	require.Same(t, m.Snapshot(), m.bench[1].snap, "the variant has the workspace's own solve")
 	assert.InDelta(t, solveDirect(t, m.bench[1].sc).CostPerTonne, m.bench[1].snap.Result.CostPerTonne, 1e-9)
+
+	m.Update(tea.KeyPressMsg{Code: '2', Text: "2"})
+	_, edit = m.Update(tea.KeyPressMsg{Code: ']', Text: "]"})
+	require.NotNil(t, edit)
+	_, queued := m.Update(tea.KeyPressMsg{Code: ']', Text: "]"})
+	require.Nil(t, queued, "the second edit waits for the first one's solve")
+	m.Update(tea.KeyPressMsg{Code: 'v', Text: "v"})
+	_, cmd = m.Update(tea.KeyPressMsg{Code: tea.KeyEnter})
+	require.Contains(t, m.Message(), "Kept as variant B")
+	require.NotNil(t, cmd, "a variant no running solve is of is solved by a command, not in Update")
+	m.Update(cmd())
+	require.NotNil(t, m.bench[2].snap)
+	assert.InDelta(t, solveDirect(t, m.bench[2].sc).CostPerTonne, m.bench[2].snap.Result.CostPerTonne, 1e-9)
 }
 
 // Every view of 6 Compare, figures and curves, with the base, three

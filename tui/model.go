@@ -80,9 +80,10 @@ type Model struct {
 	undo, redo []*Scenario
 	rev        int // revision of sc; bumped by every edit
 	snap       *Snapshot
-	dirty      bool // edits since the last save or load
-	inflight   bool // an evaluation is running
-	queued     bool // edits arrived while it ran
+	dirty      bool      // edits since the last save or load
+	inflight   bool      // an evaluation is running
+	flying     *Scenario // the scenario that evaluation is of
+	queued     bool      // edits arrived while it ran
 
 	width, height int
 	panel         panel
@@ -170,6 +171,7 @@ func (m *Model) evaluate() tea.Cmd {
 	}
 	m.inflight = true
 	sc, rev := m.sc, m.rev
+	m.flying = sc
 	s := m.solver
 	return func() tea.Msg { return snapshotMsg{evaluateWith(s, sc, rev)} }
 }
