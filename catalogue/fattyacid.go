@@ -275,7 +275,11 @@ func codes() []string {
 
 // ParseTemp reads an SFC temperature key such as "20" or "37.5".
 func ParseTemp(s string) (float64, error) {
-	t, err := strconv.ParseFloat(strings.TrimSpace(s), 64)
+	s = strings.TrimSpace(s)
+	if t, ok := exactDecimal(s); ok { // the usual "20", "37.5": the same value, the short way
+		return t, nil
+	}
+	t, err := strconv.ParseFloat(s, 64)
 	if err != nil {
 		return 0, fmt.Errorf("temperature %q is not a number of degrees C", s)
 	}
