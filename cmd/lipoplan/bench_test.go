@@ -61,7 +61,9 @@ func stocks300(tb testing.TB, dir string) (stocks, spec string) {
 // two in turn in every iteration with their ratio as the metric
 // lipoplan/glpsol (Interleaved), and the binary's start-up alone (Startup:
 // lipoplan --version). In process: the catalogue loader alone (LoadStocks,
-// TOML decoding and validation) and the solve alone (Solve).
+// TOML decoding and validation), the solve alone (Solve), and the whole
+// solve command (Command), also in turn with glpsol (CommandVsGlpsol,
+// command/glpsol).
 func BenchmarkSolve300(b *testing.B) {
 	dir := b.TempDir()
 	stocks, spec := stocks300(b, dir)
@@ -85,6 +87,20 @@ func BenchmarkSolve300(b *testing.B) {
 			if r, err := optimise.Solve(cat, sp, optimise.Options{}); err != nil || r.Status != optimise.Optimal {
 				b.Fatal(err)
 			}
+		}
+	})
+	// The whole solve command in this process (both files read and
+	// checked, the solve, the JSON report): Process without the binary's
+	// start-up and exit, though warm where a fresh process is cold.
+	command := func() {
+		a := &app{stdout: io.Discard, stderr: io.Discard}
+		if err := a.solve([]string{"--stocks", stocks, "--spec", spec, "--format", "json"}); err != nil {
+			b.Fatal(err)
+		}
+	}
+	b.Run("Command", func(b *testing.B) {
+		for b.Loop() {
+			command()
 		}
 	})
 	bin := filepath.Join(dir, "lipoplan")
@@ -144,5 +160,21 @@ func BenchmarkSolve300(b *testing.B) {
 			ours, theirs = ours+t1.Sub(t0), theirs+time.Since(t1)
 		}
 		b.ReportMetric(float64(ours)/float64(theirs), "lipoplan/glpsol")
+	})
+	// Command against glpsol's whole process, in turn: the ratio the
+	// process would have without its start-up.
+	b.Run("CommandVsGlpsol", func(b *testing.B) {
+		if err != nil {
+			b.Skip("glpsol (glpk-utils) is not on PATH")
+		}
+		var ours, theirs time.Duration
+		for b.Loop() {
+			t0 := time.Now()
+			command()
+			t1 := time.Now()
+			glpsol()
+			ours, theirs = ours+t1.Sub(t0), theirs+time.Since(t1)
+		}
+		b.ReportMetric(float64(ours)/float64(theirs), "command/glpsol")
 	})
 }
