@@ -45,15 +45,15 @@ func directStocks(src []byte, from int) (rawStocks, bool) {
 	// room for every stock up front (each opens with a "[[stock]]" line;
 	// a count off by a comment or a string only costs a copy), the head's
 	// for the tail's stocks too, which then join it in place
-	n := bytes.Count(src, []byte(stockHeader))
 	if cut < 0 {
-		return directRead(src, n)
+		return directRead(src, bytes.Count(src, []byte(stockHeader)))
 	}
+	nTail := bytes.Count(src[cut:], []byte(stockHeader))
 	var tail rawStocks
 	var tailOK bool
 	var wg sync.WaitGroup
-	wg.Go(func() { tail, tailOK = directRead(src[cut:], bytes.Count(src[cut:], []byte(stockHeader))) })
-	head, ok := directRead(src[:cut], n)
+	wg.Go(func() { tail, tailOK = directRead(src[cut:], nTail) })
+	head, ok := directRead(src[:cut], bytes.Count(src[:cut], []byte(stockHeader))+nTail)
 	wg.Wait()
 	if !ok || !tailOK || tail.Currency.set {
 		return rawStocks{}, false
@@ -123,20 +123,8 @@ func (p *fastParser) stockTable(s *rawStock) *leafMap {
 	if end < 0 {
 		return nil
 	}
-	var lm *leafMap
-	switch string(rest[len("[stock."):end]) {
-	case "fatty_acids":
-		lm = &s.FattyAcids
-	case "sn2":
-		lm = &s.SN2
-	case "sfc":
-		lm = &s.SFC
-	case "tags":
-		lm = &s.TAGs
-	default:
-		return nil
-	}
-	if lm.set {
+	lm := stockTableOf(s, string(rest[len("[stock."):end]))
+	if lm == nil || lm.set {
 		return nil
 	}
 	p.pos += end + 1
@@ -163,17 +151,15 @@ func (p *fastParser) scalar(raw *rawStocks, cur int) bool {
 	case k != "currency":
 		x = nil
 	}
-	if x == nil {
-		return false
-	}
-	if x.set {
+	if x == nil || x.set {
 		return false
 	}
 	*x = val{v: v, set: true}
 	return true
 }
 
-// stockScalar is the field of s for the scalar key k, nil for any other.
+// stockScalar is the field of s for the scalar key k, nil for any other
+// (both fast readers place a stock's keys by it and by stockTableOf).
 func stockScalar(s *rawStock, k string) *val {
 	switch k {
 	case "id":
@@ -184,6 +170,21 @@ func stockScalar(s *rawStock, k string) *val {
 		return &s.Price
 	case "available":
 		return &s.Available
+	}
+	return nil
+}
+
+// stockTableOf is the field of s for the table key k, nil for any other.
+func stockTableOf(s *rawStock, k string) *leafMap {
+	switch k {
+	case "fatty_acids":
+		return &s.FattyAcids
+	case "sn2":
+		return &s.SN2
+	case "sfc":
+		return &s.SFC
+	case "tags":
+		return &s.TAGs
 	}
 	return nil
 }
@@ -220,10 +221,7 @@ func (p *fastParser) float() (float64, bool) {
 	if p.pos >= len(p.src) {
 		return 0, false
 	}
-	if b := p.src[p.pos]; !(b == '+' || b == '-' || (b >= '0' && b <= '9')) {
-		return 0, false
-	}
-	text, isFloat, ok := p.numberText()
+	text, isFloat, ok := p.numberText() // declines what does not open a number
 	if !ok || !isFloat {
 		return 0, false
 	}

@@ -710,37 +710,16 @@ func fastStocks(src []byte) (rawStocks, bool) {
 // not clean (fastStocks).
 func fastStock(m map[string]any, rs *rawStock) bool {
 	for k, v := range m {
-		var x *val
-		var lm *leafMap
-		switch k {
-		case "id":
-			x = &rs.ID
-		case "name":
-			x = &rs.Name
-		case "price":
-			x = &rs.Price
-		case "available":
-			x = &rs.Available
-		case "fatty_acids":
-			lm = &rs.FattyAcids
-		case "sn2":
-			lm = &rs.SN2
-		case "sfc":
-			lm = &rs.SFC
-		case "tags":
-			lm = &rs.TAGs
-		default:
-			return false
-		}
-		if x != nil {
+		if x := stockScalar(rs, k); x != nil {
 			if !fastScalar(v) {
 				return false
 			}
 			*x = val{v: v, set: true}
 			continue
 		}
+		lm := stockTableOf(rs, k)
 		t, ok := v.(map[string]any)
-		if !ok {
+		if lm == nil || !ok {
 			return false
 		}
 		for _, e := range t {

@@ -24,13 +24,13 @@ type Point struct {
 // Curve is a measured SFC curve sorted by temperature.
 type Curve []Point
 
-// At interpolates the curve linearly at temperature t. It reports false when t
 // sortByTemp orders the points by temperature (without sort.Slice's
 // reflection: the loader sorts every stock's curve).
 func (c Curve) sortByTemp() {
 	slices.SortFunc(c, func(a, b Point) int { return cmp.Compare(a.Temp, b.Temp) })
 }
 
+// At interpolates the curve linearly at temperature t. It reports false when t
 // lies outside the measured range (no extrapolation) or the curve is empty.
 func (c Curve) At(t float64) (float64, bool) {
 	if len(c) == 0 {
