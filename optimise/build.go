@@ -218,18 +218,16 @@ func buildIn(cat *catalogue.Catalogue, spec *catalogue.Spec, pc *profileCache, b
 	pc.reserve(n) // entries stay put while this layout uses them
 	for j, c := range lay.cols {
 		var p *blend.Properties
-		var share []float64         // wt% by rank, from the cache
-		var whole *blend.Properties // a profile mix can take as it is
+		var share []float64 // wt% by rank, from the cache
 		switch {
 		case pc != nil && len(active) > 0:
 			e := pc.profile(j, c.stock)
 			p, share = &e.props, e.share
-			whole = p
+			lay.prof[j], lay.share[j] = p, share // whole profiles, which mix takes as they are
 		case needProfile:
 			own[j] = blend.ProfileValues(c.stock.FattyAcids)
-			p = &own[j]
+			p = &own[j] // lay.prof[j] stays nil: mix profiles the stock whole if the blend has it
 		}
-		lay.prof[j], lay.share[j] = whole, share
 		for i, l := range active {
 			var v float64
 			switch {
