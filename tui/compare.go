@@ -51,7 +51,7 @@ func (m *Model) currentSnap() *Snapshot {
 // snapshot is in already or the workspace's own evaluation of it is
 // running (fillKept then gives it that one).
 func (m *Model) evaluateKept(k kept) tea.Cmd {
-	if k.snap != nil || (m.inflight && m.flying == k.sc) {
+	if k.snap != nil || m.flying == k.sc {
 		return nil
 	}
 	return func() tea.Msg { return keptMsg{id: k.id, snap: Evaluate(k.sc, 0)} }

@@ -202,10 +202,9 @@ func (ss *sessionSolver) solve(cat *catalogue.Catalogue, spec *catalogue.Spec, o
 	}
 	defer func() {
 		if r := recover(); r != nil {
-			// A fault left its state unknown: free what it holds if that
-			// can be done (its C memory in the coin build), and solve
-			// afresh from now on.
-			ss.give(nil)
+			// A fault left its state unknown: it is not handed back (the
+			// session solves afresh from now on), and what it holds is
+			// freed if that can be done (its C memory in the coin build).
 			func() {
 				defer func() { _ = recover() }()
 				s.Close()
@@ -229,20 +228,16 @@ func (ss *sessionSolver) take() *optimise.Solver {
 	return s
 }
 
-// give takes back the Solver a solve had (nil: that solve's fault left
-// it unusable, and the session solves fresh from now on), or frees it when
-// the session has closed meanwhile.
+// give takes back the Solver a solve had, or frees it when the session
+// has closed meanwhile.
 func (ss *sessionSolver) give(s *optimise.Solver) {
 	ss.mu.Lock()
 	defer ss.mu.Unlock()
-	switch {
-	case s == nil:
-		ss.closed = true // no Solver any more: fresh solves
-	case ss.closed:
+	if ss.closed {
 		s.Close()
-	default:
-		ss.s = s
+		return
 	}
+	ss.s = s
 }
 
 // close frees the Solver, or leaves that to the solve that has it; later

@@ -81,8 +81,7 @@ type Model struct {
 	rev        int // revision of sc; bumped by every edit
 	snap       *Snapshot
 	dirty      bool      // edits since the last save or load
-	inflight   bool      // an evaluation is running
-	flying     *Scenario // the scenario that evaluation is of
+	flying     *Scenario // the scenario an evaluation running is of; nil when none runs
 	queued     bool      // edits arrived while it ran
 
 	width, height int
@@ -165,11 +164,10 @@ func (m *Model) Init() tea.Cmd { return m.evaluate() }
 // one more evaluation of the newest scenario when it returns, so a burst of
 // nudges never queues a solve per key.
 func (m *Model) evaluate() tea.Cmd {
-	if m.inflight {
+	if m.flying != nil {
 		m.queued = true
 		return nil
 	}
-	m.inflight = true
 	sc, rev := m.sc, m.rev
 	m.flying = sc
 	s := m.solver
@@ -199,12 +197,12 @@ func (m *Model) applySolved(next *Scenario, note string, ready *Snapshot) tea.Cm
 	m.dirty = true
 	m.info(note)
 	m.editNote = true
-	if ready == nil || ready.Scenario != next || m.inflight {
+	if ready == nil || ready.Scenario != next || m.flying != nil {
 		return m.evaluate()
 	}
 	snap := *ready
 	snap.Rev = m.rev
-	m.inflight = true // as evaluate: the snapshot arrives as its message
+	m.flying = next // as evaluate: the snapshot arrives as its message
 	return func() tea.Msg { return snapshotMsg{&snap} }
 }
 
@@ -243,7 +241,7 @@ func (m *Model) Update(msg tea.Msg) (tea.Model, tea.Cmd) {
 		m.help.SetWidth(m.width - 1)
 		return m, nil
 	case snapshotMsg:
-		m.inflight = false
+		m.flying = nil
 		if m.snap == nil || msg.snap.Rev > m.snap.Rev {
 			prev := m.snap
 			m.snap = msg.snap
