@@ -147,34 +147,28 @@ func BenchmarkSolve300(b *testing.B) {
 			glpsol()
 		}
 	})
-	b.Run("Interleaved", func(b *testing.B) {
-		if err != nil {
+	// lipoplan's whole process and, without its start-up, the command in
+	// this process, each in turn with glpsol's whole process
+	inTurn(b, "Interleaved", "lipoplan/glpsol", lipoplan, glpsol, err)
+	inTurn(b, "CommandVsGlpsol", "command/glpsol", command, glpsol, err)
+}
+
+// inTurn runs ours and theirs one after the other in every iteration of
+// the sub-benchmark name and reports the ratio of their times as unit;
+// skipped when theirs is missing (missing is the error looking it up).
+func inTurn(b *testing.B, name, unit string, ours, theirs func(), missing error) {
+	b.Run(name, func(b *testing.B) {
+		if missing != nil {
 			b.Skip("glpsol (glpk-utils) is not on PATH")
 		}
-		var ours, theirs time.Duration
+		var tOurs, tTheirs time.Duration
 		for b.Loop() {
 			t0 := time.Now()
-			lipoplan()
+			ours()
 			t1 := time.Now()
-			glpsol()
-			ours, theirs = ours+t1.Sub(t0), theirs+time.Since(t1)
+			theirs()
+			tOurs, tTheirs = tOurs+t1.Sub(t0), tTheirs+time.Since(t1)
 		}
-		b.ReportMetric(float64(ours)/float64(theirs), "lipoplan/glpsol")
-	})
-	// Command against glpsol's whole process, in turn: the ratio the
-	// process would have without its start-up.
-	b.Run("CommandVsGlpsol", func(b *testing.B) {
-		if err != nil {
-			b.Skip("glpsol (glpk-utils) is not on PATH")
-		}
-		var ours, theirs time.Duration
-		for b.Loop() {
-			t0 := time.Now()
-			command()
-			t1 := time.Now()
-			glpsol()
-			ours, theirs = ours+t1.Sub(t0), theirs+time.Since(t1)
-		}
-		b.ReportMetric(float64(ours)/float64(theirs), "command/glpsol")
+		b.ReportMetric(float64(tOurs)/float64(tTheirs), unit)
 	})
 }
