@@ -5,7 +5,6 @@ import (
 	"runtime"
 	"strconv"
 	"sync"
-	"unicode/utf8"
 )
 
 // The direct reader: a stock catalogue in the layout lipoplan writes
@@ -35,7 +34,7 @@ import (
 // a stock header, so all of it belongs to stocks and it joins the first by
 // appending its stocks.
 func directStocks(src []byte, from int) (rawStocks, bool) {
-	if !utf8.Valid(src) || bytes.HasPrefix(src, []byte("\xef\xbb\xbf")) {
+	if !fastInput(src) {
 		return rawStocks{}, false
 	}
 	cut := -1

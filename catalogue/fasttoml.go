@@ -85,9 +85,15 @@ type fastParser struct {
 // its depth check (CheckTOMLDepth).
 const maxFastDepth = 8
 
+// fastInput reports a document the fast readers take on: valid UTF-8
+// without a byte-order mark (the reference parser reads or words the rest).
+func fastInput(src []byte) bool {
+	return utf8.Valid(src) && !bytes.HasPrefix(src, []byte("\xef\xbb\xbf"))
+}
+
 // fastTOML reads src in the subset above and returns its tree, or ok false.
 func fastTOML(src []byte) (map[string]any, bool) {
-	if !utf8.Valid(src) || bytes.HasPrefix(src, []byte("\xef\xbb\xbf")) {
+	if !fastInput(src) {
 		return nil, false
 	}
 	p := &fastParser{src: src, root: newFastTable(true), keys: map[string]string{}}
